@@ -1,0 +1,202 @@
+package checks
+
+// This file is the contract between checks (which computes facts) and rules
+// (which judges them). Every quantity is SI (V, A, W, Ohm, degrees Celsius
+// for temperatures, K/W for thermal resistance). A value that is not known
+// (a rating missing from the parts library, a model parameter left at an
+// infinite default) is NaN or +Inf as documented per field; rules treat a
+// referenced NaN as "could not be judged".
+//
+// Transistor facts are forward-referenced: for a PNP every junction voltage
+// and current is sign-flipped so that a forward-active NPN and a
+// forward-active PNP both show vbe > 0, vce > 0, ic > 0, ib > 0 and ie < 0.
+// One rule therefore serves both polarities.
+
+import (
+	"github.com/biaslint/biaslint/netlist"
+)
+
+// Role values.
+const (
+	RoleSwitch = "switch"
+	RoleLinear = "linear"
+)
+
+// Ratings are the absolute-maximum and characteristic values of a part, as
+// the parts library or a *@part annotation gives them. Missing values are NaN.
+type Ratings struct {
+	// Part is the library entry or annotation the values came from.
+	Part string `expr:"part"`
+	// Origin says where the values come from ("library: small-signal
+	// class, typical of the class, from memory", "annotation", ...).
+	Origin string `expr:"origin"`
+	// Generic is true when the device had no entry of its own and was
+	// checked against the conservative generic small-signal class.
+	Generic bool `expr:"generic"`
+	// VCEO, VCBO, VEBO are the breakdown ratings, V (positive numbers).
+	VCEO float64 `expr:"vceo"`
+	VCBO float64 `expr:"vcbo"`
+	VEBO float64 `expr:"vebo"`
+	// ICMax is the maximum continuous collector current, A.
+	ICMax float64 `expr:"icmax"`
+	// Pd is the total dissipation rating at 25 C ambient, W.
+	Pd float64 `expr:"pd"`
+	// TjMax is the maximum junction temperature, C.
+	TjMax float64 `expr:"tjmax"`
+	// RthJA is the junction-to-ambient thermal resistance, K/W.
+	RthJA float64 `expr:"rthja"`
+	// HFEMin and HFEMax bound the DC current gain spread.
+	HFEMin float64 `expr:"hfemin"`
+	HFEMax float64 `expr:"hfemax"`
+}
+
+// ModelFacts are the Gummel-Poon parameters of the device's model after
+// defaults are applied (not temperature-scaled). Infinite defaults (VAF,
+// IKF, ...) are +Inf.
+type ModelFacts struct {
+	IS  float64 `expr:"is"`
+	BF  float64 `expr:"bf"`
+	NF  float64 `expr:"nf"`
+	VAF float64 `expr:"vaf"`
+	IKF float64 `expr:"ikf"`
+	ISE float64 `expr:"ise"`
+	NE  float64 `expr:"ne"`
+	BR  float64 `expr:"br"`
+	NR  float64 `expr:"nr"`
+	VAR float64 `expr:"var"`
+	IKR float64 `expr:"ikr"`
+	ISC float64 `expr:"isc"`
+	NC  float64 `expr:"nc"`
+	RB  float64 `expr:"rb"`
+	RE  float64 `expr:"re"`
+	RC  float64 `expr:"rc"`
+	EG  float64 `expr:"eg"`
+	XTI float64 `expr:"xti"`
+	XTB float64 `expr:"xtb"`
+}
+
+// Transistor holds every fact about one BJT in one case (scenario x corner).
+type Transistor struct {
+	// Name is the flat hierarchical name as written (X1.Q2).
+	Name string `expr:"name"`
+	// Model is the model name as written.
+	Model string `expr:"model"`
+	// Polarity is "npn" or "pnp".
+	Polarity string `expr:"polarity"`
+	// Collector, Base, Emitter are the flat net names.
+	Collector string `expr:"collector"`
+	Base      string `expr:"base"`
+	Emitter   string `expr:"emitter"`
+
+	// Role is RoleSwitch or RoleLinear; RoleFrom says why ("annotation",
+	// "pulse drive", "pwl drive", "sine drive", "ac drive", "default").
+	Role     string `expr:"role"`
+	RoleFrom string `expr:"role_from"`
+
+	// Operating point, forward-referenced (see the file comment).
+	VBE float64 `expr:"vbe"`
+	VCE float64 `expr:"vce"`
+	VCB float64 `expr:"vcb"`
+	IC  float64 `expr:"ic"`
+	IB  float64 `expr:"ib"`
+	IE  float64 `expr:"ie"`
+	// Beta is the forced beta IC/IB (NaN when IB is 0).
+	Beta float64 `expr:"beta"`
+	// Power is the dissipation VCE*IC + VBE*IB, W.
+	Power float64 `expr:"power"`
+	// Region is "active", "saturation", "cutoff" or "reverse".
+	Region string `expr:"region"`
+
+	// Model parameters and ratings.
+	GP     ModelFacts `expr:"gp"`
+	Rating Ratings    `expr:"rating"`
+
+	// Ambient is the ambient temperature of this case, C.
+	Ambient float64 `expr:"ambient"`
+	// PdDerated is the derated dissipation limit at Ambient,
+	// Pd(Ta) = min(Pd, (TjMax - Ta)/RthJA), W (linear derating above 25 C,
+	// common practice).
+	PdDerated float64 `expr:"pd_derated"`
+	// Tj is the junction temperature Ta + Power*RthJA, C.
+	Tj float64 `expr:"tj"`
+
+	// Topology, computed from the circuit graph and by solving.
+	// EmitterR is the DC resistance from the emitter to its rail or ground,
+	// Ohm (0 when the emitter is tied straight to a rail).
+	EmitterR float64 `expr:"emitter_r"`
+	// BaseRth and BaseVth are the Thevenin resistance (Ohm) and open-circuit
+	// voltage (V, forward-referenced to the emitter rail) the base sees with
+	// the transistor removed.
+	BaseRth float64 `expr:"base_rth"`
+	BaseVth float64 `expr:"base_vth"`
+	// Bleed is true when the base has a DC path to its emitter or rail that
+	// does not pass through the drive.
+	Bleed bool `expr:"bleed"`
+	// StiffDrive is true when a voltage source (or other stiff output)
+	// drives the base with no series resistance.
+	StiffDrive bool `expr:"stiff_drive"`
+	// Drives are the names of the source(s) that drive the base.
+	Drives []string `expr:"drives"`
+
+	// Pos is where the device's line is; Chain the instances that placed it.
+	Pos   netlist.Pos        `expr:"-"`
+	Chain []netlist.Instance `expr:"-"`
+}
+
+// Resistor holds the facts about one resistor in one case.
+type Resistor struct {
+	Name string `expr:"name"`
+	// NodeA and NodeB are the flat net names.
+	NodeA string `expr:"node_a"`
+	NodeB string `expr:"node_b"`
+	// R is the resistance, Ohm; V the voltage across it, V; I the current
+	// through it, A; Power = V*I, W.
+	R     float64 `expr:"r"`
+	V     float64 `expr:"v"`
+	I     float64 `expr:"i"`
+	Power float64 `expr:"power"`
+	// Rating is the power rating in W (annotation, board file or the
+	// default), and RatingFrom where it came from.
+	Rating     float64 `expr:"rating"`
+	RatingFrom string  `expr:"rating_from"`
+
+	Pos   netlist.Pos        `expr:"-"`
+	Chain []netlist.Instance `expr:"-"`
+}
+
+// Node holds the facts about one net in one case.
+type Node struct {
+	Name string `expr:"name"`
+	// V is the DC voltage to ground, V.
+	V float64 `expr:"v"`
+	// Peak is the largest magnitude of the node voltage over the case's
+	// signal swing (equal to |V| when there is none), V.
+	Peak float64 `expr:"peak"`
+	// Pos is the first element line that names the net.
+	Pos netlist.Pos `expr:"-"`
+}
+
+// Case is one solved operating point of a circuit: a scenario (nominal,
+// a drive level, a point of a signal swing) at a corner (hFE, ambient,
+// supply and resistor tolerances), with every fact computed there.
+type Case struct {
+	// Scenario names the scenario, e.g. "nominal".
+	Scenario string
+	// Corner names the corner, "" for nominal values.
+	Corner      string
+	Ambient     float64
+	Transistors []Transistor
+	Resistors   []Resistor
+	Nodes       []Node
+}
+
+// Analysis is everything checks learned about one circuit.
+type Analysis struct {
+	// Circuit is the flat circuit analysed.
+	Circuit *netlist.Circuit
+	// Cases holds the nominal case first, then any others.
+	Cases []Case
+	// Notes are located notes and warnings about the analysis (e.g. a
+	// device checked against generic ratings).
+	Notes []*netlist.Error
+}

@@ -1,0 +1,53 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io/fs"
+
+	"github.com/urfave/cli/v2"
+
+	"github.com/biaslint/biaslint/netlist"
+	"github.com/biaslint/biaslint/rulesets/demo"
+)
+
+var demoFlag = &cli.BoolFlag{
+	Name:  "demo",
+	Usage: "run on the demo board built into the binary instead of FILE arguments",
+}
+
+// input is one netlist to read: a file on disk, or the embedded demo.
+type input struct {
+	name string
+	opts *netlist.Options
+}
+
+func (in input) read() (*netlist.Circuit, error) {
+	return netlist.Read(in.name, in.opts)
+}
+
+// inputsOf returns the netlists a command was asked to read.
+func inputsOf(c *cli.Context) ([]input, error) {
+	if c.Bool("demo") {
+		if c.NArg() > 0 {
+			return nil, badInput(errors.New("biaslint: --demo takes no FILE arguments"))
+		}
+		return []input{{name: demo.Name, opts: &netlist.Options{ReadFile: demoFile}}}, nil
+	}
+	if c.NArg() == 0 {
+		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, or use --demo)", c.Command.Name))
+	}
+	var ins []input
+	for _, a := range c.Args().Slice() {
+		ins = append(ins, input{name: a})
+	}
+	return ins, nil
+}
+
+// demoFile serves the embedded demo netlist and nothing else.
+func demoFile(name string) ([]byte, error) {
+	if name == demo.Name {
+		return demo.Netlist, nil
+	}
+	return nil, &fs.PathError{Op: "open", Path: name, Err: fs.ErrNotExist}
+}

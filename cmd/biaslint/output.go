@@ -1,0 +1,106 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"github.com/fatih/color"
+	"github.com/mattn/go-isatty"
+	"github.com/urfave/cli/v2"
+)
+
+// Flags shared by several commands.
+var (
+	colorFlag = &cli.StringFlag{
+		Name:  "color",
+		Value: "auto",
+		Usage: "colour in text output: auto (only on a terminal, off when NO_COLOR is set), always, never",
+	}
+	formatFlagUsage = "output format"
+	outputFlag      = &cli.StringFlag{
+		Name:    "output",
+		Aliases: []string{"o"},
+		Usage:   "write the report to `FILE` (atomically: a failed run leaves nothing half-written)",
+	}
+	tempFlag = &cli.Float64Flag{
+		Name:  "temp",
+		Usage: "circuit temperature in `C` (overrides .temp and .options temp=)",
+	}
+)
+
+// useColor decides whether text output is coloured: --color always/never
+// win; auto colours only a terminal and honours NO_COLOR.
+func useColor(c *cli.Context, w io.Writer) (bool, error) {
+	switch c.String("color") {
+	case "always":
+		return true, nil
+	case "never":
+		return false, nil
+	case "auto", "":
+		if _, ok := os.LookupEnv("NO_COLOR"); ok {
+			return false, nil
+		}
+		f, ok := w.(*os.File)
+		return ok && (isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd())), nil
+	}
+	return false, badInput(fmt.Errorf("biaslint: --color must be auto, always or never, not %q", c.String("color")))
+}
+
+// palette returns colour functions that are identity when colour is off.
+type palette struct {
+	on bool
+}
+
+func (p palette) paint(attr []color.Attribute, s string) string {
+	if !p.on {
+		return s
+	}
+	c := color.New(attr...)
+	c.EnableColor()
+	return c.Sprint(s)
+}
+
+func (p palette) bold(s string) string  { return p.paint([]color.Attribute{color.Bold}, s) }
+func (p palette) dim(s string) string   { return p.paint([]color.Attribute{color.Faint}, s) }
+func (p palette) red(s string) string   { return p.paint([]color.Attribute{color.FgRed, color.Bold}, s) }
+func (p palette) amber(s string) string { return p.paint([]color.Attribute{color.FgYellow}, s) }
+func (p palette) blue(s string) string  { return p.paint([]color.Attribute{color.FgCyan}, s) }
+func (p palette) green(s string) string { return p.paint([]color.Attribute{color.FgGreen}, s) }
+
+// emit writes a finished report: to stdout, or atomically to --output FILE
+// (a temporary file in the same directory, then a rename), so that a run
+// that fails leaves no truncated report behind.
+func emit(c *cli.Context, report *bytes.Buffer) error {
+	path := c.String("output")
+	if path == "" {
+		_, err := c.App.Writer.Write(report.Bytes())
+		return err
+	}
+	return writeAtomic(path, report.Bytes())
+}
+
+// writeAtomic writes data to path through a temporary file and a rename.
+func writeAtomic(path string, data []byte) error {
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp*")
+	if err != nil {
+		return badInput(fmt.Errorf("biaslint: cannot write %s: %v", path, err))
+	}
+	name := tmp.Name()
+	_, werr := tmp.Write(data)
+	cerr := tmp.Close()
+	if werr == nil {
+		werr = cerr
+	}
+	if werr == nil {
+		werr = os.Rename(name, path)
+	}
+	if werr != nil {
+		os.Remove(name)
+		return badInput(fmt.Errorf("biaslint: cannot write %s: %v", path, werr))
+	}
+	return nil
+}
