@@ -1,0 +1,373 @@
+package rules
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"reflect"
+	"sort"
+	"strings"
+
+	"github.com/biaslint/biaslint/checks"
+	"github.com/biaslint/biaslint/netlist"
+	"github.com/expr-lang/expr"
+	"github.com/expr-lang/expr/file"
+)
+
+// Quantity is a named value shown in a finding's message. Value is finite
+// (non-finite values are not kept), so a Finding marshals to JSON.
+type Quantity struct {
+	Name  string  `json:"name"`
+	Value float64 `json:"value"`
+	Unit  string  `json:"unit"`
+}
+
+// Finding is the result of one rule on one device: a violation, or a
+// statement that the rule could not be judged there.
+type Finding struct {
+	Rule     string   `json:"rule"`
+	Severity Severity `json:"severity"`
+	Subject  Subject  `json:"subject"`
+	// Device is the flat device or net name as written.
+	Device string `json:"device"`
+	// Pos is the device's line (a net's first element line); Chain the
+	// instances that placed it, outermost first.
+	Pos   netlist.Pos        `json:"pos"`
+	Chain []netlist.Instance `json:"chain,omitempty"`
+	// Scenario and Corner name the case the finding was judged in (the
+	// worst violating case).
+	Scenario string `json:"scenario"`
+	Corner   string `json:"corner,omitempty"`
+	Message  string `json:"message"`
+	// Values are the numbers the message shows, in message order.
+	Values []Quantity `json:"values,omitempty"`
+	// Value against Limit, in Unit, when the rule gives both and both are
+	// finite (HasLimit).
+	Value    float64 `json:"value,omitempty"`
+	Limit    float64 `json:"limit,omitempty"`
+	Unit     string  `json:"unit,omitempty"`
+	HasLimit bool    `json:"has_limit,omitempty"`
+	// Nets are the nets the subject connects to.
+	Nets []string `json:"nets,omitempty"`
+	Fix  string   `json:"fix,omitempty"`
+	// Unjudged is true when the rule could not be judged on the device;
+	// Missing then lists the referenced facts that were not known.
+	Unjudged bool     `json:"unjudged,omitempty"`
+	Missing  []string `json:"missing,omitempty"`
+	// Waived is set by ApplyWaivers.
+	Waived       bool        `json:"waived,omitempty"`
+	WaiverReason string      `json:"waiver_reason,omitempty"`
+	WaiverPos    netlist.Pos `json:"waiver_pos,omitempty"`
+	// AlsoIn lists the other cases where the rule is violated on the
+	// device, and UnjudgedIn those where it could not be judged, as
+	// "scenario" or "scenario/corner".
+	AlsoIn     []string `json:"also_in,omitempty"`
+	UnjudgedIn []string `json:"unjudged_in,omitempty"`
+}
+
+// CaseName names a case as AlsoIn writes it: "scenario" or "scenario/corner".
+func CaseName(scenario, corner string) string {
+	if corner == "" {
+		return scenario
+	}
+	return scenario + "/" + corner
+}
+
+// EvalOptions select rules for one evaluation.
+type EvalOptions struct {
+	// Only keeps just these rule ids; Skip drops these. Unknown ids are an
+	// error (see RuleSet.Select).
+	Only, Skip []string
+}
+
+// subjectRef is one subject in one case, ready for the expressions.
+type subjectRef struct {
+	kind  Subject
+	name  string
+	pos   netlist.Pos
+	chain []netlist.Instance
+	nets  []string
+	env   any
+	rv    reflect.Value
+}
+
+// outcome of one rule on one subject in one case.
+type outcome struct {
+	violated, unjudged bool
+	caseIdx            int
+	f                  Finding
+	measure            float64
+}
+
+// Evaluate judges every active rule of set on every applicable subject of
+// every case of a. When several cases violate a rule on one device, one
+// finding is kept, at the case with the largest measure (ties: the first
+// case), listing the other violating cases in AlsoIn; a rule that could not
+// be judged in any case and is violated in none gives one Unjudged
+// finding. Findings are sorted by the device's position, then rule id,
+// then device name.
+func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, error) {
+	if set == nil || a == nil {
+		return nil, errors.New("rules: Evaluate needs a rule set and an analysis")
+	}
+	if len(opts.Only) > 0 || len(opts.Skip) > 0 {
+		s, err := set.Select(opts.Only, opts.Skip)
+		if err != nil {
+			return nil, err
+		}
+		set = s
+	}
+	params := set.paramValues()
+	type key struct {
+		rule, subject, device string
+	}
+	results := map[key][]outcome{}
+	var order []key
+	for ci := range a.Cases {
+		c := &a.Cases[ci]
+		for _, s := range subjects(c, params) {
+			for _, r := range set.Rules {
+				if r.Subject != s.kind || r.c == nil {
+					continue
+				}
+				o, ok := judge(r, s, c, ci)
+				if !ok {
+					continue
+				}
+				k := key{r.ID, string(s.kind), netlist.Key(s.name)}
+				if _, seen := results[k]; !seen {
+					order = append(order, k)
+				}
+				results[k] = append(results[k], o)
+			}
+		}
+	}
+	var out []Finding
+	for _, k := range order {
+		out = append(out, pickWorst(results[k]))
+	}
+	sortFindings(out)
+	return out, nil
+}
+
+// pickWorst folds one device's outcomes over the cases into one finding.
+func pickWorst(os []outcome) Finding {
+	best := -1
+	for i, o := range os {
+		if !o.violated {
+			continue
+		}
+		if best < 0 || o.measure > os[best].measure {
+			best = i
+		}
+	}
+	if best < 0 {
+		// No case violates: the first unjudged case speaks.
+		f := os[0].f
+		for _, o := range os[1:] {
+			f.UnjudgedIn = append(f.UnjudgedIn, CaseName(o.f.Scenario, o.f.Corner))
+		}
+		return f
+	}
+	f := os[best].f
+	for i, o := range os {
+		if i == best {
+			continue
+		}
+		name := CaseName(o.f.Scenario, o.f.Corner)
+		if o.violated {
+			f.AlsoIn = append(f.AlsoIn, name)
+		} else {
+			f.UnjudgedIn = append(f.UnjudgedIn, name)
+		}
+	}
+	return f
+}
+
+func sortFindings(fs []Finding) {
+	sort.SliceStable(fs, func(i, j int) bool {
+		a, b := fs[i], fs[j]
+		if a.Pos != b.Pos {
+			return a.Pos.Before(b.Pos)
+		}
+		if a.Rule != b.Rule {
+			return a.Rule < b.Rule
+		}
+		if a.Device != b.Device {
+			return a.Device < b.Device
+		}
+		return a.Subject < b.Subject
+	})
+}
+
+// subjects lists the subjects of one case with their environments.
+func subjects(c *checks.Case, params map[string]float64) []subjectRef {
+	var out []subjectRef
+	for i := range c.Transistors {
+		t := &c.Transistors[i]
+		env := transistorEnv{Transistor: *t, Scenario: c.Scenario, Corner: c.Corner, Param: params}
+		out = append(out, subjectRef{SubjectTransistor, t.Name, t.Pos, t.Chain,
+			[]string{t.Collector, t.Base, t.Emitter}, env, reflect.ValueOf(env)})
+	}
+	for i := range c.Resistors {
+		r := &c.Resistors[i]
+		env := resistorEnv{Resistor: *r, Scenario: c.Scenario, Corner: c.Corner, Ambient: c.Ambient, Param: params}
+		out = append(out, subjectRef{SubjectResistor, r.Name, r.Pos, r.Chain,
+			[]string{r.NodeA, r.NodeB}, env, reflect.ValueOf(env)})
+	}
+	for i := range c.Nodes {
+		n := &c.Nodes[i]
+		env := nodeEnv{Node: *n, Scenario: c.Scenario, Corner: c.Corner, Ambient: c.Ambient, Param: params}
+		out = append(out, subjectRef{SubjectNode, n.Name, n.Pos, nil, []string{n.Name}, env, reflect.ValueOf(env)})
+	}
+	return out
+}
+
+// judge runs one rule on one subject. ok is false when the rule does not
+// apply or passes.
+func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
+	base := Finding{Rule: r.ID, Severity: r.Severity, Subject: s.kind, Device: s.name, Pos: s.pos,
+		Chain: s.chain, Scenario: c.Scenario, Corner: c.Corner, Nets: s.nets, Fix: r.Fix}
+	unjudged := func(p *program, err error) (outcome, bool) {
+		f := base
+		f.Severity = r.Unjudged
+		f.Unjudged = true
+		reason := errorText(err)
+		if errors.Is(err, errNaN) {
+			if f.Missing = nanFacts(p, s); len(f.Missing) > 0 {
+				reason = strings.Join(f.Missing, ", ") + " not known (NaN)"
+			}
+		}
+		f.Message = fmt.Sprintf("rule %s could not be judged for %s %s: %s", r.ID, s.kind, s.name, reason)
+		return outcome{unjudged: true, caseIdx: ci, f: f}, true
+	}
+	if r.c.applies != nil {
+		v, err := expr.Run(r.c.applies.prog, s.env)
+		if err != nil {
+			return unjudged(r.c.applies, err)
+		}
+		if b, _ := v.(bool); !b {
+			return outcome{}, false
+		}
+	}
+	v, err := expr.Run(r.c.when.prog, s.env)
+	if err != nil {
+		return unjudged(r.c.when, err)
+	}
+	if b, _ := v.(bool); !b {
+		return outcome{}, false
+	}
+	f := base
+	f.Message, f.Values = render(r.c.message, s.env)
+	o = outcome{violated: true, caseIdx: ci}
+	val, vok := runFloat(r.c.value, s.env)
+	lim, lok := runFloat(r.c.limit, s.env)
+	if vok && lok && finite(val) && finite(lim) {
+		f.Value, f.Limit, f.Unit, f.HasLimit = val, lim, r.Unit, true
+	}
+	switch {
+	case r.c.measure != nil:
+		if m, ok := runFloat(r.c.measure, s.env); ok && !math.IsNaN(m) {
+			o.measure = m
+		} else {
+			o.measure = math.Inf(-1)
+		}
+	case f.HasLimit:
+		o.measure = val - lim
+	}
+	o.f = f
+	return o, true
+}
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+func runFloat(p *program, env any) (float64, bool) {
+	if p == nil {
+		return 0, false
+	}
+	v, err := expr.Run(p.prog, env)
+	if err != nil {
+		return 0, false
+	}
+	f, ok := toFloat(v)
+	return f, ok
+}
+
+// nanFacts lists the facts p refers to that are NaN for the subject.
+func nanFacts(p *program, s subjectRef) []string {
+	if p == nil {
+		return nil
+	}
+	idx := factIndex[s.kind]
+	var out []string
+	for _, name := range p.facts {
+		path, ok := idx[name]
+		if !ok {
+			continue
+		}
+		if math.IsNaN(s.rv.FieldByIndex(path).Float()) {
+			out = append(out, name)
+		}
+	}
+	return out
+}
+
+// errorText is the first line of an evaluation error, without expr's
+// location and snippet.
+func errorText(err error) string {
+	var fe *file.Error
+	if errors.As(err, &fe) {
+		if fe.Prev != nil {
+			return fe.Prev.Error()
+		}
+		return fe.Message
+	}
+	msg := err.Error()
+	if i := strings.IndexByte(msg, '\n'); i >= 0 {
+		msg = msg[:i]
+	}
+	return msg
+}
+
+// render fills a message template for one subject.
+func render(ps []piece, env any) (string, []Quantity) {
+	var b strings.Builder
+	var qs []Quantity
+	for _, p := range ps {
+		if !p.isQ {
+			b.WriteString(p.text)
+			continue
+		}
+		v, err := expr.Run(p.prog.prog, env)
+		if err != nil {
+			b.WriteString("?")
+			continue
+		}
+		switch x := v.(type) {
+		case string:
+			b.WriteString(x)
+		case bool:
+			fmt.Fprint(&b, x)
+		default:
+			f, ok := toFloat(v)
+			if !ok {
+				fmt.Fprint(&b, v)
+				continue
+			}
+			switch {
+			case math.IsNaN(f):
+				b.WriteString("unknown")
+			default:
+				b.WriteString(formatValue(f, p.unit))
+			}
+			if finite(f) {
+				q := Quantity{Name: strings.TrimSpace(p.prog.src), Value: f, Unit: p.unit}
+				if p.unit == "%" {
+					q.Value *= 100
+				}
+				qs = append(qs, q)
+			}
+		}
+	}
+	return b.String(), qs
+}
