@@ -13,6 +13,8 @@ package checks
 // One rule therefore serves both polarities.
 
 import (
+	"github.com/biaslint/biaslint/checks/board"
+	"github.com/biaslint/biaslint/checks/solve"
 	"github.com/biaslint/biaslint/netlist"
 )
 
@@ -188,6 +190,8 @@ type Case struct {
 	Transistors []Transistor
 	Resistors   []Resistor
 	Nodes       []Node
+	// Solution is the solved operating point the facts were taken from.
+	Solution *solve.Result
 }
 
 // Analysis is everything checks learned about one circuit.
@@ -196,6 +200,9 @@ type Analysis struct {
 	Circuit *netlist.Circuit
 	// Cases holds the nominal case first, then any others.
 	Cases []Case
+	// Board is what the design says about itself (annotations merged with
+	// a board file): ratings, roles, power ratings and waivers.
+	Board *board.Settings
 	// Notes are located notes and warnings about the analysis (e.g. a
 	// device checked against generic ratings).
 	Notes []*netlist.Error

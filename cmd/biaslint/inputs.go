@@ -19,7 +19,7 @@ var demoFlag = &cli.BoolFlag{
 // input is one netlist to read: a file on disk, or the embedded demo.
 type input struct {
 	name string
-	opts *netlist.Options
+	opts *netlist.LoadOptions
 }
 
 func (in input) read() (*netlist.Circuit, error) {
@@ -32,7 +32,7 @@ func inputsOf(c *cli.Context) ([]input, error) {
 		if c.NArg() > 0 {
 			return nil, badInput(errors.New("biaslint: --demo takes no FILE arguments"))
 		}
-		return []input{{name: demo.Name, opts: &netlist.Options{ReadFile: demoFile}}}, nil
+		return []input{{name: demo.Name, opts: &netlist.LoadOptions{ReadFile: demoFile}}}, nil
 	}
 	if c.NArg() == 0 {
 		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, or use --demo)", c.Command.Name))

@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
-	"math"
 	"strings"
 	"text/tabwriter"
 
@@ -112,8 +111,7 @@ func runOp(c *cli.Context) error {
 func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	opt := solve.Options{}
 	if c.IsSet("temp") {
-		opt.Temp = c.Float64("temp")
-		opt.TempSet = true
+		opt.Temp = solve.Temp(c.Float64("temp"))
 	}
 	res, err := solve.Solve(circ, opt)
 	if err != nil {
@@ -123,24 +121,26 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 		File:        circ.File,
 		Title:       circ.Title,
 		Temperature: res.Temp,
-		Method:      res.Method,
+		Method:      string(res.Method),
 		Iterations:  res.Iterations,
 		Nodes:       map[string]float64{},
 		Sources:     map[string]float64{},
 		BJTs:        []opBJT{},
 	}
-	for _, n := range res.NodeNames {
-		f.Nodes[n] = res.Voltage(n)
-		f.nodeOrder = append(f.nodeOrder, n)
+	for _, n := range res.Nodes {
+		f.Nodes[n.Name] = n.V
+		f.nodeOrder = append(f.nodeOrder, n.Name)
 	}
-	for _, s := range res.Branches {
-		f.Sources[s.Name] = s.Current
+	for _, b := range res.Branches {
+		if b.Kind == 'V' {
+			f.Sources[b.Name] = b.I
+		}
 	}
 	for _, q := range res.BJTs {
 		f.BJTs = append(f.BJTs, opBJT{
 			Name: q.Name, Model: q.Model, Polarity: q.Polarity,
 			VBE: q.VBE, VBC: q.VBC, VCE: q.VCE, IC: q.IC, IB: q.IB, IE: q.IE,
-			Power: q.Power, Region: q.Region, Pos: q.Pos.String(),
+			Power: q.Power, Region: string(q.Region), Pos: q.Pos.String(),
 		})
 	}
 	return f, nil
@@ -162,33 +162,33 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			fmt.Fprintln(w, "  no bipolar transistors")
 		} else {
 			tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-			fmt.Fprintln(tw, "  transistor\tmodel\tregion\tVBE\tVCE\tIC\tIB\tIC/IB\tpower\t")
+			fmt.Fprintln(tw, "  transistor\tmodel\tregion\tVBE\tVCE\tIC\tIB\tIC/IB\tpower")
 			for _, q := range r.BJTs {
-				fmt.Fprintf(tw, "  %s\t%s %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n",
+				fmt.Fprintf(tw, "  %s\t%s %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
 					q.Name, q.Model, p.dim(q.Polarity), regionText(p, q.Region),
 					units.Format(q.VBE, "V"), units.Format(q.VCE, "V"),
 					units.Format(q.IC, "A"), units.Format(q.IB, "A"),
-					forcedBeta(q.IC, q.IB), units.Format(q.Power, "W"))
+					forcedBeta(q), units.Format(q.Power, "W"))
 			}
 			tw.Flush()
 		}
 		w.WriteString("\n")
 		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-		fmt.Fprintln(tw, "  node\tvoltage\t")
+		fmt.Fprintln(tw, "  node\tvoltage")
 		for _, n := range r.nodeOrder {
-			fmt.Fprintf(tw, "  %s\t%s\t\n", n, units.Format(r.Nodes[n], "V"))
+			fmt.Fprintf(tw, "  %s\t%s\n", n, units.Format(r.Nodes[n], "V"))
 		}
 		tw.Flush()
 	}
 }
 
-// forcedBeta prints IC/IB, or "-" when the base current is too small for
-// the ratio to mean anything.
-func forcedBeta(ic, ib float64) string {
-	if math.Abs(ib) < 1e-15 {
+// forcedBeta prints IC/IB, or "-" for a transistor in cutoff, whose
+// leakage currents give no meaningful ratio.
+func forcedBeta(q opBJT) string {
+	if q.Region == "cutoff" || q.IB == 0 {
 		return "-"
 	}
-	return fmt.Sprintf("%.1f", ic/ib)
+	return fmt.Sprintf("%.1f", q.IC/q.IB)
 }
 
 func regionText(p palette, region string) string {
