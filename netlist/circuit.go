@@ -113,7 +113,10 @@ type Model struct {
 	Name   string
 	Type   ModelType
 	Params map[string]float64
-	Pos    Pos
+	// Text holds parameters whose values are words rather than numbers
+	// (vendor fields such as MFG=...), keyed like Params, values as written.
+	Text map[string]string
+	Pos  Pos
 }
 
 // Annotation is a comment annotation "*@kind args..." attached to the
@@ -141,6 +144,9 @@ type Options struct {
 	Temp float64
 	// TempSet reports whether .temp or .options temp= set it.
 	TempSet bool
+	// Temps lists every temperature of the .temp lines, degrees Celsius, in
+	// order; Temp is the first.
+	Temps []float64
 	// TNom is the nominal temperature of model parameters, degrees Celsius
 	// (default 27).
 	TNom float64
