@@ -72,6 +72,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		ErrWriter:       stderr,
 		HideHelpCommand: true,
 		Commands: []*cli.Command{
+			checkCommand(),
 			opCommand(),
 		},
 		// Usage errors are exit status 2, like bad input.

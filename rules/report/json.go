@@ -1,0 +1,116 @@
+package report
+
+import (
+	"encoding/json"
+	"io"
+
+	"github.com/biaslint/biaslint/rules"
+)
+
+// jsonFinding is one finding in the JSON report.
+type jsonFinding struct {
+	Rule     string             `json:"rule"`
+	Severity string             `json:"severity"`
+	Subject  string             `json:"subject"`
+	Device   string             `json:"device"`
+	File     string             `json:"file"`
+	Line     int                `json:"line"`
+	Column   int                `json:"column"`
+	Scenario string             `json:"scenario"`
+	Corner   string             `json:"corner,omitempty"`
+	Message  string             `json:"message"`
+	Values   map[string]float64 `json:"values"`
+	Units    map[string]string  `json:"units,omitempty"`
+	Value    *float64           `json:"value,omitempty"`
+	Limit    *float64           `json:"limit,omitempty"`
+	Unit     string             `json:"unit,omitempty"`
+	Nets     []string           `json:"nets,omitempty"`
+	Fix      string             `json:"fix,omitempty"`
+	Unjudged bool               `json:"unjudged,omitempty"`
+	Missing  []string           `json:"missing,omitempty"`
+	// Cases lists every case in which the rule is violated, worst first.
+	Cases     []string `json:"cases"`
+	Reason    string   `json:"reason,omitempty"`
+	WaiverPos string   `json:"waiver_position,omitempty"`
+}
+
+type jsonNote struct {
+	Severity string `json:"severity"`
+	Position string `json:"position"`
+	Message  string `json:"message"`
+}
+
+type jsonFile struct {
+	File        string        `json:"file"`
+	Title       string        `json:"title"`
+	Transistors int           `json:"transistors"`
+	Findings    []jsonFinding `json:"findings"`
+	Waived      []jsonFinding `json:"waived"`
+	Notes       []jsonNote    `json:"notes"`
+	Summary     Counts        `json:"summary"`
+}
+
+type jsonReport struct {
+	RuleSet string     `json:"ruleset"`
+	Ambient float64    `json:"ambient"`
+	Results []jsonFile `json:"results"`
+	Summary Counts     `json:"summary"`
+}
+
+func toJSON(f rules.Finding) jsonFinding {
+	j := jsonFinding{
+		Rule: f.Rule, Severity: string(f.Severity), Subject: string(f.Subject), Device: f.Device,
+		File: f.Pos.File, Line: f.Pos.Line, Column: f.Pos.Col, Scenario: f.Scenario, Corner: f.Corner,
+		Message: f.Message, Values: map[string]float64{}, Nets: f.Nets, Fix: f.Fix,
+		Unjudged: f.Unjudged, Missing: f.Missing,
+		Cases: append([]string{rules.CaseName(f.Scenario, f.Corner)}, f.AlsoIn...),
+	}
+	for _, q := range f.Values {
+		j.Values[q.Name] = q.Value
+		if q.Unit != "" {
+			if j.Units == nil {
+				j.Units = map[string]string{}
+			}
+			j.Units[q.Name] = q.Unit
+		}
+	}
+	if f.HasLimit {
+		v, l := f.Value, f.Limit
+		j.Value, j.Limit, j.Unit = &v, &l, f.Unit
+	}
+	if f.Waived {
+		j.Reason = f.WaiverReason
+		j.WaiverPos = f.WaiverPos.String()
+	}
+	return j
+}
+
+// JSON writes the machine-readable report: per file its findings, waived
+// findings (with reasons), input notes and counts, then the run's counts.
+// Values are SI; the shape is documented in the README.
+func JSON(w io.Writer, r *Report) error {
+	out := jsonReport{Ambient: r.Ambient, Results: []jsonFile{}}
+	if r.RuleSet != nil {
+		out.RuleSet = r.RuleSet.Name
+	}
+	for i := range r.Files {
+		f := &r.Files[i]
+		jf := jsonFile{File: f.Path, Title: f.Title, Transistors: f.Transistors(),
+			Findings: []jsonFinding{}, Waived: []jsonFinding{}, Notes: []jsonNote{}, Summary: f.Counts()}
+		for _, x := range f.Findings {
+			if x.Waived {
+				jf.Waived = append(jf.Waived, toJSON(x))
+			} else {
+				jf.Findings = append(jf.Findings, toJSON(x))
+			}
+		}
+		for _, n := range f.Notes {
+			jf.Notes = append(jf.Notes, jsonNote{Severity: n.Severity.String(), Position: n.Pos.String(), Message: n.Msg})
+		}
+		out.Results = append(out.Results, jf)
+	}
+	out.Summary = r.Counts()
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(out)
+}

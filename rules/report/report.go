@@ -1,0 +1,148 @@
+// Package report renders the findings of a check run: a compiler-style text
+// report for people, JSON for scripts, and SARIF 2.1.0 for code-review and
+// CI systems. It only formats; every number comes from the findings and the
+// analysis it is given.
+package report
+
+import (
+	"sort"
+	"strings"
+
+	"github.com/biaslint/biaslint/checks"
+	"github.com/biaslint/biaslint/netlist"
+	"github.com/biaslint/biaslint/rules"
+)
+
+// File is the outcome of checking one netlist.
+type File struct {
+	// Path is the netlist as named on the command line.
+	Path  string
+	Title string
+	// Analysis is what checks computed; Findings what the rules found,
+	// waived ones included (Finding.Waived).
+	Analysis *checks.Analysis
+	Findings []rules.Finding
+	// Notes are located notes and warnings about reading the input (the
+	// netlist, its annotations, the board file).
+	Notes []*netlist.Error
+}
+
+// Transistors counts the BJTs of the nominal case.
+func (f *File) Transistors() int {
+	if f.Analysis == nil || len(f.Analysis.Cases) == 0 {
+		return 0
+	}
+	return len(f.Analysis.Cases[0].Transistors)
+}
+
+// Report is one check run over one or more netlists.
+type Report struct {
+	Files []File
+	// RuleSet is the rule set the run used.
+	RuleSet *rules.RuleSet
+	// Ambient is the ambient temperature of the run, C.
+	Ambient float64
+	// Version is the tool's version, for SARIF.
+	Version string
+}
+
+// Counts tallies findings by severity; waived findings count only as waived.
+type Counts struct {
+	Error   int `json:"error"`
+	Warning int `json:"warning"`
+	Note    int `json:"note"`
+	Waived  int `json:"waived"`
+}
+
+// Add counts one finding.
+func (c *Counts) Add(f rules.Finding) {
+	if f.Waived {
+		c.Waived++
+		return
+	}
+	switch f.Severity {
+	case rules.SeverityError:
+		c.Error++
+	case rules.SeverityWarning:
+		c.Warning++
+	default:
+		c.Note++
+	}
+}
+
+// Plus returns the sum of two tallies.
+func (c Counts) Plus(d Counts) Counts {
+	return Counts{c.Error + d.Error, c.Warning + d.Warning, c.Note + d.Note, c.Waived + d.Waived}
+}
+
+// Counts tallies the file's findings.
+func (f *File) Counts() Counts {
+	var c Counts
+	for _, x := range f.Findings {
+		c.Add(x)
+	}
+	return c
+}
+
+// Counts tallies every file's findings.
+func (r *Report) Counts() Counts {
+	var c Counts
+	for i := range r.Files {
+		c = c.Plus(r.Files[i].Counts())
+	}
+	return c
+}
+
+// AtOrAbove reports whether any unwaived finding has severity s or worse.
+func (r *Report) AtOrAbove(s rules.Severity) bool {
+	for _, f := range r.Files {
+		for _, x := range f.Findings {
+			if !x.Waived && x.Severity.Rank() <= s.Rank() {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// TopRule returns the rule that fired most often in the file (unwaived),
+// ties broken by id; "" when nothing fired.
+func (f *File) TopRule() string {
+	n := map[string]int{}
+	for _, x := range f.Findings {
+		if !x.Waived {
+			n[x.Rule]++
+		}
+	}
+	best, bestN := "", 0
+	ids := make([]string, 0, len(n))
+	for id := range n {
+		ids = append(ids, id)
+	}
+	sort.Strings(ids)
+	for _, id := range ids {
+		if n[id] > bestN {
+			best, bestN = id, n[id]
+		}
+	}
+	return best
+}
+
+// Cautions are printed with every text report: the tool is a review aid
+// and defers to measurement and to qualified people.
+var Cautions = []string{
+	"biaslint is a review aid. Its operating points come from device models and nominal values; they do not replace measurement, inspection, or sign-off by a qualified person.",
+	"Boards with mains or other hazardous voltages, or with parts that run hot, must be handled and approved as local electrical codes and licensed practice require.",
+}
+
+// Hazardous reports whether any finding of the file concerns a hazardous
+// voltage or heat, so the cautions can say so plainly.
+func Hazardous(f rules.Finding) bool {
+	id := strings.ToLower(f.Rule)
+	return strings.Contains(id, "hazard") || strings.Contains(id, "dissipation") || strings.Contains(id, "thermal")
+}
+
+// nets describes a finding's nets for the text report.
+func nets(f rules.Finding) string {
+	return strings.Join(f.Nets, " ")
+}

@@ -1,0 +1,155 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/fatih/color"
+
+	"github.com/biaslint/biaslint/netlist/units"
+	"github.com/biaslint/biaslint/rules"
+)
+
+// TextOptions adjust the text report.
+type TextOptions struct {
+	// Color turns on terminal colour (the caller decides: a terminal, not
+	// NO_COLOR, or --color always).
+	Color bool
+	// Notes prints the input notes (reading the netlist, annotations).
+	Notes bool
+}
+
+type paint struct{ on bool }
+
+func (p paint) with(s string, attrs ...color.Attribute) string {
+	if !p.on {
+		return s
+	}
+	c := color.New(attrs...)
+	c.EnableColor()
+	return c.Sprint(s)
+}
+
+func (p paint) severity(s rules.Severity) string {
+	switch s {
+	case rules.SeverityError:
+		return p.with(string(s), color.FgRed, color.Bold)
+	case rules.SeverityWarning:
+		return p.with(string(s), color.FgYellow, color.Bold)
+	}
+	return p.with(string(s), color.FgCyan)
+}
+
+// Text writes the report for people: per file, ordered by position, one
+// block per finding whose first line reads like a compiler's
+// ("file:line:col: severity: message [rule-id]"), then the device and its
+// nets, the value against the limit, the case, and the fix; waived findings
+// after, with their reasons; then a summary line, and the safety cautions.
+func Text(w io.Writer, r *Report, opt TextOptions) error {
+	p := paint{opt.Color}
+	ew := &errWriter{w: w}
+	hazard := false
+	for i := range r.Files {
+		f := &r.Files[i]
+		if i > 0 {
+			ew.printf("\n")
+		}
+		head := f.Path
+		if f.Title != "" {
+			head += "  " + p.with(f.Title, color.Faint)
+		}
+		ew.printf("%s\n", p.with(head, color.Bold))
+		var waived []rules.Finding
+		n := 0
+		for _, x := range f.Findings {
+			if x.Waived {
+				waived = append(waived, x)
+				continue
+			}
+			if Hazardous(x) && x.Severity == rules.SeverityError {
+				hazard = true
+			}
+			n++
+			ew.printf("\n%s: %s: %s %s\n", x.Pos, p.severity(x.Severity), x.Message, p.with("["+x.Rule+"]", color.Faint))
+			ew.printf("    device   %s%s\n", x.Device, chain(x))
+			if len(x.Nets) > 0 {
+				ew.printf("    nets     %s\n", nets(x))
+			}
+			if x.HasLimit {
+				ew.printf("    value    %s against limit %s\n", units.Format(x.Value, x.Unit), units.Format(x.Limit, x.Unit))
+			}
+			ew.printf("    case     %s", rules.CaseName(x.Scenario, x.Corner))
+			if len(x.AlsoIn) > 0 {
+				ew.printf(" (also %s)", strings.Join(x.AlsoIn, ", "))
+			}
+			ew.printf("\n")
+			if x.Fix != "" {
+				ew.printf("    fix      %s\n", x.Fix)
+			}
+		}
+		if n == 0 {
+			ew.printf("\n  no findings\n")
+		}
+		if len(waived) > 0 {
+			ew.printf("\n  waived:\n")
+			for _, x := range waived {
+				ew.printf("  %s: %s %s on %s: %s\n", x.Pos, x.Severity, p.with("["+x.Rule+"]", color.Faint), x.Device, x.Message)
+				ew.printf("      reason  %s (waiver at %s)\n", x.WaiverReason, x.WaiverPos)
+			}
+		}
+		if opt.Notes && len(f.Notes) > 0 {
+			ew.printf("\n  input notes:\n")
+			for _, e := range f.Notes {
+				ew.printf("  %s\n", e.Error())
+			}
+		}
+		c := f.Counts()
+		ew.printf("\n  %s: %d transistors, %s\n", f.Path, f.Transistors(), countText(c))
+	}
+	if len(r.Files) > 1 {
+		ew.printf("\n%d files: %s\n", len(r.Files), countText(r.Counts()))
+	}
+	ew.printf("\n")
+	if hazard {
+		ew.printf("%s\n", p.with("DANGER: findings above report hazardous voltage or heat on this design. Treat the board as dangerous until a qualified person has checked it.", color.FgRed, color.Bold))
+	}
+	for _, s := range Cautions {
+		ew.printf("%s\n", p.with("caution: "+s, color.Faint))
+	}
+	return ew.err
+}
+
+func chain(x rules.Finding) string {
+	if len(x.Chain) == 0 {
+		return ""
+	}
+	var parts []string
+	for _, in := range x.Chain {
+		parts = append(parts, fmt.Sprintf("%s (%s at %s)", in.Name, in.Subckt, in.Pos))
+	}
+	return "  placed by " + strings.Join(parts, " > ")
+}
+
+func plural(n int, word string) string {
+	if n == 1 {
+		return fmt.Sprintf("%d %s", n, word)
+	}
+	return fmt.Sprintf("%d %ss", n, word)
+}
+
+func countText(c Counts) string {
+	return fmt.Sprintf("%s, %s, %s, %d waived", plural(c.Error, "error"), plural(c.Warning, "warning"), plural(c.Note, "note"), c.Waived)
+}
+
+// errWriter keeps the first write error.
+type errWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (e *errWriter) printf(format string, args ...any) {
+	if e.err == nil {
+		_, e.err = fmt.Fprintf(e.w, format, args...)
+	}
+}
