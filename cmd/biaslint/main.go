@@ -74,6 +74,8 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		Commands: []*cli.Command{
 			checkCommand(),
 			opCommand(),
+			rulesCommand(),
+			explainCommand(),
 		},
 		// Usage errors are exit status 2, like bad input.
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
