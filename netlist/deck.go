@@ -28,6 +28,15 @@ func (v Value) String() string {
 	return v.Text
 }
 
+// short returns the value as written, shortened for messages.
+func (v Value) short() string {
+	t := token{kind: tWord, text: v.Text}
+	if v.Braced {
+		t.kind = tExpr
+	}
+	return t.String()
+}
+
 // Param is one name=value pair: an instance parameter, a model parameter, a
 // .param definition, a subcircuit default or an option.
 type Param struct {

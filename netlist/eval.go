@@ -22,6 +22,13 @@ import (
 // other, so that a long chain cannot exhaust the stack.
 const maxEvalDepth = 200
 
+// Limits on one expression, so that the expression parser's recursion and
+// the messages quoting an expression stay small.
+const (
+	maxExprLen     = 4096
+	maxExprNesting = 64
+)
+
 // pdef is one parameter definition in a scope and its evaluation state.
 type pdef struct {
 	v     Value
@@ -282,7 +289,7 @@ func (ev *evaluator) notef(pos Pos, format string, args ...any) {
 func (ev *evaluator) eval(v Value, e *env) (float64, bool) {
 	x, ok := ev.evalRaw(v, e)
 	if ok && (math.IsNaN(x) || math.IsInf(x, 0)) {
-		ev.errorf(v.Pos, "value %s is not a finite number", v)
+		ev.errorf(v.Pos, "value %s is not a finite number", v.short())
 		return 0, false
 	}
 	return x, ok
@@ -321,7 +328,7 @@ func (ev *evaluator) evalRaw(v Value, e *env) (float64, bool) {
 				case "nan", "inf", "infinity":
 					ev.errorf(v.Pos, "bad value %q: not a finite number", t)
 				default:
-					ev.errorf(v.Pos, "undefined parameter %s", t)
+					ev.errorf(v.Pos, "undefined parameter %s", v.short())
 				}
 			}
 			return x, ok
@@ -403,9 +410,27 @@ func (ev *evaluator) lookup(name string, e *env, use Pos) (val float64, ok, foun
 
 // expression evaluates v as an expression.
 func (ev *evaluator) expression(v Value, e *env) (float64, bool) {
+	if len(v.Text) > maxExprLen {
+		ev.errorf(v.Pos, "expression is longer than the limit of %d bytes", maxExprLen)
+		return 0, false
+	}
+	depth, deepest := 0, 0
+	for i := 0; i < len(v.Text); i++ {
+		switch v.Text[i] {
+		case '(', '[', '{':
+			depth++
+			deepest = max(deepest, depth)
+		case ')', ']', '}':
+			depth--
+		}
+	}
+	if deepest > maxExprNesting {
+		ev.errorf(v.Pos, "expression nests parentheses deeper than the limit of %d", maxExprNesting)
+		return 0, false
+	}
 	text, refs, err := preprocess(v.Text)
 	if err != nil {
-		ev.errorf(v.Pos, "bad expression %s: %v", v, err)
+		ev.errorf(v.Pos, "bad expression %s: %v", v.short(), err)
 		return 0, false
 	}
 	vars := map[string]any{}
@@ -422,7 +447,7 @@ func (ev *evaluator) expression(v Value, e *env) (float64, bool) {
 			} else {
 				p.Col += r.off
 			}
-			ev.errorf(p, "undefined parameter %s in %s", v.Text[r.off:r.off+len(r.name)], v)
+			ev.errorf(p, "undefined parameter %s in %s", v.Text[r.off:r.off+len(r.name)], v.short())
 		}
 		if !ok {
 			good = false
@@ -437,19 +462,19 @@ func (ev *evaluator) expression(v Value, e *env) (float64, bool) {
 		opts := append([]expr.Option{expr.Env(vars)}, exprOptions...)
 		prog, err = expr.Compile(text, opts...)
 		if err != nil {
-			ev.errorf(v.Pos, "bad expression %s: %s", v, firstLine(err.Error()))
+			ev.errorf(v.Pos, "bad expression %s: %s", v.short(), firstLine(err.Error()))
 			return 0, false
 		}
 		ev.progs[text] = prog
 	}
 	out, err := expr.Run(prog, vars)
 	if err != nil {
-		ev.errorf(v.Pos, "cannot evaluate %s: %s", v, firstLine(err.Error()))
+		ev.errorf(v.Pos, "cannot evaluate %s: %s", v.short(), firstLine(err.Error()))
 		return 0, false
 	}
 	x, ok := toFloat(out)
 	if !ok {
-		ev.errorf(v.Pos, "expression %s is not a number", v)
+		ev.errorf(v.Pos, "expression %s is not a number", v.short())
 		return 0, false
 	}
 	return x, true

@@ -359,12 +359,12 @@ func (f *flattener) bjt(el *Element, s *ElementStmt, def *Subckt, e *env) bool {
 		case ok0:
 			f.ev.errorf(w0.Pos, "%s: undefined model %s", s.Name.Text, w0.Text)
 		default:
-			f.ev.errorf(x[0].Pos, "%s: expected a model name, found %s", s.Name.Text, x[0])
+			f.ev.errorf(x[0].Pos, "%s: expected a model name, found %s", s.Name.Text, x[0].short())
 		}
 		return false
 	}
 	if len(rest) > 1 {
-		f.ev.errorf(rest[1].Pos, "%s: unexpected %s after the area factor", s.Name.Text, rest[1])
+		f.ev.errorf(rest[1].Pos, "%s: unexpected %s after the area factor", s.Name.Text, rest[1].short())
 		return false
 	}
 	if !f.useModel(el, s, model, m, NPN, PNP) {

@@ -24,16 +24,24 @@ type token struct {
 	pos  Pos
 }
 
-// String returns the token as it would be written.
+// String returns the token as it would be written, shortened for messages.
 func (t token) String() string {
+	s := t.text
+	if len(s) > maxShown {
+		s = clip(s)
+		s = s[1 : len(s)-1]
+	}
 	switch t.kind {
 	case tExpr:
-		return "{" + t.text + "}"
+		return "{" + s + "}"
 	case tString:
-		return `"` + t.text + `"`
+		return `"` + s + `"`
 	}
-	return t.text
+	return s
 }
+
+// maxShown bounds how much of an offending text a message repeats.
+const maxShown = 40
 
 // isSpace reports whether c separates tokens. Commas separate too, so that
 // "SIN(0, 1, 1k)" and "IS=1e-14, BF=200" read as the plain forms.
@@ -137,9 +145,8 @@ func tokenize(s string, file string, line, col int, errs *ErrorList) []token {
 
 // clip shortens s for quoting in a message.
 func clip(s string) string {
-	const n = 40
-	if len(s) > n {
-		cut := n
+	if len(s) > maxShown {
+		cut := maxShown
 		for cut > 0 && !utf8.RuneStart(s[cut]) {
 			cut--
 		}
