@@ -1,0 +1,287 @@
+package device
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/biaslint/biaslint/netlist"
+)
+
+// Polarity is the type of a bipolar transistor: NPN or PNP.
+type Polarity int
+
+// Transistor polarities. The value is the sign that maps terminal
+// quantities to the forward-referenced (NPN-sense) quantities the model
+// equations are written in.
+const (
+	NPN Polarity = 1
+	PNP Polarity = -1
+)
+
+// Sign returns +1 for NPN and −1 for PNP.
+func (p Polarity) Sign() float64 {
+	if p == PNP {
+		return -1
+	}
+	return 1
+}
+
+// String returns "npn" or "pnp".
+func (p Polarity) String() string {
+	if p == PNP {
+		return "pnp"
+	}
+	return "npn"
+}
+
+// BJTParams are the DC Gummel-Poon parameters of a bipolar transistor model,
+// in SI units with temperatures in °C. Infinite VAF, VAR, IKF and IKR are
+// held as +Inf.
+type BJTParams struct {
+	IS   float64 // transport saturation current, A (default 1e-16)
+	BF   float64 // ideal maximum forward beta (default 100)
+	NF   float64 // forward emission coefficient (default 1)
+	VAF  float64 // forward Early voltage, V (default none: +Inf)
+	IKF  float64 // forward beta high-current knee, A (default none: +Inf)
+	ISE  float64 // base-emitter leakage saturation current, A (default 0)
+	NE   float64 // base-emitter leakage emission coefficient (default 1.5)
+	BR   float64 // ideal maximum reverse beta (default 1)
+	NR   float64 // reverse emission coefficient (default 1)
+	VAR  float64 // reverse Early voltage, V (default none: +Inf)
+	IKR  float64 // reverse beta high-current knee, A (default none: +Inf)
+	ISC  float64 // base-collector leakage saturation current, A (default 0)
+	NC   float64 // base-collector leakage emission coefficient (default 2)
+	RB   float64 // base resistance, ohm, taken as constant (default 0)
+	RE   float64 // emitter resistance, ohm (default 0)
+	RC   float64 // collector resistance, ohm (default 0)
+	EG   float64 // energy gap for the temperature dependence of IS, eV (default 1.11)
+	XTI  float64 // temperature exponent of IS (default 3)
+	XTB  float64 // forward and reverse beta temperature exponent (default 0)
+	TNOM float64 // temperature at which the parameters were measured, °C (default 27)
+}
+
+// DefaultBJTParams returns the SPICE-class defaults listed in BJTParams,
+// with TNOM = 27 °C.
+func DefaultBJTParams() BJTParams {
+	inf := math.Inf(1)
+	return BJTParams{
+		IS: 1e-16, BF: 100, NF: 1, VAF: inf, IKF: inf, ISE: 0, NE: 1.5,
+		BR: 1, NR: 1, VAR: inf, IKR: inf, ISC: 0, NC: 2,
+		EG: 1.11, XTI: 3, XTB: 0, TNOM: 27,
+	}
+}
+
+// BJTParamsOf reads the DC Gummel-Poon parameters of m. Absent parameters
+// take their defaults, with TNOM defaulting to tnom (°C); parameters the DC
+// model does not use (capacitances, transit times, ...) are ignored, and so
+// are IRB and RBM: RB is a constant resistance. VAF, VAR, IKF and IKR of
+// zero mean "none", as in SPICE. Out-of-range values are an error.
+func BJTParamsOf(m *netlist.Model, tnom float64) (BJTParams, error) {
+	d := DefaultBJTParams()
+	r := &reader{m: m}
+	p := BJTParams{
+		IS:   r.positive("IS", d.IS),
+		BF:   r.positive("BF", d.BF),
+		NF:   r.positive("NF", d.NF),
+		VAF:  r.infinite("VAF"),
+		IKF:  r.infinite("IKF"),
+		ISE:  r.nonNegative("ISE", d.ISE),
+		NE:   r.positive("NE", d.NE),
+		BR:   r.positive("BR", d.BR),
+		NR:   r.positive("NR", d.NR),
+		VAR:  r.infinite("VAR"),
+		IKR:  r.infinite("IKR"),
+		ISC:  r.nonNegative("ISC", d.ISC),
+		NC:   r.positive("NC", d.NC),
+		RB:   r.nonNegative("RB", d.RB),
+		RE:   r.nonNegative("RE", d.RE),
+		RC:   r.nonNegative("RC", d.RC),
+		EG:   r.positive("EG", d.EG),
+		XTI:  r.get("XTI", d.XTI),
+		XTB:  r.get("XTB", d.XTB),
+		TNOM: r.get("TNOM", tnom),
+	}
+	return p, r.err
+}
+
+// BJT is a Gummel-Poon bipolar transistor instance at one temperature.
+type BJT struct {
+	Polarity Polarity
+	// Params are the model parameters as read, defaults filled in.
+	Params BJTParams
+	// Area is the area factor.
+	Area float64
+	// Temp is the device temperature, °C.
+	Temp float64
+	// Scaled are the parameters in effect at Temp and Area:
+	//
+	//	IS  = Area · IS · f1,            f1 = exp((T/Tnom − 1)·EG/vt(T)) · (T/Tnom)^XTI
+	//	ISE = Area · ISE · f1^(1/NE) · (T/Tnom)^(−XTB)
+	//	ISC = Area · ISC · f1^(1/NC) · (T/Tnom)^(−XTB)
+	//	BF, BR  times (T/Tnom)^XTB
+	//	IKF, IKR times Area;  RB, RE, RC divided by Area
+	//
+	// (Nagel 1975; EG itself is held constant). The others equal Params.
+	Scaled BJTParams
+	// VT is the thermal voltage k·T/q at Temp, V.
+	VT float64
+	// GMin is the conductance across each junction, S.
+	GMin float64
+
+	vcritBE, vcritBC float64
+}
+
+// NewBJT returns the transistor of model m (type npn or pnp) with area
+// factor area at device temperature tempC (°C). opt.TNom is the nominal
+// temperature of a model without TNOM.
+func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
+	if m == nil {
+		return nil, fmt.Errorf("no model")
+	}
+	var pol Polarity
+	switch m.Type {
+	case netlist.NPN:
+		pol = NPN
+	case netlist.PNP:
+		pol = PNP
+	default:
+		return nil, fmt.Errorf("model %s is of type %s, not NPN or PNP", m.Name, upper(m.Type))
+	}
+	p, err := BJTParamsOf(m, opt.TNom)
+	if err != nil {
+		return nil, err
+	}
+	t, tnom, err := checkInstance(m, area, tempC, p.TNOM, opt)
+	if err != nil {
+		return nil, err
+	}
+	s := p
+	f1 := satFactor(t, tnom, p.EG, p.XTI, 1)
+	bfac := math.Pow(t/tnom, p.XTB)
+	s.IS = area * p.IS * f1
+	s.ISE = area * p.ISE * satFactor(t, tnom, p.EG, p.XTI, p.NE) / bfac
+	s.ISC = area * p.ISC * satFactor(t, tnom, p.EG, p.XTI, p.NC) / bfac
+	s.BF = p.BF * bfac
+	s.BR = p.BR * bfac
+	s.IKF = area * p.IKF
+	s.IKR = area * p.IKR
+	s.RB = p.RB / area
+	s.RE = p.RE / area
+	s.RC = p.RC / area
+	if !(s.IS > 0) || math.IsInf(s.IS, 0) || math.IsInf(s.ISE, 0) || math.IsInf(s.ISC, 0) {
+		return nil, fmt.Errorf("model %s: saturation currents at %g °C are out of range (IS = %g)", m.Name, tempC, s.IS)
+	}
+	vt := ThermalVoltage(t)
+	b := &BJT{Polarity: pol, Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin}
+	b.vcritBE = Vcrit(s.NF*vt, s.IS)
+	b.vcritBC = Vcrit(s.NR*vt, s.IS)
+	return b, nil
+}
+
+// BJTEval is the DC state of a transistor at given junction voltages, in
+// terminal quantities (currents into the terminals, voltages V(B)−V(E) and
+// V(B)−V(C) at the internal junctions).
+type BJTEval struct {
+	IC, IB float64 // current into the collector and into the base, A
+	// The conductance Jacobian, S.
+	DICdVBE, DICdVBC float64
+	DIBdVBE, DIBdVBC float64
+	// QB is the normalised base charge.
+	QB float64
+	// Mag is the sum of the magnitudes of the terms that make up IC and
+	// IB, A: IC and IB cannot be computed more accurately than about
+	// machine epsilon times Mag (in saturation IC is a small difference
+	// of large currents).
+	Mag float64
+}
+
+// IE returns the current into the emitter, −(IC + IB).
+func (e BJTEval) IE() float64 { return -(e.IC + e.IB) }
+
+// Eval returns the collector and base currents and their Jacobian at the
+// internal junction voltages vbe = V(B')−V(E') and vbc = V(B')−V(C').
+// In forward-referenced quantities (multiplied by the polarity sign, so
+// that an NPN and a PNP read alike) the Gummel-Poon DC equations are
+//
+//	Ibe = IS·(exp(vbe/(NF·vt)) − 1)        Ibc = IS·(exp(vbc/(NR·vt)) − 1)
+//	Ile = ISE·(exp(vbe/(NE·vt)) − 1)       Ilc = ISC·(exp(vbc/(NC·vt)) − 1)
+//	q1 = 1/(1 − vbc/VAF − vbe/VAR)         q2 = Ibe/IKF + Ibc/IKR
+//	qb = q1/2 · (1 + √(1 + 4·q2))
+//	IC = (Ibe − Ibc)/qb − Ibc/BR − Ilc − GMIN·vbc
+//	IB = Ibe/BF + Ile + Ibc/BR + Ilc + GMIN·(vbe + vbc)
+//
+// with GMIN a conductance across each junction (it adds to the base
+// current and, across B-C, to the collector current). The exponentials are
+// continued linearly beyond a large argument, and where 1 − vbc/VAF −
+// vbe/VAR falls below 0.05 q1 is continued by its tangent, so Eval is
+// finite for every finite input.
+func (b *BJT) Eval(vbe, vbc float64) BJTEval {
+	sg := b.Polarity.Sign()
+	ve, vc := sg*vbe, sg*vbc
+	p := &b.Scaled
+	vt := b.VT
+	ibe, gbe := junction(p.IS, ve, p.NF*vt)
+	ibc, gbc := junction(p.IS, vc, p.NR*vt)
+	ile, gle := junction(p.ISE, ve, p.NE*vt)
+	ilc, glc := junction(p.ISC, vc, p.NC*vt)
+
+	// q1 = 1/d with d = 1 − vc/VAF − ve/VAR.
+	const dmin = 0.05
+	d := 1 - vc/p.VAF - ve/p.VAR
+	var q1, dq1dd float64
+	if d >= dmin {
+		q1 = 1 / d
+		dq1dd = -q1 * q1
+	} else {
+		q1 = 1/dmin + (dmin-d)/(dmin*dmin)
+		dq1dd = -1 / (dmin * dmin)
+	}
+	dq1ve := dq1dd * (-1 / p.VAR)
+	dq1vc := dq1dd * (-1 / p.VAF)
+
+	q2 := ibe/p.IKF + ibc/p.IKR
+	var sq, dsqve, dsqvc float64
+	if arg := 1 + 4*q2; arg > 0 {
+		sq = math.Sqrt(arg)
+		dsqve = 2 * gbe / p.IKF / sq
+		dsqvc = 2 * gbc / p.IKR / sq
+	}
+	qb := q1 * (1 + sq) / 2
+	dqbve := dq1ve*(1+sq)/2 + q1*dsqve/2
+	dqbvc := dq1vc*(1+sq)/2 + q1*dsqvc/2
+
+	it := (ibe - ibc) / qb
+	ic := it - ibc/p.BR - ilc - b.GMin*vc
+	ib := ibe/p.BF + ile + ibc/p.BR + ilc + b.GMin*(ve+vc)
+	return BJTEval{
+		IC:      sg * ic,
+		IB:      sg * ib,
+		DICdVBE: (gbe - it*dqbve) / qb,
+		DICdVBC: (-gbc-it*dqbvc)/qb - gbc/p.BR - glc - b.GMin,
+		DIBdVBE: gbe/p.BF + gle + b.GMin,
+		DIBdVBC: gbc/p.BR + glc + b.GMin,
+		QB:      qb,
+		Mag: math.Abs(ibe)/qb + math.Abs(ibc)/qb + math.Abs(ibe)/p.BF + 2*math.Abs(ibc)/p.BR +
+			math.Abs(ile) + 2*math.Abs(ilc) + b.GMin*(math.Abs(ve)+2*math.Abs(vc)),
+	}
+}
+
+// Limit applies junction-voltage limiting (PNJLim) to both junctions of a
+// Newton iterate: vbe and vbc are the new internal junction voltages, vbeOld
+// and vbcOld the previous limited ones, all in terminal sense. The B-E
+// junction uses NF·vt and the B-C junction NR·vt with their critical
+// voltages. It reports whether either was changed.
+func (b *BJT) Limit(vbe, vbc, vbeOld, vbcOld float64) (float64, float64, bool) {
+	sg := b.Polarity.Sign()
+	p := &b.Scaled
+	ve, l1 := PNJLim(sg*vbe, sg*vbeOld, p.NF*b.VT, b.vcritBE)
+	vc, l2 := PNJLim(sg*vbc, sg*vbcOld, p.NR*b.VT, b.vcritBC)
+	return sg * ve, sg * vc, l1 || l2
+}
+
+// Initial returns the junction voltages (terminal sense) at which Newton
+// first linearises the transistor: the B-E junction at its critical
+// voltage and the B-C junction at zero, as SPICE2 starts its junctions.
+func (b *BJT) Initial() (vbe, vbc float64) {
+	return b.Polarity.Sign() * b.vcritBE, 0
+}

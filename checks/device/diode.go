@@ -1,0 +1,134 @@
+package device
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/biaslint/biaslint/netlist"
+)
+
+// DiodeParams are the DC parameters of a junction diode model, SI units,
+// temperatures in °C.
+type DiodeParams struct {
+	IS   float64 // saturation current, A (default 1e-14)
+	N    float64 // emission coefficient (default 1)
+	RS   float64 // series resistance, ohm (default 0)
+	BV   float64 // reverse breakdown voltage, V, positive (default none: +Inf)
+	IBV  float64 // reverse current at VD = −BV, A (default 1e-3)
+	EG   float64 // energy gap, eV (default 1.11)
+	XTI  float64 // temperature exponent of IS (default 3)
+	TNOM float64 // nominal temperature, °C (default 27)
+}
+
+// DefaultDiodeParams returns the SPICE-class defaults listed in DiodeParams.
+func DefaultDiodeParams() DiodeParams {
+	return DiodeParams{IS: 1e-14, N: 1, RS: 0, BV: math.Inf(1), IBV: 1e-3, EG: 1.11, XTI: 3, TNOM: 27}
+}
+
+// DiodeParamsOf reads the DC diode parameters of m. Absent parameters take
+// their defaults (TNOM defaults to tnom, °C); a BV of zero means no
+// breakdown. Parameters the DC model does not use are ignored.
+func DiodeParamsOf(m *netlist.Model, tnom float64) (DiodeParams, error) {
+	d := DefaultDiodeParams()
+	r := &reader{m: m}
+	p := DiodeParams{
+		IS:   r.positive("IS", d.IS),
+		N:    r.positive("N", d.N),
+		RS:   r.nonNegative("RS", d.RS),
+		BV:   r.infinite("BV"),
+		IBV:  r.positive("IBV", d.IBV),
+		EG:   r.positive("EG", d.EG),
+		XTI:  r.get("XTI", d.XTI),
+		TNOM: r.get("TNOM", tnom),
+	}
+	return p, r.err
+}
+
+// Diode is a junction diode instance at one temperature.
+type Diode struct {
+	// Params are the model parameters as read, defaults filled in.
+	Params DiodeParams
+	Area   float64
+	// Temp is the device temperature, °C.
+	Temp float64
+	// Scaled are the parameters at Temp and Area (Nagel 1975):
+	//
+	//	IS = Area · IS · exp( ((T/Tnom − 1)·EG/vt(T) + XTI·ln(T/Tnom)) / N )
+	//	IBV = Area · IBV;  RS = RS / Area
+	//
+	// BV is not temperature scaled.
+	Scaled DiodeParams
+	// VT is the thermal voltage at Temp, V.
+	VT float64
+	// GMin is the conductance across the junction, S.
+	GMin float64
+
+	vcrit, vcritBV float64
+}
+
+// NewDiode returns the diode of model m (type d) with the given area factor
+// at device temperature tempC (°C).
+func NewDiode(m *netlist.Model, area, tempC float64, opt Options) (*Diode, error) {
+	if m == nil {
+		return nil, fmt.Errorf("no model")
+	}
+	if m.Type != netlist.Diode {
+		return nil, fmt.Errorf("model %s is of type %s, not D", m.Name, upper(m.Type))
+	}
+	p, err := DiodeParamsOf(m, opt.TNom)
+	if err != nil {
+		return nil, err
+	}
+	t, tnom, err := checkInstance(m, area, tempC, p.TNOM, opt)
+	if err != nil {
+		return nil, err
+	}
+	s := p
+	s.IS = area * p.IS * satFactor(t, tnom, p.EG, p.XTI, p.N)
+	s.IBV = area * p.IBV
+	s.RS = p.RS / area
+	if !(s.IS > 0) || math.IsInf(s.IS, 0) {
+		return nil, fmt.Errorf("model %s: saturation current at %g °C is out of range (IS = %g)", m.Name, tempC, s.IS)
+	}
+	vt := ThermalVoltage(t)
+	nvt := s.N * vt
+	return &Diode{Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin,
+		vcrit: Vcrit(nvt, s.IS), vcritBV: Vcrit(nvt, s.IBV)}, nil
+}
+
+// Eval returns the current from anode to cathode through the junction and
+// its conductance at junction voltage vd:
+//
+//	I = IS·(exp(vd/(N·vt)) − 1) − IBV·(exp(−(vd + BV)/(N·vt)) − exp(−BV/(N·vt))) + GMIN·vd
+//
+// The breakdown term is present only when BV is set; it carries IBV at
+// vd = −BV and vanishes at vd = 0. Exponentials are guarded as in BJT.Eval.
+func (d *Diode) Eval(vd float64) (i, g float64) {
+	p := &d.Scaled
+	nvt := p.N * d.VT
+	i, g = junction(p.IS, vd, nvt)
+	if !math.IsInf(p.BV, 1) {
+		e, de := limExp(-(vd + p.BV) / nvt)
+		i -= p.IBV * (e - math.Exp(-p.BV/nvt))
+		g += p.IBV * de / nvt
+	}
+	return i + d.GMin*vd, g + d.GMin
+}
+
+// Limit applies junction limiting to a new Newton iterate vd given the
+// previous limited value vdOld. Near and beyond breakdown (vd below
+// min(0, −BV + 10·N·vt)) the breakdown exponential is limited instead, by
+// PNJLim on the mirrored voltage −(vd + BV).
+func (d *Diode) Limit(vd, vdOld float64) (float64, bool) {
+	p := &d.Scaled
+	nvt := p.N * d.VT
+	if !math.IsInf(p.BV, 1) && vd < math.Min(0, -p.BV+10*nvt) {
+		u, lim := PNJLim(-(vd + p.BV), -(vdOld + p.BV), nvt, d.vcritBV)
+		return -(u + p.BV), lim
+	}
+	return PNJLim(vd, vdOld, nvt, d.vcrit)
+}
+
+// Initial returns the junction voltage at which Newton first linearises the
+// diode: its critical voltage.
+func (d *Diode) Initial() float64 { return d.vcrit }

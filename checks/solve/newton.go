@@ -1,0 +1,424 @@
+package solve
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/biaslint/biaslint/checks/device"
+	"github.com/biaslint/biaslint/netlist"
+)
+
+// Method names the strategy that found an operating point.
+type Method string
+
+// Strategies, in the order they are tried.
+const (
+	MethodNewton         Method = "newton"
+	MethodGminStepping   Method = "gmin-stepping"
+	MethodSourceStepping Method = "source-stepping"
+)
+
+// GMIN-stepping schedule: the shunt from every node to ground starts at
+// gminStart and is divided by a factor that starts at gminFactor, shrinks
+// (square root) after a failed step and is never below gminMinFactor.
+const (
+	gminStart     = 1e-2
+	gminFactor    = 10
+	gminMinFactor = 1.001
+)
+
+// Source-stepping schedule: the source factor grows by a step that starts
+// at srcStart, doubles after a success up to srcMaxStep and is quartered
+// after a failure, giving up below srcMinStep.
+const (
+	srcStart   = 0.1
+	srcMaxStep = 0.5
+	srcMinStep = 1e-6
+)
+
+// ConvergenceError reports that no strategy found an operating point.
+type ConvergenceError struct {
+	// Tried says what was tried and how each attempt ended.
+	Tried []string
+	// Unsettled names the unknowns (V(node), I(source)) that had not met
+	// the tolerances when the last attempt stopped, at most 10.
+	Unsettled []string
+	// Cause is a *SingularError if the equations were singular, else nil.
+	Cause error
+}
+
+func (e *ConvergenceError) Error() string {
+	var b strings.Builder
+	b.WriteString("no DC operating point found: ")
+	if e.Cause != nil {
+		b.WriteString(e.Cause.Error())
+		b.WriteString("; ")
+	}
+	b.WriteString("tried ")
+	b.WriteString(strings.Join(e.Tried, ", then "))
+	if len(e.Unsettled) > 0 {
+		b.WriteString("; not settled: ")
+		b.WriteString(strings.Join(e.Unsettled, ", "))
+	}
+	return b.String()
+}
+
+// Unwrap returns the cause.
+func (e *ConvergenceError) Unwrap() error { return e.Cause }
+
+// work is the state of one solve.
+type work struct {
+	s   *System
+	st  settings
+	lin LinearSolver
+	bjt []*device.BJT
+	dio []*device.Diode
+	// Last (limited) junction voltages and the evaluations there.
+	jb  [][2]float64
+	evB []device.BJTEval
+	jd  []float64
+	evD [][2]float64
+	// lambda scales the independent sources; gshunt is the GMIN-stepping
+	// conductance from every node to ground.
+	lambda, gshunt float64
+	rhs, xnew      []float64
+	res, mag       []float64
+	iters          int
+	// bad are the unknowns that failed a test in the last iteration.
+	bad      []int
+	singular *SingularError
+}
+
+// devices builds the device instances at their temperatures.
+func (s *System) devices(opt Options, st settings) ([]*device.BJT, []*device.Diode, error) {
+	c := s.circuit
+	dopt := device.Options{TNom: c.Options.TNom, GMin: st.gmin}
+	var errs netlist.ErrorList
+	temp := func(el *elem) float64 {
+		if t, ok := opt.DeviceTemp[netlist.Key(el.e.Name)]; ok {
+			return t
+		}
+		if t, ok := el.e.Params["temp"]; ok {
+			return t
+		}
+		return st.temp + el.e.Params["dtemp"]
+	}
+	bjts := make([]*device.BJT, len(s.bjts))
+	for i, el := range s.bjts {
+		b, err := device.NewBJT(el.model, el.value, temp(el), dopt)
+		if err != nil {
+			errs.Addf(el.e.Pos, "%s: %v", el.e.Name, err)
+		}
+		bjts[i] = b
+	}
+	dios := make([]*device.Diode, len(s.diodes))
+	for i, el := range s.diodes {
+		d, err := device.NewDiode(el.model, el.value, temp(el), dopt)
+		if err != nil {
+			errs.Addf(el.e.Pos, "%s: %v", el.e.Name, err)
+		}
+		dios[i] = d
+	}
+	return bjts, dios, errs.Err()
+}
+
+// newWork resolves the options and builds the devices and workspace of
+// one solve.
+func (s *System) newWork(opt Options) (*work, error) {
+	st, err := s.settings(opt)
+	if err != nil {
+		return nil, err
+	}
+	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1}
+	if w.lin == nil {
+		w.lin = NewDenseLU()
+	}
+	if w.bjt, w.dio, err = s.devices(opt, st); err != nil {
+		return nil, err
+	}
+	nb, nd := len(s.bjts), len(s.diodes)
+	w.jb, w.evB = make([][2]float64, nb), make([]device.BJTEval, nb)
+	w.jd, w.evD = make([]float64, nd), make([][2]float64, nd)
+	w.rhs, w.xnew = make([]float64, s.n), make([]float64, s.n)
+	w.res, w.mag = make([]float64, s.n), make([]float64, s.n)
+	return w, nil
+}
+
+// Solve finds the DC operating point: plain Newton first, then GMIN
+// stepping, then source stepping. It returns a *ConvergenceError if all
+// fail, and never returns a result with a non-finite value.
+func (s *System) Solve(opt Options) (*Result, error) {
+	w, err := s.newWork(opt)
+	if err != nil {
+		return nil, err
+	}
+	st := w.st
+	x0, warm := s.guess(opt.Guess)
+	x := append([]float64(nil), x0...)
+	var tried []string
+	if w.newton(x, !warm, st.maxIter) {
+		return s.result(w, x, MethodNewton), nil
+	}
+	tried = append(tried, fmt.Sprintf("newton (%d iterations)", w.iters))
+
+	copy(x, x0)
+	ok, msg := w.gminStepping(x, !warm)
+	if ok {
+		return s.result(w, x, MethodGminStepping), nil
+	}
+	tried = append(tried, msg)
+
+	copy(x, x0)
+	ok, msg = w.sourceStepping(x)
+	if ok {
+		return s.result(w, x, MethodSourceStepping), nil
+	}
+	tried = append(tried, msg)
+
+	ce := &ConvergenceError{Tried: tried}
+	if w.singular != nil {
+		w.singular.Name = s.unknownName(w.singular.Index)
+		ce.Cause = w.singular
+	}
+	for i, u := range w.bad {
+		if i == 10 {
+			break
+		}
+		ce.Unsettled = append(ce.Unsettled, s.unknownName(u))
+	}
+	return nil, ce
+}
+
+func (s *System) unknownName(i int) string {
+	if i < 0 || i >= len(s.names) {
+		return ""
+	}
+	return s.names[i]
+}
+
+// guess returns the starting vector: zero, or the values of a previous
+// result matched by node and element name.
+func (s *System) guess(g *Result) ([]float64, bool) {
+	x := make([]float64, s.n)
+	if g == nil {
+		return x, false
+	}
+	for i, nm := range s.nodeNames {
+		x[i] = g.Voltage[netlist.Key(nm)]
+	}
+	for _, el := range s.elems {
+		for t, in := range el.inner {
+			if in >= s.nExt {
+				x[in] = volt(x, el.nodes[t])
+			}
+		}
+		if el.br >= 0 {
+			x[el.br] = g.Current[netlist.Key(el.e.Name)]
+		}
+	}
+	for _, v := range x {
+		if !finite(v) {
+			return make([]float64, s.n), false
+		}
+	}
+	return x, true
+}
+
+// evaluate sets the junction voltages of every device from x, limited
+// against the previous ones unless first, and evaluates the devices there.
+// On the first iteration of a cold start the junctions are placed at their
+// initial voltages instead. It reports whether any junction was limited or
+// placed.
+func (w *work) evaluate(x []float64, first, cold bool) bool {
+	limited := false
+	for j, b := range w.bjt {
+		vbe, vbc := w.junctions(j, x)
+		switch {
+		case first && cold:
+			vbe, vbc = b.Initial()
+			limited = true
+		case !first:
+			var l bool
+			vbe, vbc, l = b.Limit(vbe, vbc, w.jb[j][0], w.jb[j][1])
+			limited = limited || l
+		}
+		w.jb[j] = [2]float64{vbe, vbc}
+		w.evB[j] = b.Eval(vbe, vbc)
+	}
+	for j, d := range w.dio {
+		vd := w.diodeV(j, x)
+		switch {
+		case first && cold:
+			vd = d.Initial()
+			limited = true
+		case !first:
+			var l bool
+			vd, l = d.Limit(vd, w.jd[j])
+			limited = limited || l
+		}
+		w.jd[j] = vd
+		i, g := d.Eval(vd)
+		w.evD[j] = [2]float64{i, g}
+	}
+	return limited
+}
+
+// newton runs Newton-Raphson from x for at most maxIter linear solves,
+// leaving the solution in x. cold places the junctions at their initial
+// voltages for the first linearisation. It reports convergence; on failure
+// w.bad holds the unknowns that had not settled.
+func (w *work) newton(x []float64, cold bool, maxIter int) bool {
+	s := w.s
+	settled := false
+	for k := 0; ; k++ {
+		limited := w.evaluate(x, k == 0, cold)
+		if k > 0 && settled && !limited && w.residualOK(x) {
+			w.bad = w.bad[:0]
+			return true
+		}
+		if k == maxIter {
+			return false
+		}
+		w.lin.Clear(s.n)
+		for i := range w.rhs {
+			w.rhs[i] = 0
+		}
+		m := &matrixSink{lin: w.lin, rhs: w.rhs}
+		w.stampLinear(m)
+		w.stampDevices(m, nil, true)
+		w.iters++
+		if err := w.lin.Factor(); err != nil {
+			var se *SingularError
+			if errors.As(err, &se) && w.singular == nil {
+				w.singular = se
+			}
+			w.bad = w.bad[:0]
+			return false
+		}
+		if err := w.lin.Solve(w.xnew, w.rhs); err != nil {
+			return false
+		}
+		for i, v := range w.xnew {
+			if !finite(v) {
+				w.bad = append(w.bad[:0], i)
+				return false
+			}
+		}
+		settled = w.updateOK(w.xnew, x)
+		copy(x, w.xnew)
+	}
+}
+
+// updateOK tests the update from x to xn against the tolerances, noting
+// the unknowns that fail in w.bad.
+func (w *work) updateOK(xn, x []float64) bool {
+	w.bad = w.bad[:0]
+	for i := range xn {
+		tol := w.st.abstol
+		if i < w.s.nNodes {
+			tol = w.st.vntol
+		}
+		tol += w.st.reltol * math.Max(math.Abs(xn[i]), math.Abs(x[i]))
+		if math.Abs(xn[i]-x[i]) > tol {
+			w.bad = append(w.bad, i)
+		}
+	}
+	return len(w.bad) == 0
+}
+
+// residualOK evaluates F(x) = A·x − b + i(x) with the devices as last
+// evaluated (at x, when no junction was limited) and tests Kirchhoff's law
+// at every node, |F_i| ≤ ABSTOL + 64·ε·Σ|terms|, and every branch equation
+// against VNTOL likewise. The terms include each device's rounding scale
+// (see stampDevices). Failing unknowns go to w.bad.
+func (w *work) residualOK(x []float64) bool {
+	for i := range w.res {
+		w.res[i], w.mag[i] = 0, 0
+	}
+	r := &residualSink{x: x, r: w.res, m: w.mag}
+	w.stampLinear(r)
+	w.stampDevices(r, x, false)
+	w.bad = w.bad[:0]
+	const floor = 64 * 0x1p-52
+	for i, v := range w.res {
+		tol := w.st.abstol
+		if i >= w.s.nNodes {
+			tol = w.st.vntol
+		}
+		if math.Abs(v) > tol+floor*w.mag[i] {
+			w.bad = append(w.bad, i)
+		}
+	}
+	return len(w.bad) == 0
+}
+
+// gminStepping solves with a conductance from every node to ground that
+// starts at gminStart and is reduced to zero step by step, each step
+// starting from the last solution. It reports success, or a description
+// of where it stalled.
+func (w *work) gminStepping(x []float64, cold bool) (bool, string) {
+	defer func() { w.gshunt = 0 }()
+	prev := make([]float64, len(x))
+	g, good, factor := gminStart, 0.0, float64(gminFactor)
+	maxIter := min(w.st.maxIter, stepIter)
+	for step := 1; step <= w.st.maxSteps; step++ {
+		w.gshunt = g
+		if w.newton(x, cold, maxIter) {
+			cold = false
+			copy(prev, x)
+			if g == 0 {
+				return true, ""
+			}
+			good = g
+			g /= factor
+			if g <= w.st.gmin {
+				g = 0
+			}
+			continue
+		}
+		if good == 0 {
+			return false, fmt.Sprintf("gmin stepping (no solution even with %.3g S from every node to ground)", g)
+		}
+		copy(x, prev)
+		factor = math.Sqrt(factor)
+		if factor < gminMinFactor {
+			return false, fmt.Sprintf("gmin stepping (stalled at %.3g S after %d steps)", good, step)
+		}
+		g = good / factor
+	}
+	return false, fmt.Sprintf("gmin stepping (step limit %d reached at %.3g S)", w.st.maxSteps, good)
+}
+
+// sourceStepping ramps every independent source from zero, where the
+// solution is all zeros, to its full value, each step starting from the
+// last solution. It reports success, or a description of where it stalled.
+func (w *work) sourceStepping(x []float64) (bool, string) {
+	defer func() { w.lambda = 1 }()
+	for i := range x {
+		x[i] = 0
+	}
+	// At zero sources the solution is all zeros: every device is unbiased.
+	prev := make([]float64, len(x))
+	good, step := 0.0, srcStart
+	maxIter := min(w.st.maxIter, stepIter)
+	for n := 1; n <= w.st.maxSteps; n++ {
+		w.lambda = math.Min(1, good+step)
+		if w.newton(x, false, maxIter) {
+			copy(prev, x)
+			good = w.lambda
+			if good == 1 {
+				return true, ""
+			}
+			step = math.Min(2*step, srcMaxStep)
+			continue
+		}
+		copy(x, prev)
+		step /= 4
+		if step < srcMinStep {
+			return false, fmt.Sprintf("source stepping (stalled at %.4g%% of the source values after %d steps)", 100*good, n)
+		}
+	}
+	return false, fmt.Sprintf("source stepping (step limit %d reached at %.4g%% of the source values)", w.st.maxSteps, 100*good)
+}

@@ -1,0 +1,111 @@
+package solve
+
+import (
+	"fmt"
+	"math"
+)
+
+// Default tolerances and limits (SPICE-class values).
+const (
+	DefaultRelTol   = 1e-3  // relative tolerance of the Newton update
+	DefaultVNTol    = 1e-6  // absolute voltage tolerance, V
+	DefaultAbsTol   = 1e-12 // absolute current tolerance, A (update and KCL residual)
+	DefaultGMin     = 1e-12 // junction conductance, S, if neither Options nor the circuit sets one
+	DefaultMaxIter  = 150   // Newton iterations per attempt
+	DefaultMaxSteps = 100   // steps per GMIN- or source-stepping schedule
+	// stepIter caps the Newton iterations of one stepping step.
+	stepIter = 60
+)
+
+// Options control a DC solve. The zero value means "all defaults": every
+// numeric field of zero takes its default, and a nil Temp takes the
+// circuit's temperature.
+type Options struct {
+	// Temp is the circuit temperature, °C; nil means c.Options.Temp.
+	Temp *float64
+	// DeviceTemp overrides the temperature (°C) of single devices, keyed by
+	// netlist.Key of the flat element name ("x1.q2"). Without an entry a
+	// device takes its instance parameter temp, else the circuit
+	// temperature plus its instance parameter dtemp.
+	DeviceTemp map[string]float64
+	// GMin is the conductance across each junction, S; zero means
+	// c.Options.GMin, or DefaultGMin if that is not positive.
+	GMin float64
+	// RelTol, VNTol and AbsTol are the convergence tolerances; zero means
+	// DefaultRelTol, DefaultVNTol, DefaultAbsTol.
+	RelTol, VNTol, AbsTol float64
+	// MaxIter caps the iterations of plain Newton; zero means
+	// DefaultMaxIter. Each step of a stepping schedule is capped at the
+	// smaller of MaxIter and 60.
+	MaxIter int
+	// MaxSteps caps the steps of each stepping schedule; zero means
+	// DefaultMaxSteps.
+	MaxSteps int
+	// Guess, if not nil, is a previous result of the same System whose node
+	// voltages and branch currents start Newton (a warm start for sweeps).
+	// Without it every solve starts from zero with the junctions at their
+	// critical voltages, so the same input always gives the same bits.
+	Guess *Result
+	// Linear is the linear solver; nil means a new DenseLU.
+	Linear LinearSolver
+}
+
+// Temp returns a pointer to c, for Options.Temp.
+func Temp(c float64) *float64 { return &c }
+
+// settings are Options with the defaults resolved.
+type settings struct {
+	temp                  float64
+	gmin                  float64
+	reltol, vntol, abstol float64
+	maxIter, maxSteps     int
+}
+
+func positiveOr(v, def float64, name string) (float64, error) {
+	switch {
+	case v == 0:
+		return def, nil
+	case v > 0 && !math.IsInf(v, 1):
+		return v, nil
+	}
+	return 0, fmt.Errorf("option %s = %g must be a positive finite number", name, v)
+}
+
+func (s *System) settings(opt Options) (settings, error) {
+	var st settings
+	st.temp = s.circuit.Options.Temp
+	if opt.Temp != nil {
+		st.temp = *opt.Temp
+	}
+	if math.IsNaN(st.temp) || math.IsInf(st.temp, 0) {
+		return st, fmt.Errorf("temperature %g °C is not a finite number", st.temp)
+	}
+	gdef := DefaultGMin
+	if g := s.circuit.Options.GMin; g > 0 && !math.IsInf(g, 1) {
+		gdef = g
+	}
+	var err error
+	if st.gmin, err = positiveOr(opt.GMin, gdef, "GMin"); err != nil {
+		return st, err
+	}
+	if st.reltol, err = positiveOr(opt.RelTol, DefaultRelTol, "RelTol"); err != nil {
+		return st, err
+	}
+	if st.vntol, err = positiveOr(opt.VNTol, DefaultVNTol, "VNTol"); err != nil {
+		return st, err
+	}
+	if st.abstol, err = positiveOr(opt.AbsTol, DefaultAbsTol, "AbsTol"); err != nil {
+		return st, err
+	}
+	st.maxIter, st.maxSteps = DefaultMaxIter, DefaultMaxSteps
+	if opt.MaxIter < 0 || opt.MaxSteps < 0 {
+		return st, fmt.Errorf("options MaxIter = %d and MaxSteps = %d must not be negative", opt.MaxIter, opt.MaxSteps)
+	}
+	if opt.MaxIter > 0 {
+		st.maxIter = opt.MaxIter
+	}
+	if opt.MaxSteps > 0 {
+		st.maxSteps = opt.MaxSteps
+	}
+	return st, nil
+}
