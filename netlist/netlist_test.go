@@ -317,3 +317,12 @@ func TestNotesReachable(t *testing.T) {
 		t.Errorf("circuit notes %v", c.Notes)
 	}
 }
+
+func TestDefinitionNestingLimit(t *testing.T) {
+	src := "nested definitions\n" + strings.Repeat(".subckt S a\n", 40) + "R1 a 0 1\n" + strings.Repeat(".ends\n", 40) + "R2 b 0 1\n"
+	d, err := Parse("n.cir", []byte(src), nil)
+	mustMention(t, err, "n.cir:34:1", "nested deeper than the limit of 32")
+	if len(d.Top.Elements) != 1 || d.Top.Elements[0].Name.Text != "R2" {
+		t.Errorf("top level after the skipped definition: %v", d.Top.Elements)
+	}
+}

@@ -36,6 +36,9 @@ func Parse(filename string, src []byte, opts *LoadOptions) (*Deck, error) {
 	for i := range r.out {
 		p.logical(&r.out[i])
 	}
+	if p.skip > 0 {
+		p.errs.Addf(Pos{File: filename, Line: 1, Col: 1}, "a .subckt nested too deeply is never closed with .ends")
+	}
 	for s := p.cur; s != d.Top && s != nil; s = s.Parent {
 		p.errs.Addf(s.Pos, ".subckt %s is never closed with .ends", s.Name.Text)
 	}
@@ -65,6 +68,8 @@ type parser struct {
 	d      *Deck
 	errs   *ErrorList
 	cur    *Subckt
+	depth  int // nesting of the definition being read
+	skip   int // nesting inside a definition too deep to read
 	n, max int // element lines read, and the limit
 }
 
@@ -190,6 +195,20 @@ func (p *parser) logical(l *logical) {
 		p.errs.Addf(t.pos, "expected an element or a dot statement, found %s", t)
 		return
 	}
+	if p.skip > 0 {
+		// Inside a definition nested too deeply: only match .subckt/.ends.
+		switch strings.ToLower(t.text) {
+		case ".subckt", ".macro":
+			p.skip++
+		case ".ends", ".eom":
+			p.skip--
+		}
+		return
+	}
+	if strings.EqualFold(t.text, ".title") {
+		p.d.Title, p.d.TitlePos = strings.TrimSpace(l.raw[len(t.text):]), t.pos
+		return
+	}
 	if strings.HasPrefix(t.text, ".") {
 		p.dot(l.toks)
 		return
@@ -271,12 +290,6 @@ func (p *parser) dot(toks []token) {
 			}
 			p.d.Globals = append(p.d.Globals, Word{it.tok.text, it.tok.pos})
 		}
-	case ".title":
-		var w []string
-		for _, t := range toks[1:] {
-			w = append(w, t.String())
-		}
-		p.d.Title, p.d.TitlePos = strings.Join(w, " "), toks[0].pos
 	default:
 		p.errs.Notef(toks[0].pos, "unknown statement %s is ignored", toks[0].text)
 	}
@@ -284,6 +297,12 @@ func (p *parser) dot(toks []token) {
 
 // subckt opens a definition: .subckt NAME ports [params:] [a=1 ...].
 func (p *parser) subckt(kw token, its []item) {
+	if p.depth >= p.d.opts.MaxSubcktDepth {
+		p.errs.Addf(kw.pos, "subcircuit definitions nested deeper than the limit of %d; this one is skipped", p.d.opts.MaxSubcktDepth)
+		p.skip = 1
+		return
+	}
+	p.depth++
 	if len(its) == 0 || its[0].kind != iValue || its[0].tok.kind != tWord {
 		p.errs.Addf(kw.pos, "%s needs a name", kw.text)
 		// Open an anonymous definition anyway so its .ends matches.
@@ -334,6 +353,7 @@ func (p *parser) ends(kw token, its []item) {
 		p.errs.Warnf(its[0].tok.pos, ".ends %s closes subcircuit %s", its[0].tok.text, p.cur.Name.Text)
 	}
 	p.cur = p.cur.Parent
+	p.depth--
 }
 
 // model reads .model NAME TYPE [(] name=value ... [)].

@@ -63,6 +63,7 @@ func (o *LoadOptions) withDefaults() LoadOptions {
 type logical struct {
 	toks []token
 	ann  *Annotation
+	raw  string // the first physical line, blanks trimmed
 }
 
 // reader turns files into a stream of logical lines, resolving includes.
@@ -282,7 +283,7 @@ func (f *fileState) line(ln string, lineNo int) {
 		}
 		toks := tokenize(trimmed, f.name, lineNo, col, r.errs)
 		if len(toks) > 0 {
-			f.pending = &logical{toks: toks}
+			f.pending = &logical{toks: toks, raw: strings.TrimSpace(trimmed)}
 		}
 	}
 }
