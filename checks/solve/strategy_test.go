@@ -80,3 +80,32 @@ func BenchmarkSolveTwoStage(b *testing.B) {
 		}
 	}
 }
+
+func TestDiodeSeriesResistanceAndSubstrate(t *testing.T) {
+	b := newBuilder()
+	b.model("dm", netlist.Diode, map[string]float64{"IS": 1e-14, "N": 1.1, "RS": 10})
+	npnModel(b, nil)
+	b.V("V1", "in", "0", 5)
+	b.R("R1", "in", "a", 1e3)
+	b.D("D1", "a", "0", "dm")
+	b.R("RB", "in", "b", 430e3)
+	b.R("RC", "in", "c", 1e3)
+	q := b.add('Q', "Q1", 0, "c", "b", "0", "sub") // substrate node used nowhere else
+	q.Model, q.Area = "qn", 1
+	r := mustSolve(t, b.c, Options{})
+	d := r.Diodes[0]
+	// Shockley's law plus Ohm's law across RS: V = N·vt·ln(I/IS + 1) + I·RS
+	// (GMIN's 1e-12 S is negligible at milliamperes).
+	want := 1.1*vt27*math.Log1p(d.I/1e-14) + d.I*10
+	if math.Abs(d.V-want) > 1e-6 {
+		t.Errorf("V(D1) = %.7f, Shockley + RS drop %.7f", d.V, want)
+	}
+	for _, nv := range r.Nodes {
+		if nv.Name == "sub" {
+			t.Errorf("substrate node listed: %v", r.Nodes)
+		}
+	}
+	if r.BJTs[0].Region != "active" {
+		t.Errorf("Q1 region %s", r.BJTs[0].Region)
+	}
+}
