@@ -36,7 +36,7 @@ var (
 		Name:  "board",
 		Usage: "board `FILE` (YAML) with ratings, device roles, power ratings and waivers for the netlist",
 	}
-	ambientFlag = &cli.Float64Flag{
+	ambientFlag = &cli.StringFlag{
 		Name:  "ambient",
 		Usage: "ambient temperature in `C` for derating and junction temperature (default: the board file's, else 25)",
 	}
@@ -204,13 +204,11 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 		run.report.RuleSet = sets[0]
 	}
 	opt := checks.Options{Parts: parts}
-	if c.IsSet("ambient") {
-		a := c.Float64("ambient")
-		opt.Ambient = &a
+	if opt.Ambient, err = tempOf(c, "ambient"); err != nil {
+		return nil, err
 	}
-	if c.IsSet("temp") {
-		t := c.Float64("temp")
-		opt.Temp = &t
+	if opt.Temp, err = tempOf(c, "temp"); err != nil {
+		return nil, err
 	}
 	var problems []string
 	for _, in := range inputs {

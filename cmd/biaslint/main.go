@@ -63,7 +63,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 }
 
 func newApp(stdout, stderr io.Writer) *cli.App {
-	return &cli.App{
+	app := &cli.App{
 		Name:  "biaslint",
 		Usage: "solve and judge the DC bias of every BJT in a netlist",
 		Description: "biaslint reads SPICE-syntax netlists, solves each bipolar transistor's DC operating point " +
@@ -83,4 +83,11 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		},
 		ExitErrHandler: func(c *cli.Context, err error) {},
 	}
+	for _, cmd := range app.Commands {
+		name := cmd.Name
+		cmd.OnUsageError = func(c *cli.Context, err error, isSubcommand bool) error {
+			return badInput(fmt.Errorf("biaslint %s: %v (see 'biaslint %s --help')", name, err, name))
+		}
+	}
+	return app
 }

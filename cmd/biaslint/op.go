@@ -109,10 +109,11 @@ func runOp(c *cli.Context) error {
 
 // solveOp solves one circuit and converts the result to the report shape.
 func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
-	opt := solve.Options{}
-	if c.IsSet("temp") {
-		opt.Temp = solve.Temp(c.Float64("temp"))
+	t, err := tempOf(c, "temp")
+	if err != nil {
+		return opFile{}, err
 	}
+	opt := solve.Options{Temp: t}
 	res, err := solve.Solve(circ, opt)
 	if err != nil {
 		return opFile{}, err

@@ -4,8 +4,11 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
+	"strconv"
+	"strings"
 
 	"github.com/fatih/color"
 	"github.com/mattn/go-isatty"
@@ -25,11 +28,23 @@ var (
 		Aliases: []string{"o"},
 		Usage:   "write the report to `FILE` (atomically: a failed run leaves nothing half-written)",
 	}
-	tempFlag = &cli.Float64Flag{
+	tempFlag = &cli.StringFlag{
 		Name:  "temp",
 		Usage: "circuit temperature in `C` (overrides .temp and .options temp=)",
 	}
 )
+
+// tempOf reads a temperature flag in degrees Celsius; nil when not given.
+func tempOf(c *cli.Context, name string) (*float64, error) {
+	if !c.IsSet(name) {
+		return nil, nil
+	}
+	v, err := strconv.ParseFloat(strings.TrimSuffix(strings.TrimSpace(c.String(name)), "C"), 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) || v < -273.15 || v > 1000 {
+		return nil, badInput(fmt.Errorf("biaslint: --%s %q is not a temperature in C (e.g. --%s 40)", name, c.String(name), name))
+	}
+	return &v, nil
+}
 
 // useColor decides whether text output is coloured: --color always/never
 // win; auto colours only a terminal and honours NO_COLOR.

@@ -105,7 +105,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			}
 		}
 		c := f.Counts()
-		ew.printf("\n  %s: %d transistors, %s\n", f.Path, f.Transistors(), countText(c))
+		ew.printf("\n  %s: %s, %s\n", f.Path, plural(f.Transistors(), "transistor"), countText(c))
 	}
 	if len(r.Files) > 1 {
 		ew.printf("\n%d files: %s\n", len(r.Files), countText(r.Counts()))

@@ -1,0 +1,151 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+)
+
+// checkJSON is the part of `check --format json` the tests read.
+type checkJSON struct {
+	Results []struct {
+		File     string `json:"file"`
+		Findings []struct {
+			Rule     string             `json:"rule"`
+			Severity string             `json:"severity"`
+			Device   string             `json:"device"`
+			Line     int                `json:"line"`
+			Column   int                `json:"column"`
+			Scenario string             `json:"scenario"`
+			Message  string             `json:"message"`
+			Values   map[string]float64 `json:"values"`
+		} `json:"findings"`
+		Waived []struct {
+			Rule   string `json:"rule"`
+			Device string `json:"device"`
+			Reason string `json:"reason"`
+		} `json:"waived"`
+	} `json:"results"`
+	Summary map[string]int `json:"summary"`
+}
+
+func checkJSONOf(t *testing.T, args ...string) (checkJSON, int) {
+	t.Helper()
+	out, errs, code := runCLI(t, append([]string{"check", "--format", "json"}, args...)...)
+	var r checkJSON
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatalf("check %v: not JSON (%v); stderr: %s", args, err, errs)
+	}
+	return r, code
+}
+
+func rulesFired(r checkJSON) []string {
+	set := map[string]bool{}
+	for _, f := range r.Results {
+		for _, x := range f.Findings {
+			set[x.Rule] = true
+		}
+	}
+	var ids []string
+	for id := range set {
+		ids = append(ids, id)
+	}
+	sort.Strings(ids)
+	return ids
+}
+
+// Every default rule has a netlist of our own that must trigger it
+// (testdata/check/RULE.bad.cir, with the hand estimate in its comments)
+// and a corrected twin that must not (RULE.good.cir).
+func TestDefaultRulesTriggerAndTwin(t *testing.T) {
+	bad, _ := filepath.Glob("testdata/check/*.bad.cir")
+	if len(bad) < 13 {
+		t.Fatalf("found %d trigger netlists, want one per default rule (13)", len(bad))
+	}
+	for _, path := range bad {
+		rule := strings.TrimSuffix(filepath.Base(path), ".bad.cir")
+		t.Run(rule, func(t *testing.T) {
+			r, code := checkJSONOf(t, path)
+			if !contains(rulesFired(r), rule) {
+				t.Errorf("%s: %s did not fire; fired %v", path, rule, rulesFired(r))
+			}
+			if code == exitBadInput {
+				t.Errorf("%s: exit status 2", path)
+			}
+			twin := strings.Replace(path, ".bad.cir", ".good.cir", 1)
+			if _, err := os.Stat(twin); err != nil {
+				t.Fatalf("no corrected twin %s", twin)
+			}
+			r, code = checkJSONOf(t, twin)
+			if contains(rulesFired(r), rule) {
+				t.Errorf("%s: %s fired on the corrected twin", twin, rule)
+			}
+			if r.Summary["error"] == 0 && code != exitOK {
+				t.Errorf("%s: exit status %d with no errors", twin, code)
+			}
+		})
+	}
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+// The demo board is designed to be clean: the default rule set finds no
+// warning or error on it.
+func TestDemoBoardClean(t *testing.T) {
+	r, code := checkJSONOf(t, "--demo")
+	if code != exitOK {
+		t.Errorf("exit status %d, want 0", code)
+	}
+	if r.Summary["error"] != 0 || r.Summary["warning"] != 0 {
+		t.Errorf("demo board: %d errors, %d warnings; want none: %+v", r.Summary["error"], r.Summary["warning"], r.Results)
+	}
+}
+
+// Exit status follows --fail-on: the floating-base trigger has a warning
+// and no error.
+func TestFailOn(t *testing.T) {
+	path := "testdata/check/floating-base.bad.cir"
+	if _, _, code := runCLI(t, "check", path); code != exitOK {
+		t.Errorf("--fail-on error (default): exit %d, want 0 with only a warning", code)
+	}
+	if _, _, code := runCLI(t, "check", "--fail-on", "warning", path); code != exitFindings {
+		t.Errorf("--fail-on warning: exit %d, want 1", code)
+	}
+	if _, _, code := runCLI(t, "check", "--skip", "floating-base", "--fail-on", "note", path); code != exitOK {
+		t.Errorf("--skip floating-base --fail-on note: exit %d, want 0", code)
+	}
+}
+
+func TestGoldenReports(t *testing.T) {
+	for _, tc := range []struct {
+		golden string
+		args   []string
+	}{
+		{"check-weak-switch.txt", []string{"check", "testdata/check/weak-switch-drive.bad.cir"}},
+		{"check-overdissipation.json", []string{"check", "--format", "json", "testdata/check/overdissipation.bad.cir"}},
+		{"check-vbe-reverse.sarif", []string{"check", "--format", "sarif", "testdata/check/vbe-reverse-overstress.bad.cir"}},
+		{"check-demo.txt", []string{"check", "--demo", "--notes"}},
+		{"op-demo.txt", []string{"op", "--demo"}},
+		{"op-demo.json", []string{"op", "--demo", "--format", "json"}},
+		{"rules-default.txt", []string{"rules"}},
+		{"explain-floating-base.txt", []string{"explain", "floating-base"}},
+	} {
+		t.Run(tc.golden, func(t *testing.T) {
+			out, errs, code := runCLI(t, tc.args...)
+			if code == exitBadInput {
+				t.Fatalf("exit 2: %s", errs)
+			}
+			golden(t, tc.golden, out)
+		})
+	}
+}
