@@ -609,6 +609,19 @@ func (p *parser) fixed(e *ElementStmt, pos []item, pairs []item) bool {
 		return false
 	}
 	rest := pos[nn:]
+	if e.Kind == 'D' || e.Kind == 'Q' {
+		// The initial-condition flag OFF matters only to transient
+		// analysis; keep it as the instance parameter off=1.
+		kept := rest[:0:0]
+		for _, it := range rest {
+			if it.tok.kind == tWord && Key(it.tok.text) == "off" {
+				e.Params = append(e.Params, Param{Name: Word{it.tok.text, it.tok.pos}, Value: Value{Text: "1", Pos: it.tok.pos}})
+				continue
+			}
+			kept = append(kept, it)
+		}
+		rest = kept
+	}
 	tooMany := func(it item) bool {
 		p.errs.Addf(it.tok.pos, "%s: unexpected %s; a %s takes %s", e.Name.Text, it.tok, kindName(e.Kind), what)
 		return false
