@@ -1,14 +1,13 @@
 package rules
 
 import (
-	"errors"
-	"fmt"
 	"math"
 	"regexp"
 	"strconv"
 	"strings"
 
 	"github.com/biaslint/biaslint/netlist"
+	"github.com/biaslint/biaslint/rulesets"
 	"go.yaml.in/yaml/v3"
 )
 
@@ -86,7 +85,8 @@ func (l *loader) parseFile(file string, src []byte) *rawSet {
 	p := &fileParser{src: &source{file: file, lines: strings.Split(string(src), "\n")}, errs: &l.errs}
 	var root yaml.Node
 	if err := yaml.Unmarshal(src, &root); err != nil {
-		l.errs.Add(yamlErrorPos(file, err), "rule set: "+strings.TrimPrefix(err.Error(), "yaml: "))
+		pos, msg := rulesets.YAMLError(file, err)
+		l.errs.Add(pos, "rule set: "+msg)
 		return nil
 	}
 	if len(root.Content) == 0 {
@@ -143,23 +143,6 @@ func (l *loader) parseFile(file string, src []byte) *rawSet {
 		l.errs.Add(p.pos(doc), "rule set: missing name")
 	}
 	return rs
-}
-
-// yamlErrorPos locates a yaml.v3 error; the library reports the line only.
-func yamlErrorPos(file string, err error) netlist.Pos {
-	pos := netlist.Pos{File: file}
-	msg := err.Error()
-	var te *yaml.TypeError
-	if errors.As(err, &te) && len(te.Errors) > 0 {
-		msg = te.Errors[0]
-	}
-	if i := strings.Index(msg, "line "); i >= 0 {
-		var line int
-		if _, e := fmt.Sscanf(msg[i:], "line %d", &line); e == nil {
-			pos.Line = line
-		}
-	}
-	return pos
 }
 
 // mapping calls fn for each key of the mapping n in order. When known is

@@ -154,7 +154,8 @@ func LoadParts(file string, src []byte) (*Library, error) {
 	var errs netlist.ErrorList
 	var root yaml.Node
 	if err := yaml.Unmarshal(src, &root); err != nil {
-		errs.Add(yamlErrPos(file, err), "parts library: "+yamlErrMsg(err))
+		pos, msg := YAMLError(file, err)
+		errs.Add(pos, "parts library: "+msg)
 		return nil, errs.Err()
 	}
 	lib := &Library{}
@@ -256,25 +257,23 @@ func nodePos(file string, n *yaml.Node) netlist.Pos {
 	return netlist.Pos{File: file, Line: n.Line, Col: n.Column}
 }
 
-// yamlErrPos extracts the line from a yaml.v3 syntax error ("yaml: line 3: ...").
-func yamlErrPos(file string, err error) netlist.Pos {
+// YAMLError locates an error of go.yaml.in/yaml/v3 in file and returns
+// the message without the library's "yaml: line N:" prefix. The library
+// reports the line only, so the position has no column.
+func YAMLError(file string, err error) (netlist.Pos, string) {
 	pos := netlist.Pos{File: file}
-	var te *yaml.TypeError
 	msg := err.Error()
+	var te *yaml.TypeError
 	if errors.As(err, &te) && len(te.Errors) > 0 {
 		msg = te.Errors[0]
 	}
+	msg = strings.TrimPrefix(msg, "yaml: ")
 	var line int
-	if i := strings.Index(msg, "line "); i >= 0 {
-		if _, e := fmt.Sscanf(msg[i:], "line %d", &line); e == nil {
-			pos.Line = line
-		}
+	if _, e := fmt.Sscanf(msg, "line %d:", &line); e == nil {
+		pos.Line = line
+		msg = strings.TrimSpace(strings.TrimPrefix(msg, fmt.Sprintf("line %d:", line)))
 	}
-	return pos
-}
-
-func yamlErrMsg(err error) string {
-	return strings.TrimPrefix(err.Error(), "yaml: ")
+	return pos, msg
 }
 
 // MatchName reports whether name matches pattern, ignoring case. In the
