@@ -43,8 +43,8 @@ type Finding struct {
 	Values []Quantity `json:"values,omitempty"`
 	// Value against Limit, in Unit, when the rule gives both and both are
 	// finite (HasLimit).
-	Value    float64 `json:"value,omitempty"`
-	Limit    float64 `json:"limit,omitempty"`
+	Value    float64 `json:"value"`
+	Limit    float64 `json:"limit"`
 	Unit     string  `json:"unit,omitempty"`
 	HasLimit bool    `json:"has_limit,omitempty"`
 	// Nets are the nets the subject connects to.
