@@ -149,3 +149,31 @@ func TestGoldenReports(t *testing.T) {
 		})
 	}
 }
+
+// Waivers: a matching waiver moves the finding to the waived list with its
+// reason; one that matches nothing and one naming an unknown rule are each
+// reported, never dropped.
+func TestWaivers(t *testing.T) {
+	r, _ := checkJSONOf(t, "testdata/check/waivers.cir")
+	if len(r.Results) != 1 {
+		t.Fatalf("results: %d", len(r.Results))
+	}
+	f := r.Results[0]
+	if len(f.Waived) != 1 || f.Waived[0].Rule != "floating-base" || f.Waived[0].Device != "Q1" ||
+		!strings.Contains(f.Waived[0].Reason, "pull-down") {
+		t.Errorf("waived = %+v, want floating-base on Q1 with its reason", f.Waived)
+	}
+	got := map[string]int{}
+	for _, x := range f.Findings {
+		got[x.Rule] = x.Line
+	}
+	if got["unused-waiver"] != 12 || got["waiver-unknown-rule"] != 13 {
+		t.Errorf("waiver findings by line = %v, want unused-waiver at 12 and waiver-unknown-rule at 13", got)
+	}
+	if _, fired := got["floating-base"]; fired {
+		t.Errorf("waived finding still listed as a finding")
+	}
+	if r.Summary["waived"] != 1 {
+		t.Errorf("summary waived = %d, want 1", r.Summary["waived"])
+	}
+}

@@ -79,11 +79,13 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			if x.HasLimit {
 				ew.printf("    value    %s against limit %s\n", units.Format(x.Value, x.Unit), units.Format(x.Limit, x.Unit))
 			}
-			ew.printf("    case     %s", rules.CaseName(x.Scenario, x.Corner))
-			if len(x.AlsoIn) > 0 {
-				ew.printf(" (also %s)", strings.Join(x.AlsoIn, ", "))
+			if x.Scenario != "" {
+				ew.printf("    case     %s", rules.CaseName(x.Scenario, x.Corner))
+				if len(x.AlsoIn) > 0 {
+					ew.printf(" (also %s)", strings.Join(x.AlsoIn, ", "))
+				}
+				ew.printf("\n")
 			}
-			ew.printf("\n")
 			if x.Fix != "" {
 				ew.printf("    fix      %s\n", x.Fix)
 			}
