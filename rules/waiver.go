@@ -24,49 +24,6 @@ const (
 	RuleUnknownWaiverRule = "waiver-unknown-rule"
 )
 
-// WaiverKind is the annotation kind of a waiver: "*@waive RULE DEVICE reason".
-const WaiverKind = "waive"
-
-// WaiversFromAnnotations reads the waivers among a circuit's annotations.
-// A device name inside a subcircuit body is made hierarchical with the
-// annotation's scope. A waiver without a rule, a device or a reason is a
-// located error in the returned list, and is left out.
-func WaiversFromAnnotations(anns []netlist.Annotation) ([]Waiver, *netlist.ErrorList) {
-	var errs netlist.ErrorList
-	var out []Waiver
-	for _, a := range anns {
-		if !strings.EqualFold(a.Kind, WaiverKind) {
-			continue
-		}
-		if len(a.Args) < 2 {
-			errs.Addf(a.Pos, "waiver needs a rule id, a device name and a reason: *@waive RULE DEVICE reason")
-			continue
-		}
-		reason := strings.TrimSpace(a.Text)
-		for i := 0; i < 2; i++ {
-			reason = strings.TrimSpace(strings.TrimPrefix(reason, firstWord(reason)))
-		}
-		if reason == "" {
-			errs.Addf(a.Pos, "waiver of %s on %s gives no reason; say why the finding is acceptable", a.Args[0], a.Args[1])
-			continue
-		}
-		dev := a.Args[1]
-		if a.Scope != "" {
-			dev = a.Scope + "." + dev
-		}
-		pos := a.Pos
-		out = append(out, Waiver{Rule: a.Args[0], Device: dev, Reason: reason, Pos: pos})
-	}
-	return out, &errs
-}
-
-func firstWord(s string) string {
-	if i := strings.IndexAny(s, " \t"); i >= 0 {
-		return s[:i]
-	}
-	return s
-}
-
 // ApplyWaivers marks the findings each waiver matches (same rule id,
 // device matching the waiver's pattern; both case-insensitive) as waived,
 // with the waiver's reason and position. It returns the findings followed

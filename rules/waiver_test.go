@@ -2,7 +2,6 @@ package rules
 
 import (
 	"reflect"
-	"strings"
 	"testing"
 
 	"github.com/biaslint/biaslint/checks"
@@ -58,21 +57,3 @@ func TestWaivers(t *testing.T) {
 	}
 }
 
-func TestWaiversFromAnnotations(t *testing.T) {
-	anns := []netlist.Annotation{
-		{Kind: "waive", Args: []string{"floating-base", "Q2", "driver", "has", "a", "pull-down"},
-			Text: "floating-base Q2 driver has a pull-down", Scope: "X1", Pos: netlist.Pos{File: "a.cir", Line: 4, Col: 1}},
-		{Kind: "waive", Args: []string{"floating-base", "Q5"}, Text: "floating-base Q5", Pos: netlist.Pos{File: "a.cir", Line: 5, Col: 1}},
-		{Kind: "waive", Args: []string{"x"}, Text: "x", Pos: netlist.Pos{File: "a.cir", Line: 6, Col: 1}},
-		{Kind: "part", Args: []string{"2N_GEN"}, Pos: netlist.Pos{File: "a.cir", Line: 7, Col: 1}},
-	}
-	ws, errs := WaiversFromAnnotations(anns)
-	want := []Waiver{{Rule: "floating-base", Device: "X1.Q2", Reason: "driver has a pull-down", Pos: netlist.Pos{File: "a.cir", Line: 4, Col: 1}}}
-	if !reflect.DeepEqual(ws, want) {
-		t.Errorf("waivers %+v", ws)
-	}
-	e := errs.Errors()
-	if len(e) != 2 || !strings.HasPrefix(e[0].Error(), "a.cir:5:1: ") || !strings.Contains(e[0].Msg, "no reason") || !strings.HasPrefix(e[1].Error(), "a.cir:6:1: ") {
-		t.Errorf("errors %v", errs.Err())
-	}
-}

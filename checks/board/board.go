@@ -297,7 +297,8 @@ func (s *Settings) waiveAnnotation(a *netlist.Annotation, errs *netlist.ErrorLis
 		reason = strings.TrimSpace(strings.TrimPrefix(strings.TrimSpace(reason), w))
 	}
 	if reason == "" {
-		errs.Warnf(a.Pos, "*@waive %s %s gives no reason; a waiver must say why", a.Args[0], a.Args[1])
+		errs.Warnf(a.Pos, "*@waive %s %s gives no reason; a waiver must say why, so it is ignored", a.Args[0], a.Args[1])
+		return
 	}
 	dev := a.Args[1]
 	if dev != "*" {
