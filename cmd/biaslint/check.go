@@ -62,8 +62,8 @@ func checkCommand() *cli.Command {
 }
 
 // loadRuleSets loads the rule sets a command was given (the default when
-// none), with --set overrides.
-func loadRuleSets(c *cli.Context) ([]*rules.RuleSet, error) {
+// none), with --set overrides, and layers them in order (rules.Combine).
+func loadRuleSets(c *cli.Context) (*rules.RuleSet, error) {
 	set := map[string]string{}
 	for _, kv := range c.StringSlice("set") {
 		k, v, ok := strings.Cut(kv, "=")
@@ -108,7 +108,7 @@ func loadRuleSets(c *cli.Context) ([]*rules.RuleSet, error) {
 			return nil, badInput(fmt.Errorf("biaslint: --set %s: no such parameter in the rule set (see 'biaslint rules')", k))
 		}
 	}
-	return out, nil
+	return rules.Combine(out...), nil
 }
 
 // idList splits repeated and comma-separated rule ids.
@@ -149,45 +149,18 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 // checkRun is the shared part of check and report: read, analyse and judge
 // every input.
 type checkRun struct {
-	sets   []*rules.RuleSet
+	set    *rules.RuleSet
 	report report.Report
 }
 
 func newCheckRun(c *cli.Context) (*checkRun, error) {
-	sets, err := loadRuleSets(c)
+	set, err := loadRuleSets(c)
 	if err != nil {
 		return nil, err
 	}
-	only, skip := idList(c.StringSlice("only")), idList(c.StringSlice("skip"))
-	if len(only) > 0 || len(skip) > 0 {
-		for i, rs := range sets {
-			known := rs.RuleIDs()
-			pick := func(ids []string) []string {
-				var mine []string
-				for _, id := range ids {
-					if _, ok := known[strings.ToLower(id)]; ok {
-						mine = append(mine, id)
-					}
-				}
-				return mine
-			}
-			for _, id := range append(append([]string(nil), only...), skip...) {
-				if !anyKnows(sets, id) {
-					return nil, badInput(fmt.Errorf("biaslint: unknown rule id %q (see 'biaslint rules')", id))
-				}
-			}
-			o := pick(only)
-			if len(only) > 0 && len(o) == 0 {
-				// None of this set's rules is selected.
-				o = nil
-				s := *rs
-				s.Rules = nil
-				sets[i] = &s
-				continue
-			}
-			if sets[i], err = rs.Select(o, pick(skip)); err != nil {
-				return nil, badInput(err)
-			}
+	if only, skip := idList(c.StringSlice("only")), idList(c.StringSlice("skip")); len(only) > 0 || len(skip) > 0 {
+		if set, err = set.Select(only, skip); err != nil {
+			return nil, badInput(fmt.Errorf("biaslint: %v (see 'biaslint rules')", err))
 		}
 	}
 	parts, err := loadParts(c)
@@ -198,11 +171,9 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
-	run := &checkRun{sets: sets}
+	run := &checkRun{set: set}
 	run.report.Version = version
-	if len(sets) > 0 {
-		run.report.RuleSet = sets[0]
-	}
+	run.report.RuleSet = set
 	opt := checks.Options{Parts: parts}
 	if opt.Ambient, err = tempOf(c, "ambient"); err != nil {
 		return nil, err
@@ -228,15 +199,6 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	return run, nil
 }
 
-func anyKnows(sets []*rules.RuleSet, id string) bool {
-	for _, rs := range sets {
-		if _, ok := rs.RuleIDs()[strings.ToLower(id)]; ok {
-			return true
-		}
-	}
-	return false
-}
-
 // one checks a single netlist.
 func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.File, error) {
 	circ, err := in.read()
@@ -254,23 +216,15 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 	if err != nil {
 		return report.File{}, err
 	}
-	var findings []rules.Finding
-	known := map[string]bool{}
-	for _, rs := range run.sets {
-		fs, err := rules.Evaluate(rs, an, rules.EvalOptions{})
-		if err != nil {
-			return report.File{}, err
-		}
-		findings = append(findings, fs...)
-		for id, active := range rs.RuleIDs() {
-			known[id] = known[id] || active
-		}
+	findings, err := rules.Evaluate(run.set, an, rules.EvalOptions{})
+	if err != nil {
+		return report.File{}, err
 	}
 	var waivers []rules.Waiver
 	for _, w := range an.Board.Waivers {
 		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
 	}
-	findings = rules.ApplyWaivers(findings, waivers, known)
+	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
 	return report.File{Path: circ.File, Title: circ.Title, Analysis: an, Findings: findings, Notes: notes}, nil
 }

@@ -23,16 +23,11 @@ func rulesCommand() *cli.Command {
 				writeFacts(&out)
 				return emit(c, &out)
 			}
-			sets, err := loadRuleSets(c)
+			rs, err := loadRuleSets(c)
 			if err != nil {
 				return err
 			}
-			for i, rs := range sets {
-				if i > 0 {
-					out.WriteString("\n")
-				}
-				writeRuleSet(&out, rs)
-			}
+			writeRuleSet(&out, rs)
 			return emit(c, &out)
 		},
 	}
@@ -105,16 +100,14 @@ func explainCommand() *cli.Command {
 				return badInput(fmt.Errorf("biaslint explain: name one rule id (see 'biaslint rules')"))
 			}
 			id := c.Args().First()
-			sets, err := loadRuleSets(c)
+			rs, err := loadRuleSets(c)
 			if err != nil {
 				return err
 			}
-			for _, rs := range sets {
-				if r := rs.Rule(id); r != nil {
-					var out bytes.Buffer
-					writeExplain(&out, rs, r)
-					return emit(c, &out)
-				}
+			if r := rs.Rule(id); r != nil {
+				var out bytes.Buffer
+				writeExplain(&out, rs, r)
+				return emit(c, &out)
 			}
 			return badInput(fmt.Errorf("biaslint explain: no rule %q in the rule set (see 'biaslint rules')", id))
 		},
