@@ -142,7 +142,22 @@ func Hazardous(f rules.Finding) bool {
 	return strings.Contains(id, "hazard") || strings.Contains(id, "dissipation") || strings.Contains(id, "thermal")
 }
 
-// nets describes a finding's nets for the text report.
+// nets describes a finding's nets for the text report, naming a
+// transistor's terminals ("C=out B=in E=0") and a resistor's ends.
 func nets(f rules.Finding) string {
-	return strings.Join(f.Nets, " ")
+	var labels []string
+	switch f.Subject {
+	case rules.SubjectTransistor:
+		labels = []string{"C", "B", "E"}
+	case rules.SubjectResistor:
+		labels = []string{"A", "B"}
+	}
+	parts := make([]string, len(f.Nets))
+	for i, n := range f.Nets {
+		if i < len(labels) && len(f.Nets) == len(labels) {
+			n = labels[i] + "=" + n
+		}
+		parts[i] = n
+	}
+	return strings.Join(parts, " ")
 }
