@@ -63,7 +63,7 @@
 //
 // # Limits
 //
-// LoadOptions bounds the work one input can cause: 64 MiB per file, 1 MiB
+// LoadOptions bounds the work one input can cause: 16 MiB per file, 1 MiB
 // per line, includes nested 16 deep, subcircuit instances and definitions
 // nested 32 deep, 200000 flat elements; expressions are at most 4096 bytes
 // with parentheses nested at most 64 deep, and parameters may refer to each

@@ -1,7 +1,9 @@
 package netlist
 
 import (
+	"errors"
 	"fmt"
+	"io/fs"
 	"strings"
 )
 
@@ -12,6 +14,10 @@ func Load(filename string, opts *LoadOptions) (*Deck, error) {
 	src, err := o.ReadFile(filename)
 	if err != nil {
 		d := &Deck{File: filename, Top: newSubckt(nil), opts: o}
+		var pe *fs.PathError
+		if errors.As(err, &pe) && pe.Path == filename {
+			err = pe.Err // the position already names the file
+		}
 		d.Diagnostics.Addf(Pos{File: filename}, "cannot read netlist: %v", err)
 		return d, d.Diagnostics.Err()
 	}

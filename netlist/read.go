@@ -3,6 +3,7 @@ package netlist
 import (
 	"bytes"
 	"errors"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -11,7 +12,7 @@ import (
 
 // Default limits of LoadOptions. Each bounds the work one netlist can cause.
 const (
-	DefaultMaxFileSize     = 64 << 20 // bytes per file
+	DefaultMaxFileSize     = 16 << 20 // bytes per file
 	DefaultMaxLineLength   = 1 << 20  // bytes per physical line
 	DefaultMaxIncludeDepth = 16       // nested .include / .lib levels
 	DefaultMaxSubcktDepth  = 32       // nested subcircuit instances
@@ -28,7 +29,8 @@ type LoadOptions struct {
 	MaxIncludeDepth int
 	// MaxSubcktDepth bounds nesting of subcircuit instances (0: default 32).
 	MaxSubcktDepth int
-	// MaxFileSize bounds each file in bytes (0: default 64 MiB).
+	// MaxFileSize bounds each file in bytes (0: default 16 MiB). The default
+	// ReadFile reads at most one byte more, so a larger file costs no memory.
 	MaxFileSize int
 	// MaxLineLength bounds each physical line in bytes (0: default 1 MiB).
 	MaxLineLength int
@@ -42,9 +44,6 @@ func (o *LoadOptions) withDefaults() LoadOptions {
 	if o != nil {
 		r = *o
 	}
-	if r.ReadFile == nil {
-		r.ReadFile = os.ReadFile
-	}
 	set := func(p *int, d int) {
 		if *p <= 0 {
 			*p = d
@@ -55,7 +54,22 @@ func (o *LoadOptions) withDefaults() LoadOptions {
 	set(&r.MaxFileSize, DefaultMaxFileSize)
 	set(&r.MaxLineLength, DefaultMaxLineLength)
 	set(&r.MaxElements, DefaultMaxElements)
+	if r.ReadFile == nil {
+		limit := r.MaxFileSize
+		r.ReadFile = func(path string) ([]byte, error) { return readLimited(path, limit) }
+	}
 	return r
+}
+
+// readLimited reads at most limit+1 bytes of the file at path: enough to
+// tell that it is over the limit without holding all of it.
+func readLimited(path string, limit int) ([]byte, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	return io.ReadAll(io.LimitReader(f, int64(limit)+1))
 }
 
 // logical is one logical line: a statement with its continuation lines
@@ -106,7 +120,7 @@ func (r *reader) readTop(name string, src []byte) {
 func (r *reader) readFile(name string, src []byte, depth int, stack []string, want string, incPos Pos, top bool) {
 	r.files = append(r.files, name)
 	if len(src) > r.opts.MaxFileSize {
-		r.errs.Addf(orFile(incPos, name), "file %q is larger than the limit of %d bytes", name, r.opts.MaxFileSize)
+		r.errs.Addf(orFile(incPos, name), "file %q is larger than the limit of %d bytes (%d MiB)", name, r.opts.MaxFileSize, r.opts.MaxFileSize>>20)
 		return
 	}
 	src = bytes.TrimPrefix(src, []byte("\xef\xbb\xbf"))

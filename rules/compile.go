@@ -6,6 +6,7 @@ import (
 	"math"
 	"reflect"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/biaslint/biaslint/checks"
@@ -356,7 +357,7 @@ func (l *loader) compileExpr(e *rawExpr, src string, line, col int, subj Subject
 	cfg.MaxNodes = MaxExprNodes
 	tree, err := parser.ParseWithConfig(src, cfg)
 	if err != nil {
-		l.exprError(err, locate)
+		l.exprError(err, locate, src)
 		return nil
 	}
 	// Check the untyped tree before compiling: the optimizer would build a
@@ -381,7 +382,7 @@ func (l *loader) compileExpr(e *rawExpr, src string, line, col int, subj Subject
 				return
 			}
 			if !params[s.Value] {
-				l.errs.Addf(locate(x.Property.Location().From), "unknown parameter %q (parameters: %s)", s.Value, strings.Join(sortedKeys(params), ", "))
+				l.errs.Addf(locate(x.Property.Location().From), "unknown parameter %q (%s)", s.Value, paramList(sortedKeys(params)))
 				bad = true
 				return
 			}
@@ -404,20 +405,31 @@ func (l *loader) compileExpr(e *rawExpr, src string, line, col int, subj Subject
 	}
 	prog, err := expr.Compile(src, opts...)
 	if err != nil {
-		l.exprError(err, locate)
+		l.exprError(err, locate, src)
 		return nil
 	}
 	return &program{src: src, prog: prog, facts: referencedFacts(tree.Node, subj)}
 }
 
-// exprError adds a compile error of expr, located by its column.
-func (l *loader) exprError(err error, locate func(int) netlist.Pos) {
+// exprError adds a compile error of expr, located by its column and
+// quoting the expression src it is about.
+func (l *loader) exprError(err error, locate func(int) netlist.Pos, src string) {
+	in := fmt.Sprintf(" (in %s)", quoteExpr(src))
 	var fe *file.Error
 	if errors.As(err, &fe) {
-		l.errs.Add(locate(fe.From), fe.Message)
+		l.errs.Add(locate(fe.From), fe.Message+in)
 		return
 	}
-	l.errs.Add(locate(0), err.Error())
+	l.errs.Add(locate(0), err.Error()+in)
+}
+
+// quoteExpr quotes an expression for a message, shortened to 60 bytes.
+func quoteExpr(src string) string {
+	s := strings.Join(strings.Fields(src), " ")
+	if len(s) > 60 {
+		s = s[:57] + "..."
+	}
+	return strconv.Quote(s)
 }
 
 // walk visits every node of the tree (children first). ast.Walk's own
@@ -565,4 +577,12 @@ func splitUnit(body string) (src, unit string, ok bool) {
 		return body, "", false
 	}
 	return body[:i], u, true
+}
+
+// paramList lists parameter names for a message.
+func paramList(names []string) string {
+	if len(names) == 0 {
+		return "the rule set has no parameters"
+	}
+	return "parameters: " + strings.Join(names, ", ")
 }

@@ -59,8 +59,8 @@ func TestCompileErrorsLocated(t *testing.T) {
 		{"wrong subject fact", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: node\n    when: vce > 1\n    message: m\n",
 			"t.yaml:6:11", "unknown name vce"},
 		{"bad parameter value", "name: t\nparameters:\n  lim: 3 A V\n", "t.yaml:3:8", "bad value"},
-		// yaml.v3 reports the line of a syntax error only.
-		{"yaml syntax", "name: t\nrules:\n\t- id: a\n", "t.yaml:3", "cannot start any token"},
+		// yaml.v3 reports the line of a syntax error only; the column is 1.
+		{"yaml syntax", "name: t\nrules:\n\t- id: a\n", "t.yaml:3:1", "cannot start any token"},
 		{"duplicate id", "name: t\nrules:\n" + okRule + okRule, "t.yaml:8:9", "defined twice"},
 		{"disable unknown", "name: t\ndisable: [nope]\n", "t.yaml:2:11", `no rule "nope"`},
 	}

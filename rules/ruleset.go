@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/biaslint/biaslint/netlist"
@@ -229,7 +230,7 @@ type LoadOptions struct {
 // error.
 func Load(ref string, opts LoadOptions) (*RuleSet, error) {
 	l := newLoader()
-	raw := l.resolve(ref, "", false, netlist.Pos{}, nil)
+	raw := l.resolve(ref, "", false, netlist.Pos{File: ref}, nil)
 	return l.finish(raw, opts)
 }
 
@@ -295,7 +296,11 @@ func (l *loader) resolve(ref, from string, fromBuiltin bool, at netlist.Pos, sta
 	}
 	for _, k := range stack {
 		if k == key {
-			l.errs.Addf(at, "extends cycle: %q extends itself through %s", ref, strings.Join(append(stack, key), " -> "))
+			chain := make([]string, 0, len(stack)+1)
+			for _, k := range append(stack, key) {
+				chain = append(chain, displayKey(k))
+			}
+			l.errs.Addf(at, "extends cycle: %q extends itself through %s", ref, strings.Join(chain, " -> "))
 			return nil
 		}
 	}
@@ -430,7 +435,7 @@ func (l *loader) finish(m *merged, opts LoadOptions) (*RuleSet, error) {
 	for _, name := range names {
 		p, ok := m.params[name]
 		if !ok {
-			l.errs.Addf(setPos, "no parameter %q in rule set %s (parameters: %s)", name, m.name, strings.Join(paramNames(m.params), ", "))
+			l.errs.Addf(setPos, "no parameter %q in rule set %s (%s)", name, m.name, paramList(paramNames(m.params)))
 			continue
 		}
 		v, err := parseQuantity(opts.Set[name], p.Unit)
@@ -515,12 +520,27 @@ func parseQuantity(text, unit string) (float64, error) {
 }
 
 func plainNumber(s string) (float64, error) {
-	var v float64
-	_, err := fmt.Sscanf(s, "%g", &v)
-	if err != nil || fmt.Sprint(s) == "" || strings.TrimLeft(s, "+-0123456789.eE") != "" {
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) || strings.TrimLeft(s, "+-0123456789.eE") != "" {
 		return 0, fmt.Errorf("bad number %q", s)
 	}
 	return v, nil
+}
+
+// displayKey turns a set's key ("builtin:default", "file:/abs/path.yaml")
+// into its name for messages: the built-in name, or the path relative to
+// the working directory when it lies below it.
+func displayKey(k string) string {
+	if name, ok := strings.CutPrefix(k, "builtin:"); ok {
+		return name
+	}
+	p := strings.TrimPrefix(k, "file:")
+	if wd, err := os.Getwd(); err == nil {
+		if rel, err := filepath.Rel(wd, p); err == nil && !strings.HasPrefix(rel, "..") {
+			return rel
+		}
+	}
+	return p
 }
 
 func scaleSuffix(s string) bool {

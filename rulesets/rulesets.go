@@ -259,7 +259,8 @@ func nodePos(file string, n *yaml.Node) netlist.Pos {
 
 // YAMLError locates an error of go.yaml.in/yaml/v3 in file and returns
 // the message without the library's "yaml: line N:" prefix. The library
-// reports the line only, so the position has no column.
+// reports the line only, so the column is given as 1, keeping every
+// position in the file:line:col form.
 func YAMLError(file string, err error) (netlist.Pos, string) {
 	pos := netlist.Pos{File: file}
 	msg := err.Error()
@@ -270,7 +271,8 @@ func YAMLError(file string, err error) (netlist.Pos, string) {
 	msg = strings.TrimPrefix(msg, "yaml: ")
 	var line int
 	if _, e := fmt.Sscanf(msg, "line %d:", &line); e == nil {
-		pos.Line = line
+		// yaml reports only the line; column 1 keeps the file:line:col form.
+		pos.Line, pos.Col = line, 1
 		msg = strings.TrimSpace(strings.TrimPrefix(msg, fmt.Sprintf("line %d:", line)))
 	}
 	return pos, msg

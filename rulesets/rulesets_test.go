@@ -80,7 +80,7 @@ func TestLoadPartsErrors(t *testing.T) {
 		{"parts:\n  - class: a\n  - class: A\n", "x.yaml:3:5: parts library: class \"A\" defined twice"},
 		{"parts:\n  - class: a\n    vceo: -3\n", "x.yaml:2:5: parts library: class \"a\": vceo must not be negative"},
 		{"partz: []\n", "x.yaml:1:1: parts library: unknown key"},
-		{"parts: [\n", "x.yaml:1: parts library: did not find expected node content"},
+		{"parts: [\n", "x.yaml:1:1: parts library: did not find expected node content"},
 	} {
 		_, err := LoadParts("x.yaml", []byte(tc.src))
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {

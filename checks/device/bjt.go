@@ -169,7 +169,7 @@ func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
 	s.RE = p.RE / area
 	s.RC = p.RC / area
 	if !(s.IS > 0) || math.IsInf(s.IS, 0) || math.IsInf(s.ISE, 0) || math.IsInf(s.ISC, 0) {
-		return nil, fmt.Errorf("model %s: saturation currents at %g °C are out of range (IS = %g)", m.Name, tempC, s.IS)
+		return nil, fmt.Errorf("model %s: saturation currents at %g °C are out of range (IS %s)", m.Name, tempC, rangeText(s.IS))
 	}
 	vt := ThermalVoltage(t)
 	b := &BJT{Polarity: pol, Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin}

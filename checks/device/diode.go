@@ -88,7 +88,7 @@ func NewDiode(m *netlist.Model, area, tempC float64, opt Options) (*Diode, error
 	s.IBV = area * p.IBV
 	s.RS = p.RS / area
 	if !(s.IS > 0) || math.IsInf(s.IS, 0) {
-		return nil, fmt.Errorf("model %s: saturation current at %g °C is out of range (IS = %g)", m.Name, tempC, s.IS)
+		return nil, fmt.Errorf("model %s: saturation current at %g °C is out of range (IS %s)", m.Name, tempC, rangeText(s.IS))
 	}
 	vt := ThermalVoltage(t)
 	nvt := s.N * vt
@@ -132,3 +132,17 @@ func (d *Diode) Limit(vd, vdOld float64) (float64, bool) {
 // Initial returns the junction voltage at which Newton first linearises the
 // diode: its critical voltage.
 func (d *Diode) Initial() float64 { return d.vcrit }
+
+// rangeText describes a scaled value for a message without printing NaN
+// or Inf: "overflows", "is not a number", or "= 1e-300".
+func rangeText(v float64) string {
+	switch {
+	case math.IsNaN(v):
+		return "is not a number"
+	case math.IsInf(v, 0):
+		return "overflows"
+	case v == 0:
+		return "underflows to 0"
+	}
+	return fmt.Sprintf("= %g", v)
+}

@@ -45,12 +45,22 @@ type ConvergenceError struct {
 	// Unsettled names the unknowns (V(node), I(source)) that had not met
 	// the tolerances when the last attempt stopped, at most 10.
 	Unsettled []string
+	// Limited names the diodes and transistors whose junction voltages were
+	// still being limited when the last attempt stopped, at most 10.
+	Limited []string
 	// Cause is a *SingularError if the equations were singular, else nil.
 	Cause error
+	// Pos is where the first element involved (unsettled or limited) is
+	// written, else the circuit's file.
+	Pos netlist.Pos
 }
 
 func (e *ConvergenceError) Error() string {
 	var b strings.Builder
+	if e.Pos.IsValid() || e.Pos.File != "" {
+		b.WriteString(e.Pos.String())
+		b.WriteString(": ")
+	}
 	b.WriteString("no DC operating point found: ")
 	if e.Cause != nil {
 		b.WriteString(e.Cause.Error())
@@ -61,6 +71,10 @@ func (e *ConvergenceError) Error() string {
 	if len(e.Unsettled) > 0 {
 		b.WriteString("; not settled: ")
 		b.WriteString(strings.Join(e.Unsettled, ", "))
+	}
+	if len(e.Limited) > 0 {
+		b.WriteString("; junction voltages still limited: ")
+		b.WriteString(strings.Join(e.Limited, ", "))
 	}
 	return b.String()
 }
@@ -87,7 +101,10 @@ type work struct {
 	res, mag       []float64
 	iters          int
 	// bad are the unknowns that failed a test in the last iteration.
-	bad      []int
+	bad []int
+	// limited are the devices (index into bjts, then diodes) whose
+	// junctions were limited in the last evaluation.
+	limited  []int
 	singular *SingularError
 }
 
@@ -188,7 +205,58 @@ func (s *System) Solve(opt Options) (*Result, error) {
 		}
 		ce.Unsettled = append(ce.Unsettled, s.unknownName(u))
 	}
+	var involved []*elem
+	for i, d := range w.limited {
+		if i == 10 {
+			break
+		}
+		el := s.deviceElem(d)
+		ce.Limited = append(ce.Limited, el.e.Name)
+		involved = append(involved, el)
+	}
+	ce.Pos = s.firstInvolved(involved, w.bad)
 	return nil, ce
+}
+
+// deviceElem returns device d of the work's device list: the transistors,
+// then the diodes.
+func (s *System) deviceElem(d int) *elem {
+	if d < len(s.bjts) {
+		return s.bjts[d]
+	}
+	return s.diodes[d-len(s.bjts)]
+}
+
+// firstInvolved returns the position of the element written first among
+// devs and the elements touching the unknowns bad; the circuit's file when
+// there are none.
+func (s *System) firstInvolved(devs []*elem, bad []int) netlist.Pos {
+	want := map[int]bool{}
+	for _, u := range bad {
+		want[u] = true
+	}
+	var best netlist.Pos
+	take := func(p netlist.Pos) {
+		if p.IsValid() && (!best.IsValid() || p.Before(best)) {
+			best = p
+		}
+	}
+	for _, el := range devs {
+		take(el.e.Pos)
+	}
+	for _, el := range s.elems {
+		hit := el.br >= 0 && want[el.br]
+		for _, n := range append(append([]int(nil), el.nodes...), el.inner...) {
+			hit = hit || (n >= 0 && want[n])
+		}
+		if hit {
+			take(el.e.Pos)
+		}
+	}
+	if !best.IsValid() {
+		best = netlist.Pos{File: s.circuit.File}
+	}
+	return best
 }
 
 func (s *System) unknownName(i int) string {
@@ -233,6 +301,7 @@ func (s *System) guess(g *Result) ([]float64, bool) {
 // placed.
 func (w *work) evaluate(x []float64, first, cold bool) bool {
 	limited := false
+	w.limited = w.limited[:0]
 	for j, b := range w.bjt {
 		vbe, vbc := w.junctions(j, x)
 		switch {
@@ -243,6 +312,9 @@ func (w *work) evaluate(x []float64, first, cold bool) bool {
 			var l bool
 			vbe, vbc, l = b.Limit(vbe, vbc, w.jb[j][0], w.jb[j][1])
 			limited = limited || l
+			if l {
+				w.limited = append(w.limited, j)
+			}
 		}
 		w.jb[j] = [2]float64{vbe, vbc}
 		w.evB[j] = b.Eval(vbe, vbc)
@@ -257,6 +329,9 @@ func (w *work) evaluate(x []float64, first, cold bool) bool {
 			var l bool
 			vd, l = d.Limit(vd, w.jd[j])
 			limited = limited || l
+			if l {
+				w.limited = append(w.limited, len(w.bjt)+j)
+			}
 		}
 		w.jd[j] = vd
 		i, g := d.Eval(vd)

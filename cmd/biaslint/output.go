@@ -2,8 +2,10 @@ package main
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -102,6 +104,12 @@ func writeAtomic(path string, data []byte) error {
 	dir := filepath.Dir(path)
 	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp*")
 	if err != nil {
+		// The temporary file's random name would only confuse: name the
+		// report's path and the reason.
+		var pe *fs.PathError
+		if errors.As(err, &pe) {
+			err = pe.Err
+		}
 		return badInput(fmt.Errorf("biaslint: cannot write %s: %v", path, err))
 	}
 	name := tmp.Name()
@@ -115,6 +123,10 @@ func writeAtomic(path string, data []byte) error {
 	}
 	if werr != nil {
 		os.Remove(name)
+		var le *os.LinkError
+		if errors.As(werr, &le) {
+			werr = le.Err
+		}
 		return badInput(fmt.Errorf("biaslint: cannot write %s: %v", path, werr))
 	}
 	return nil

@@ -7,6 +7,7 @@ import (
 
 	"github.com/fatih/color"
 
+	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/netlist/units"
 	"github.com/biaslint/biaslint/rules"
 )
@@ -16,7 +17,8 @@ type TextOptions struct {
 	// Color turns on terminal colour (the caller decides: a terminal, not
 	// NO_COLOR, or --color always).
 	Color bool
-	// Notes prints the input notes (reading the netlist, annotations).
+	// Notes prints the input notes (reading the netlist, annotations);
+	// input warnings are printed either way.
 	Notes bool
 }
 
@@ -100,9 +102,16 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				ew.printf("      reason  %s (waiver at %s)\n", x.WaiverReason, x.WaiverPos)
 			}
 		}
-		if opt.Notes && len(f.Notes) > 0 {
+		// Warnings about the input are always printed; notes on request.
+		var shown []*netlist.Error
+		for _, e := range f.Notes {
+			if opt.Notes || e.Severity == netlist.SevWarning {
+				shown = append(shown, e)
+			}
+		}
+		if len(shown) > 0 {
 			ew.printf("\n  input notes:\n")
-			for _, e := range f.Notes {
+			for _, e := range shown {
 				ew.printf("  %s\n", e.Error())
 			}
 		}
