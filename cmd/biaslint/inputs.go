@@ -26,19 +26,35 @@ func (in input) read() (*netlist.Circuit, error) {
 	return netlist.Read(in.name, in.opts)
 }
 
-// inputsOf returns the netlists a command was asked to read.
+// fileArgs returns a command's FILE arguments: all of them, except for
+// plot, whose first argument names the device.
+func fileArgs(c *cli.Context) []string {
+	args := c.Args().Slice()
+	if c.Command != nil && c.Command.Name == "plot" && len(args) > 0 {
+		args = args[1:]
+	}
+	return args
+}
+
+// inputsOf returns the netlists a command was asked to read: FILE
+// arguments may be files, directories or globs (see expandArgs).
 func inputsOf(c *cli.Context) ([]input, error) {
+	args := fileArgs(c)
 	if c.Bool("demo") {
-		if c.NArg() > 0 {
+		if len(args) > 0 {
 			return nil, badInput(errors.New("biaslint: --demo takes no FILE arguments"))
 		}
 		return []input{{name: demo.Name, opts: &netlist.LoadOptions{ReadFile: demoFile}}}, nil
 	}
-	if c.NArg() == 0 {
+	if len(args) == 0 {
 		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, or use --demo)", c.Command.Name))
 	}
+	names, err := expandArgs(args)
+	if err != nil {
+		return nil, badInput(err)
+	}
 	var ins []input
-	for _, a := range c.Args().Slice() {
+	for _, a := range names {
 		ins = append(ins, input{name: a})
 	}
 	return ins, nil

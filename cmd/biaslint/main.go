@@ -76,6 +76,9 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			opCommand(),
 			rulesCommand(),
 			explainCommand(),
+			reportCommand(),
+			plotCommand(),
+			initCommand(),
 		},
 		// Usage errors are exit status 2, like bad input.
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {

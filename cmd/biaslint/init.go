@@ -1,0 +1,154 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+
+	"github.com/urfave/cli/v2"
+)
+
+// Files that init writes into the current directory.
+const (
+	initRuleSetFile = "biaslint-team.yaml"
+	initBoardFile   = "board.yaml"
+)
+
+// initRuleSet is the starter team rule set init writes.
+const initRuleSet = `# A team rule set for biaslint, written by 'biaslint init'.
+#
+# It starts from the built-in default rules (extends: default) and changes
+# only what is written here. Use it with
+#
+#     biaslint check --ruleset biaslint-team.yaml board.cir
+#
+# 'biaslint rules --ruleset biaslint-team.yaml' lists the result, and
+# 'biaslint rules facts' the names a rule's expressions can use.
+#
+# Sections (all optional except name):
+#   parameters  thresholds by name; a value may carry a unit ("1 V", "10mA")
+#               or be a percentage ("80%"). A parameter of the default set
+#               keeps its unit; only its value changes here.
+#   disable     ids of default rules to switch off
+#   severities  a default rule's severity: error, warning or note
+#   rules       new rules (or a default rule's id, to replace that rule)
+
+name: team
+description: Our design guidelines, on top of the biaslint default rules.
+extends: default
+
+parameters:
+  # Derating: keep VCE at most 80 % of VCEO and the dissipation at most
+  # 60 % of the derated limit Pd(Ta) (derating margins of this kind are
+  # common practice for long-life designs; set your own).
+  vceo_share: {value: 80%, doc: "VCE at most 80 % of VCEO (team derating)."}
+  pd_share: {value: 60%, doc: "Power at most 60 % of Pd(Ta) (team derating)."}
+  # A new parameter for the rule below.
+  team_tj_max:
+    value: 100
+    unit: C
+    doc: Highest junction temperature our boards allow in any case (team guideline).
+
+# disable: [unlimited-base-drive]
+# severities:
+#   floating-base: error
+
+rules:
+  # An example rule. 'when' is true for a violation; 'value' and 'limit'
+  # give the report its "value against limit"; {EXPR:UNIT} placeholders in
+  # the message print through biaslint's engineering notation.
+  - id: team-junction-temperature
+    severity: warning
+    subject: transistor
+    when: tj > param.team_tj_max
+    measure: tj - param.team_tj_max
+    value: tj
+    limit: param.team_tj_max
+    unit: C
+    message: >-
+      {name} runs its junction at about {tj:C}, above our limit of
+      {param.team_tj_max:C} ({power:W} at {ambient:C} ambient)
+    rationale: >-
+      Our guideline keeps junctions well below their rating so that parts
+      last; failure rates rise steeply with temperature (common practice).
+    fix: Reduce the dissipation, or give the part more copper or a heat sink.
+`
+
+// initBoard is the board-file template init writes; the key set follows
+// checks/board (ambient, parts, devices, waivers).
+const initBoard = `## A board file for biaslint, written by 'biaslint init'.
+##
+## It says what the netlist cannot: the ambient the board runs in, the
+## ratings of its parts, the role of a transistor, the power rating of a
+## resistor, and waivers with their reasons. Use it with
+##
+##     biaslint check --board board.yaml board.cir
+##
+## Lines starting with a single '#' are examples: remove the '# ' to use
+## them, and put your own names in (devices must exist in the netlist, as
+## flat names such as X1.Q2). Numbers may carry SPICE or RKM suffixes
+## ("200m", "4k7"); a trailing % divides by 100.
+
+## Ambient temperature in C, for derating and junction temperature.
+ambient: 25
+
+## Ratings by model name (absolute maxima and the hFE spread).
+# parts:
+#   MYNPN: {vceo: 40, vcbo: 60, vebo: 6, icmax: 200m, pd: 500m, tjmax: 150, rthja: 250, hfemin: 100, hfemax: 300}
+
+## Settings by device: a transistor's role (switch or linear), a
+## resistor's power rating and tolerance, a source that drives (driver).
+# devices:
+#   Q1: {role: linear}
+#   RLOAD: {power: 1, tol: 1%}
+#   VMCU: {driver: yes}
+
+## Waivers: a finding accepted on purpose, with the reason a reviewer reads.
+# waivers:
+#   - {rule: floating-base, device: Q7, reason: "held off by U3's pull-down"}
+`
+
+func initCommand() *cli.Command {
+	return &cli.Command{
+		Name:  "init",
+		Usage: "write a starter team rule set (" + initRuleSetFile + ") and a board-file template (" + initBoardFile + ") here",
+		Description: "Refuses, writing nothing, when either file already exists. Both files are commented; " +
+			"edit them, then pass --ruleset " + initRuleSetFile + " and --board " + initBoardFile + " to check.",
+		Action: runInit,
+	}
+}
+
+func runInit(c *cli.Context) error {
+	if c.NArg() > 0 {
+		return badInput(errors.New("biaslint init: takes no arguments; it writes into the current directory"))
+	}
+	files := []struct{ name, text string }{{initRuleSetFile, initRuleSet}, {initBoardFile, initBoard}}
+	for _, f := range files {
+		if _, err := os.Lstat(f.name); err == nil {
+			return badInput(fmt.Errorf("biaslint init: %s already exists; nothing written (move it away to start afresh)", f.name))
+		} else if !errors.Is(err, fs.ErrNotExist) {
+			return badInput(fmt.Errorf("biaslint init: %s: %v", f.name, err))
+		}
+	}
+	var written []string
+	for _, f := range files {
+		// O_EXCL: never overwrite, even a file that appeared just now.
+		w, err := os.OpenFile(f.name, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
+		if err == nil {
+			written = append(written, f.name)
+			_, err = w.WriteString(f.text)
+			if cerr := w.Close(); err == nil {
+				err = cerr
+			}
+		}
+		if err != nil {
+			for _, p := range written {
+				os.Remove(p)
+			}
+			return badInput(fmt.Errorf("biaslint init: cannot write %s: %v", f.name, err))
+		}
+	}
+	fmt.Fprintf(c.App.Writer, "wrote %s and %s\n", initRuleSetFile, initBoardFile)
+	return nil
+}
