@@ -25,7 +25,8 @@ const DefaultAmbient = 25
 // given, W: the common 1/4 W through-hole and 1206 class (common practice).
 const DefaultResistorPower = 0.25
 
-// Options control Analyze.
+// Options control Analyze. The zero value analyses the nominal case only,
+// as a plain DC operating point; the fields below the line ask for more.
 type Options struct {
 	// Ambient is the ambient temperature, C; nil means the board file's
 	// ambient, else DefaultAmbient.
@@ -39,11 +40,57 @@ type Options struct {
 	// Board is the board file's settings, laid over the netlist's
 	// annotations; nil for none.
 	Board *board.Settings
+
+	// Scenarios adds the scenarios derived from the netlist: each drive
+	// level, each opened drive and each point of a signal swing (see
+	// scenarios.go).
+	Scenarios bool
+	// Corners adds the worst-case corners at the nominal scenario and at
+	// each drive-level scenario: hFE, ambient, supplies and resistors (see
+	// corners.go).
+	Corners bool
+	// AmbientRange is the [min, max] ambient of the temperature corners, C;
+	// nil means DefaultAmbientRange.
+	AmbientRange *[2]float64
+	// Tolerances are the default tolerances of resistors and supplies;
+	// zero fields mean DefaultTolerance. A *@device NAME tol=... setting
+	// wins for its element.
+	Tolerances Tolerances
+	// Thermal solves every transistor at its own junction temperature
+	// Tj = Ta + P*RthJA, iterated to a fixed point (see thermal.go).
+	Thermal bool
+	// MonteCarlo is the number of Monte Carlo runs at the nominal scenario
+	// (0 for none), drawn from Seed with Distribution (see montecarlo.go).
+	MonteCarlo   int
+	Seed         uint64
+	Distribution Distribution
+	// Workers is the number of goroutines that solve cases; 0 means
+	// runtime.GOMAXPROCS(0). The result does not depend on it.
+	Workers int
+	// Progress, if not nil, is called after each solved case with the
+	// number done and the number known so far (the total grows as stages
+	// add cases). Calls are serialised.
+	Progress func(done, total int)
 }
+
+// Tolerances are relative tolerances (0.05 for 5 %).
+type Tolerances struct {
+	Resistor, Supply float64
+}
+
+// DefaultTolerance is the tolerance of a resistor or supply with none
+// given: 5 %, the common E24 resistor and regulator class (common
+// practice).
+const DefaultTolerance = 0.05
+
+// DefaultAmbientRange is the ambient range of the temperature corners, C:
+// 0 to 70 C, the commercial temperature range (common practice).
+var DefaultAmbientRange = [2]float64{0, 70}
 
 // analyzer carries the state of one Analyze call.
 type analyzer struct {
 	c       *netlist.Circuit
+	opt     Options
 	board   *board.Settings
 	parts   *rulesets.Library
 	g       *graph
@@ -51,13 +98,38 @@ type analyzer struct {
 	temp    float64
 	notes   netlist.ErrorList
 	roles   map[string][2]string
+
+	// bjts are the circuit's transistors in netlist order and tmpl their
+	// facts that do not depend on the case (computed once).
+	bjts []*netlist.Element
+	tmpl []Transistor
+	// bjtIdx maps netlist.Key of a transistor's name to its index.
+	bjtIdx map[string]int
+	// nominal holds the nominal value of every R, V and I element by key.
+	nominal map[string]float64
+	// firstPos is the first element line naming each net key.
+	firstPos map[string]netlist.Pos
+	// swingElems, when not nil, replaces each capacitor by a voltage
+	// source at its operating-point voltage (the swing view), by element
+	// index; nil entries keep the element.
+	swingElems []*netlist.Element
+	// hfeFactor holds, per transistor, the BF multipliers of the "hfe
+	// min" and "hfe max" corners (0 where the corner does not apply).
+	hfeFactor [][2]float64
+	pool      *pool
 }
 
-// Analyze solves c and computes every fact of its nominal case.
+// Analyze solves c and computes every fact of its nominal case, then of
+// every scenario, corner and Monte Carlo run opt asks for. Cases[0] is the
+// nominal case; the order of the others is fixed by the circuit and the
+// options, never by the scheduling of the workers.
 func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
+	if c == nil {
+		return nil, fmt.Errorf("no circuit to analyse")
+	}
 	b, errs := board.FromCircuit(c)
 	b.Merge(opt.Board, errs)
-	a := &analyzer{c: c, board: b, parts: opt.Parts, roles: map[string][2]string{}}
+	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts, roles: map[string][2]string{}}
 	a.notes.Merge(errs)
 	if a.parts == nil {
 		lib, err := rulesets.Parts()
@@ -80,78 +152,91 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	if opt.Temp != nil {
 		a.temp = *opt.Temp
 	}
+	if opt.MonteCarlo < 0 || opt.MonteCarlo > MaxMonteCarlo {
+		return nil, fmt.Errorf("Monte Carlo runs %d: want 0 to %d", opt.MonteCarlo, MaxMonteCarlo)
+	}
+	if r := opt.AmbientRange; r != nil && (!(r[0] <= r[1]) || r[0] < -273.15 || math.IsInf(r[1], 0)) {
+		return nil, fmt.Errorf("ambient range %g:%g C is not a range of temperatures", r[0], r[1])
+	}
 	a.g = newGraph(c, b)
-
-	sys, err := solve.Prepare(c)
+	// Structural problems are reported once, against the circuit as given.
+	if _, err := solve.Prepare(c); err != nil {
+		return nil, err
+	}
+	a.prepare()
+	if err := a.templates(); err != nil {
+		return nil, err
+	}
+	a.pool = newPool(a)
+	an, err := a.run()
 	if err != nil {
 		return nil, err
 	}
-	res, err := sys.Solve(solve.Options{Temp: solve.Temp(a.temp)})
-	if err != nil {
-		return nil, err
-	}
-	cs, err := a.facts("nominal", res)
-	if err != nil {
-		return nil, err
-	}
-	an := &Analysis{Circuit: c, Cases: []Case{cs}, Board: b}
+	an.Board = b
 	a.notes.Sort()
 	an.Notes = a.notes.List
 	return an, nil
 }
 
-// facts computes every fact of one solved case.
-func (a *analyzer) facts(scenario string, res *solve.Result) (Case, error) {
-	cs := Case{Scenario: scenario, Ambient: a.ambient, Solution: res}
-	for _, op := range res.BJTs {
-		el := a.c.Element(op.Name)
-		if el == nil {
-			continue
-		}
-		t, err := a.transistor(el, op, res)
-		if err != nil {
-			return cs, err
-		}
-		cs.Transistors = append(cs.Transistors, t)
-	}
+// prepare records the nominal values and the nets' first positions.
+func (a *analyzer) prepare() {
+	a.nominal = map[string]float64{}
+	a.firstPos = map[string]netlist.Pos{}
+	a.bjtIdx = map[string]int{}
 	for _, el := range a.c.Elements {
-		if el.Kind == 'R' && len(el.Nodes) == 2 {
-			cs.Resistors = append(cs.Resistors, a.resistor(el, res))
+		switch el.Kind {
+		case 'R':
+			a.nominal[netlist.Key(el.Name)] = el.Value
+		case 'V', 'I':
+			if el.Source != nil {
+				a.nominal[netlist.Key(el.Name)] = el.Source.DC
+			} else {
+				a.nominal[netlist.Key(el.Name)] = 0
+			}
+		case 'Q':
+			if len(el.Nodes) >= 3 {
+				a.bjtIdx[netlist.Key(el.Name)] = len(a.bjts)
+				a.bjts = append(a.bjts, el)
+			}
 		}
-	}
-	first := map[string]netlist.Pos{}
-	for _, el := range a.c.Elements {
 		for _, n := range el.Nodes {
-			if _, ok := first[nodeKey(n)]; !ok {
-				first[nodeKey(n)] = el.Pos
+			if _, ok := a.firstPos[nodeKey(n)]; !ok {
+				a.firstPos[nodeKey(n)] = el.Pos
 			}
 		}
 	}
-	for _, n := range res.Nodes {
-		cs.Nodes = append(cs.Nodes, Node{Name: n.Name, V: n.V, Peak: math.Abs(n.V), Pos: first[nodeKey(n.Name)]})
-	}
-	return cs, nil
 }
 
-// transistor computes one BJT's facts.
-func (a *analyzer) transistor(el *netlist.Element, op solve.BJTOp, res *solve.Result) (Transistor, error) {
+// templates computes the case-independent facts of every transistor:
+// names, role, model parameters, ratings and topology (the Thevenin and
+// emitter-resistance solves are made here, once, on the nominal circuit).
+func (a *analyzer) templates() error {
+	a.tmpl = make([]Transistor, len(a.bjts))
+	for i, el := range a.bjts {
+		a.tmpl[i] = a.template(el)
+	}
+	return nil
+}
+
+// template computes one BJT's case-independent facts.
+func (a *analyzer) template(el *netlist.Element) Transistor {
+	pol := "npn"
+	m := a.c.Models[netlist.Key(el.Model)]
+	if m == nil {
+		m = a.c.Models[el.Model]
+	}
+	if m != nil && m.Type == netlist.PNP {
+		pol = "pnp"
+	}
 	s := 1.0
-	if op.Polarity == "pnp" {
+	if pol == "pnp" {
 		s = -1
 	}
 	t := Transistor{
-		Name: el.Name, Polarity: op.Polarity,
+		Name: el.Name, Polarity: pol,
 		Collector: el.Nodes[0], Base: el.Nodes[1], Emitter: el.Nodes[2],
-		VBE: s * op.VBE, VCE: s * op.VCE, VCB: -s * op.VBC,
-		IC: s * op.IC, IB: s * op.IB, IE: s * op.IE,
-		Power: op.Power, Region: string(op.Region),
-		Ambient: a.ambient, Pos: el.Pos, Chain: el.Chain,
+		Pos: el.Pos, Chain: el.Chain,
 	}
-	t.Beta = math.NaN()
-	if t.IB != 0 {
-		t.Beta = t.IC / t.IB
-	}
-	m := a.c.Models[el.Model]
 	if m != nil {
 		t.Model = m.Name
 		if p, err := device.BJTParamsOf(m, a.c.Options.TNom); err == nil {
@@ -161,9 +246,6 @@ func (a *analyzer) transistor(el *netlist.Element, op solve.BJTOp, res *solve.Re
 		}
 	}
 	t.Rating = a.ratings(el, t.Model, t.Polarity)
-	t.PdDerated = DeratedPower(t.Rating, a.ambient)
-	t.Tj = a.ambient + t.Power*t.Rating.RthJA
-
 	t.Role, t.RoleFrom = a.roleOf(el, 0)
 	if t.RoleFrom == "default" {
 		a.notes.Notef(el.Pos, "%s: role taken as linear (no annotation and no PULSE, PWL or SIN drive found); write *@device %s role=switch if it switches", el.Name, el.Name)
@@ -174,9 +256,30 @@ func (a *analyzer) transistor(el *netlist.Element, op solve.BJTOp, res *solve.Re
 		t.Drives = append(t.Drives, d.Name)
 	}
 	t.EmitterR = a.emitterResistance(el)
-	rth, vth := a.thevenin(el, s)
-	t.BaseRth, t.BaseVth = rth, vth
-	return t, nil
+	t.BaseRth, t.BaseVth = thevenin(a.c, el.Name, s, a.temp)
+	return t
+}
+
+// transistor fills one BJT's case facts: the template's, with the
+// operating point of op at ambient ta.
+func (a *analyzer) transistor(j int, op solve.BJTOp, ta float64) Transistor {
+	t := a.tmpl[j]
+	s := 1.0
+	if op.Polarity == "pnp" {
+		s = -1
+	}
+	t.VBE, t.VCE, t.VCB = s*op.VBE, s*op.VCE, -s*op.VBC
+	t.IC, t.IB, t.IE = s*op.IC, s*op.IB, s*op.IE
+	t.Power, t.Region = op.Power, string(op.Region)
+	t.Beta = math.NaN()
+	if t.IB != 0 {
+		t.Beta = t.IC / t.IB
+	}
+	t.Ambient = ta
+	t.PdDerated = DeratedPower(t.Rating, ta)
+	t.Tj = ta + t.Power*t.Rating.RthJA
+	t.DeviceTemp = op.Temp
+	return t
 }
 
 // DeratedPower is the dissipation limit at ambient ta, W: the 25 C rating
@@ -235,19 +338,19 @@ func (a *analyzer) ratings(el *netlist.Element, model, polarity string) Ratings 
 	return r
 }
 
-// resistor computes one resistor's facts.
-func (a *analyzer) resistor(el *netlist.Element, res *solve.Result) Resistor {
+// resistor computes one resistor's facts with resistance r, Ohm.
+func (a *analyzer) resistor(el *netlist.Element, r float64, res *solve.Result) Resistor {
 	va, vb := res.Voltage[nodeKey(el.Nodes[0])], res.Voltage[nodeKey(el.Nodes[1])]
-	r := Resistor{Name: el.Name, NodeA: el.Nodes[0], NodeB: el.Nodes[1], R: el.Value, V: va - vb,
+	f := Resistor{Name: el.Name, NodeA: el.Nodes[0], NodeB: el.Nodes[1], R: r, V: va - vb,
 		Rating: DefaultResistorPower, RatingFrom: "default", Pos: el.Pos, Chain: el.Chain}
-	if el.Value != 0 {
-		r.I = r.V / el.Value
+	if r != 0 {
+		f.I = f.V / r
 	} else if i, ok := res.Current[netlist.Key(el.Name)]; ok {
-		r.I = i
+		f.I = i
 	}
-	r.Power = r.V * r.I
+	f.Power = f.V * f.I
 	if d := a.board.Device(el.Name); d != nil && !math.IsNaN(d.Power) {
-		r.Rating, r.RatingFrom = d.Power, "annotation at "+d.Pos.String()
+		f.Rating, f.RatingFrom = d.Power, "annotation at "+d.Pos.String()
 	}
-	return r
+	return f
 }

@@ -140,6 +140,66 @@ type Transistor struct {
 	// Drives are the names of the source(s) that drive the base.
 	Drives []string `expr:"drives"`
 
+	// The case this fact set belongs to, for rules that judge only some
+	// kinds of case. Swing is true at a point of a signal swing (capacitors
+	// held at their operating-point voltages, see scenarios.go) and
+	// SwingLevel is the swing source's deviation from its centre there, V
+	// (0 outside a swing). DriveOpen is true when the case opens a drive of
+	// this base.
+	Swing      bool    `expr:"swing"`
+	SwingLevel float64 `expr:"swing_level"`
+	DriveOpen  bool    `expr:"drive_open"`
+	// BaseFloats is true when, in a case that opens a drive of this base,
+	// solving shows that nothing else holds it: the Thevenin resistance the
+	// base sees exceeds 10 GOhm. OpenJudged (in every case) is true when
+	// some scenario opens a drive of this base, so floating is judged
+	// there by solving rather than from Bleed alone.
+	BaseFloats bool `expr:"base_floats"`
+	OpenJudged bool `expr:"open_judged"`
+
+	// hFE spread (cross-case, per drive-level scenario): IC in the "hfe min"
+	// and "hfe max" corners of this case's scenario, A (forward-referenced),
+	// and ICBetaSpread = |IC(hfe max) - IC(hfe min)| / |IC(nominal corner)|
+	// (a share, 0.2 for 20 %). BetaJudged is true only in the nominal-corner
+	// case of a scenario whose hFE corners were solved; the other fields
+	// are 0 where it is false.
+	BetaJudged   bool    `expr:"beta_judged"`
+	ICHFEMin     float64 `expr:"ic_hfe_min"`
+	ICHFEMax     float64 `expr:"ic_hfe_max"`
+	ICBetaSpread float64 `expr:"ic_beta_spread"`
+
+	// Electro-thermal facts. Thermal is true when the device temperature
+	// comes from the coupled electro-thermal solve (see thermal.go);
+	// DeviceTemp is the temperature the device was solved at, C.
+	// ThermalGain is the loop gain dP/dTj * RthJA at this case's operating
+	// point (dimensionless; 0 when Thermal is false, NaN when RthJA is not
+	// known). ThermalRunaway is true when no stable fixed point was found
+	// below Tj max; RunawayTj is the junction temperature from which the
+	// loop ran away, C (the operating Tj when it did not).
+	Thermal        bool    `expr:"thermal"`
+	DeviceTemp     float64 `expr:"device_temp"`
+	ThermalGain    float64 `expr:"thermal_gain"`
+	ThermalRunaway bool    `expr:"thermal_runaway"`
+	RunawayTj      float64 `expr:"runaway_tj"`
+
+	// Signal clipping (cross-case, over the quasi-static swing of one
+	// source; in a swing case the facts of that case's source, elsewhere
+	// the worst source). Clips is true when the stage, forward-active at the
+	// centre of the swing, leaves forward-active inside it; ClipSource is
+	// the source, ClipLevel the signed deviation of the source from its
+	// centre at which it leaves (V), ClipRegion where it goes ("saturation"
+	// or "cutoff"), SwingPeak the source's peak deviation (V), SwingGain the
+	// small-signal gain dV(collector)/dV(source) at the centre, and
+	// HeadroomMissing = (SwingPeak - |ClipLevel|) * |SwingGain|, the
+	// collector swing the stage lacks, V. Numbers are 0 where Clips is false.
+	Clips           bool    `expr:"clips"`
+	ClipSource      string  `expr:"clip_source"`
+	ClipLevel       float64 `expr:"clip_level"`
+	ClipRegion      string  `expr:"clip_region"`
+	SwingPeak       float64 `expr:"swing_peak"`
+	SwingGain       float64 `expr:"swing_gain"`
+	HeadroomMissing float64 `expr:"headroom_missing"`
+
 	// Pos is where the device's line is; Chain the instances that placed it.
 	Pos   netlist.Pos        `expr:"-"`
 	Chain []netlist.Instance `expr:"-"`
@@ -192,6 +252,11 @@ type Case struct {
 	Nodes       []Node
 	// Solution is the solved operating point the facts were taken from.
 	Solution *solve.Result
+	// Kind says how the case was made: "nominal", "drive level", "drive
+	// open", "swing", "corner" or "monte carlo".
+	Kind string
+	// Run is the Monte Carlo run number (1-based), 0 for other cases.
+	Run int
 }
 
 // Analysis is everything checks learned about one circuit.

@@ -31,17 +31,7 @@ const testCurrent = 1e-6
 func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 	// Supernodes: nets joined by shorts.
 	parent := map[string]string{}
-	var find func(string) string
-	find = func(x string) string {
-		for i := 0; i <= len(parent); i++ {
-			p, ok := parent[x]
-			if !ok || p == x {
-				return x
-			}
-			x = p
-		}
-		return x
-	}
+	find := func(x string) string { return findRoot(parent, x) }
 	for _, e := range a.c.Elements {
 		switch e.Kind {
 		case 'V', 'L', 'E', 'H':
@@ -119,18 +109,28 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 	return res.Voltage[netlist.Key(name(emit))]
 }
 
-// thevenin is the Thevenin source the base sees with the transistor
-// removed: vth the open-circuit base voltage forward-referenced to the
-// emitter (V(B) - V(E) for an NPN, V(E) - V(B) for a PNP), V, and rth the
-// resistance, Ohm, measured by injecting testCurrent into the base. Both
-// come from solving the whole circuit, other transistors included. A base
-// with no DC source at all gives rth = +Inf and vth = NaN; a circuit that
-// cannot be solved without the transistor gives NaN for both.
-func (a *analyzer) thevenin(q *netlist.Element, sign float64) (rth, vth float64) {
+// thevenin is the Thevenin source the base of transistor name sees in
+// circuit c with the transistor removed: vth the open-circuit base voltage
+// forward-referenced to the emitter (V(B) - V(E) for an NPN, V(E) - V(B)
+// for a PNP, sign is +1 or -1), V, and rth the resistance, Ohm, measured by
+// injecting testCurrent into the base, both solved at temp (C). Both come
+// from solving the whole circuit, other transistors included. A base with
+// no DC source at all gives rth = +Inf and vth = NaN; a circuit that cannot
+// be solved without the transistor gives NaN for both.
+func thevenin(c *netlist.Circuit, name string, sign, temp float64) (rth, vth float64) {
+	var q *netlist.Element
+	for _, e := range c.Elements {
+		if e.Kind == 'Q' && netlist.Key(e.Name) == netlist.Key(name) {
+			q = e
+		}
+	}
+	if q == nil || len(q.Nodes) < 3 {
+		return math.NaN(), math.NaN()
+	}
 	base := func(extra float64) (float64, bool) {
-		tc := *a.c
-		tc.Elements = make([]*netlist.Element, 0, len(a.c.Elements)+4)
-		for _, e := range a.c.Elements {
+		tc := *c
+		tc.Elements = make([]*netlist.Element, 0, len(c.Elements)+4)
+		for _, e := range c.Elements {
 			if e != q {
 				tc.Elements = append(tc.Elements, e)
 			}
@@ -143,7 +143,7 @@ func (a *analyzer) thevenin(q *netlist.Element, sign float64) (rth, vth float64)
 			tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'I', Name: "I#test",
 				Nodes: []string{netlist.Ground, q.Nodes[1]}, Source: &netlist.Source{DC: extra, HasDC: true}, Pos: q.Pos})
 		}
-		res, err := solve.Solve(&tc, solve.Options{Temp: solve.Temp(a.temp)})
+		res, err := solve.Solve(&tc, solve.Options{Temp: solve.Temp(temp)})
 		if err != nil {
 			return 0, false
 		}
@@ -159,4 +159,17 @@ func (a *analyzer) thevenin(q *netlist.Element, sign float64) (rth, vth float64)
 		return math.Inf(1), math.NaN()
 	}
 	return math.Max(rth, 0), sign * v0
+}
+
+// findRoot returns the root of x in the union-find forest parent (a net
+// with no entry is its own root). The walk is bounded by the forest's size.
+func findRoot(parent map[string]string, x string) string {
+	for i := 0; i <= len(parent); i++ {
+		p, ok := parent[x]
+		if !ok || p == x {
+			return x
+		}
+		x = p
+	}
+	return x
 }

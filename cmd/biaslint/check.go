@@ -3,8 +3,14 @@ package main
 import (
 	"bytes"
 	"fmt"
+	"github.com/mattn/go-isatty"
+	"github.com/schollz/progressbar/v3"
+	"io"
+	"math"
 	"os"
+	"strconv"
 	"strings"
+	"time"
 
 	"github.com/urfave/cli/v2"
 
@@ -56,6 +62,12 @@ func checkCommand() *cli.Command {
 			partsFlag, boardFlag, ambientFlag, tempFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
 			colorFlag, outputFlag, demoFlag,
+			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
+			&cli.BoolFlag{Name: "thermal", Value: true, Usage: "solve each transistor at its junction temperature Ta + P*RthJA (--thermal=false: at the ambient)"},
+			&cli.BoolFlag{Name: "corners", Value: true, Usage: "also judge the hFE, ambient, supply and resistor corners (--corners=false: scenarios at nominal values only)"},
+			&cli.IntFlag{Name: "monte-carlo", Usage: "add `N` Monte Carlo runs drawing every resistor and supply within its tolerance"},
+			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
+			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
 		},
 		Action: runCheck,
 	}
@@ -174,12 +186,21 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	run := &checkRun{set: set}
 	run.report.Version = version
 	run.report.RuleSet = set
-	opt := checks.Options{Parts: parts}
+	opt, err := worstCaseOptions(c, set)
+	if err != nil {
+		return nil, err
+	}
+	opt.Parts = parts
 	if opt.Ambient, err = tempOf(c, "ambient"); err != nil {
 		return nil, err
 	}
 	if opt.Temp, err = tempOf(c, "temp"); err != nil {
 		return nil, err
+	}
+	if len(inputs) == 1 {
+		bar := newCaseProgress(c)
+		defer bar.finish()
+		opt.Progress = bar.update
 	}
 	var problems []string
 	for _, in := range inputs {
@@ -267,4 +288,102 @@ func runCheck(c *cli.Context) error {
 		return &statusError{code: exitFindings}
 	}
 	return nil
+}
+
+// worstCaseOptions reads check's scenario, corner, thermal and Monte Carlo
+// flags. The ambient range comes from --ambient-range, else from the first
+// rule set's ambient_min and ambient_max parameters, else the default.
+func worstCaseOptions(c *cli.Context, set *rules.RuleSet) (checks.Options, error) {
+	opt := checks.Options{Scenarios: true, Corners: c.Bool("corners"), Thermal: c.Bool("thermal"),
+		MonteCarlo: c.Int("monte-carlo"), Seed: c.Uint64("seed")}
+	switch d := checks.Distribution(c.String("distribution")); d {
+	case checks.Uniform, checks.Normal:
+		opt.Distribution = d
+	default:
+		return opt, badInput(fmt.Errorf("biaslint: --distribution must be uniform or normal, not %q", c.String("distribution")))
+	}
+	if opt.MonteCarlo < 0 || opt.MonteCarlo > checks.MaxMonteCarlo {
+		return opt, badInput(fmt.Errorf("biaslint: --monte-carlo %d: give a number of runs from 0 to %d", opt.MonteCarlo, checks.MaxMonteCarlo))
+	}
+	rng := checks.DefaultAmbientRange
+	if set != nil {
+		if lo, ok := set.Param("ambient_min"); ok {
+			rng[0] = lo.Value
+		}
+		if hi, ok := set.Param("ambient_max"); ok {
+			rng[1] = hi.Value
+		}
+	}
+	if c.IsSet("ambient-range") {
+		r, err := parseRange(c.String("ambient-range"))
+		if err != nil {
+			return opt, badInput(err)
+		}
+		rng = r
+	}
+	if !(rng[0] <= rng[1]) {
+		return opt, badInput(fmt.Errorf("biaslint: ambient range %g:%g C: the minimum is above the maximum", rng[0], rng[1]))
+	}
+	opt.AmbientRange = &rng
+	return opt, nil
+}
+
+// parseRange reads MIN:MAX in degrees Celsius.
+func parseRange(s string) ([2]float64, error) {
+	lo, hi, ok := strings.Cut(s, ":")
+	var r [2]float64
+	bad := fmt.Errorf("biaslint: --ambient-range %q: write MIN:MAX in C, e.g. --ambient-range -40:85", s)
+	if !ok {
+		return r, bad
+	}
+	for i, part := range []string{lo, hi} {
+		v, err := strconv.ParseFloat(strings.TrimSuffix(strings.TrimSpace(part), "C"), 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) || v < -273.15 || v > 1000 {
+			return r, bad
+		}
+		r[i] = v
+	}
+	if r[0] > r[1] {
+		return r, bad
+	}
+	return r, nil
+}
+
+// caseProgress shows a progress bar on stderr while cases are solved, when
+// stderr is a terminal and the run has taken over a second.
+type caseProgress struct {
+	w     io.Writer
+	on    bool
+	start time.Time
+	bar   *progressbar.ProgressBar
+}
+
+func newCaseProgress(c *cli.Context) *caseProgress {
+	p := &caseProgress{w: c.App.ErrWriter, start: time.Now()}
+	if f, ok := p.w.(*os.File); ok {
+		p.on = isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd())
+	}
+	return p
+}
+
+// update is checks.Options.Progress.
+func (p *caseProgress) update(done, total int) {
+	if !p.on || time.Since(p.start) < time.Second {
+		return
+	}
+	if p.bar == nil {
+		p.bar = progressbar.NewOptions(total, progressbar.OptionSetWriter(p.w),
+			progressbar.OptionSetDescription("solving cases"), progressbar.OptionShowCount(),
+			progressbar.OptionClearOnFinish(), progressbar.OptionThrottle(100*time.Millisecond))
+	}
+	p.bar.ChangeMax(total)
+	_ = p.bar.Set(done)
+}
+
+// finish clears the bar.
+func (p *caseProgress) finish() {
+	if p.bar != nil {
+		_ = p.bar.Finish()
+		_ = p.bar.Clear()
+	}
 }

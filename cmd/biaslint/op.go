@@ -4,12 +4,13 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"math"
 	"strings"
 	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
 
-	"github.com/biaslint/biaslint/checks/solve"
+	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/netlist/units"
 )
@@ -22,6 +23,7 @@ func opCommand() *cli.Command {
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "text", Usage: formatFlagUsage + ": text or json"},
 			tempFlag,
+			&cli.BoolFlag{Name: "thermal", Usage: "solve each transistor at its junction temperature T + P*RthJA (ratings from the parts library and *@part annotations)"},
 			colorFlag,
 			outputFlag,
 			demoFlag,
@@ -57,7 +59,10 @@ type opBJT struct {
 	IE       float64 `json:"ie"`
 	Power    float64 `json:"power"`
 	Region   string  `json:"region"`
-	Pos      string  `json:"position"`
+	// Tj is the junction temperature T + P*RthJA, C (null when RthJA is
+	// not known).
+	Tj  *float64 `json:"tj"`
+	Pos string   `json:"position"`
 }
 
 func runOp(c *cli.Context) error {
@@ -113,10 +118,17 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	if err != nil {
 		return opFile{}, err
 	}
-	opt := solve.Options{Temp: t}
-	res, err := solve.Solve(circ, opt)
+	if t == nil {
+		t = &circ.Options.Temp
+	}
+	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: t, Thermal: c.Bool("thermal")})
 	if err != nil {
 		return opFile{}, err
+	}
+	res := an.Cases[0].Solution
+	tj := map[string]float64{}
+	for _, q := range an.Cases[0].Transistors {
+		tj[q.Name] = q.Tj
 	}
 	f := opFile{
 		File:        circ.File,
@@ -143,6 +155,9 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 			VBE: q.VBE, VBC: q.VBC, VCE: q.VCE, IC: q.IC, IB: q.IB, IE: q.IE,
 			Power: q.Power, Region: string(q.Region), Pos: q.Pos.String(),
 		})
+		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) {
+			f.BJTs[len(f.BJTs)-1].Tj = &v
+		}
 	}
 	return f, nil
 }
@@ -163,13 +178,17 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			fmt.Fprintln(w, "  no bipolar transistors")
 		} else {
 			tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-			fmt.Fprintln(tw, "  transistor\tmodel\tregion\tVBE\tVCE\tIC\tIB\tIC/IB\tpower")
+			fmt.Fprintln(tw, "  transistor\tmodel\tregion\tVBE\tVCE\tIC\tIB\tIC/IB\tpower\tTj")
 			for _, q := range r.BJTs {
-				fmt.Fprintf(tw, "  %s\t%s %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
+				tjText := "-"
+				if q.Tj != nil {
+					tjText = units.Format(*q.Tj, "C")
+				}
+				fmt.Fprintf(tw, "  %s\t%s %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
 					q.Name, q.Model, p.dim(q.Polarity), regionText(p, q.Region),
 					units.Format(q.VBE, "V"), units.Format(q.VCE, "V"),
 					units.Format(q.IC, "A"), units.Format(q.IB, "A"),
-					forcedBeta(q), units.Format(q.Power, "W"))
+					forcedBeta(q), units.Format(q.Power, "W"), tjText)
 			}
 			tw.Flush()
 		}

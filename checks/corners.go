@@ -1,0 +1,343 @@
+package checks
+
+// This file makes the worst-case corners. Each is applied to the nominal
+// case and to every drive-level scenario (its "group"), one kind at a time:
+//
+//   - "hfe min", "hfe max": every transistor's BF is set so that its hFE
+//     (IC/IB at its nominal operating point, or at IC = 1 mA, VCB = 1 V
+//     when it is not forward-active there) equals the part's hfemin or
+//     hfemax. At fixed junction voltages the Gummel-Poon base current is
+//     IB = Ibe/BF + (leakage terms), and IC does not depend on BF, so the
+//     BF giving hFE h is BF * (Ibe/BF) / (IC/h - leakage), exact at that
+//     point (see hfeFactors).
+//   - "ambient MIN C", "ambient MAX C": the ambient range; the devices are
+//     solved at that temperature (or at their junction temperature with
+//     the electro-thermal solve), with the published (Nagel 1975) scaling.
+//   - "supplies -5 %", "supplies +5 %": every rail (a DC voltage source
+//     that is not a drive) at its value times 1 -/+ its tolerance.
+//   - "resistors worst Q1 IC-high" and the like: extreme-value analysis.
+//     First-order sensitivities of each transistor's IC (and, for a
+//     switch, its forced beta IC/IB) to each resistor are taken by solving
+//     with the resistor moved by sensitivityStep of its value; each
+//     resistor then goes to the end of its tolerance that moves the
+//     objective the wrong way, and the corner is solved (the verification
+//     solve). Objectives: IC high for every conducting transistor, IC low
+//     for a linear stage, drive weak (forced beta high) for a switch.
+//     Corners with the same resistor values are solved once, named after
+//     the first objective that asked for them.
+//
+// Corners are single-factor: not a product of every kind, which would
+// multiply the case count without telling a reviewer which tolerance
+// hurts.
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/biaslint/biaslint/checks/device"
+	"github.com/biaslint/biaslint/checks/solve"
+	"github.com/biaslint/biaslint/netlist"
+)
+
+// sensitivityStep is the relative resistor step of the first-order
+// sensitivities.
+const sensitivityStep = 1e-4
+
+// conductingIC is the forward collector current above which a transistor
+// counts as conducting for the resistor corners, A (the default rule set's
+// linear_ic_min).
+const conductingIC = 1e-6
+
+// referenceIC is the collector current at which hFE is taken for a
+// transistor that is not forward-active at its nominal point, A.
+const referenceIC = 1e-3
+
+// tolerance returns an element's relative tolerance.
+func (a *analyzer) tolerance(el *netlist.Element, def float64) float64 {
+	if d := a.board.Device(el.Name); d != nil && !math.IsNaN(d.Tol) {
+		return d.Tol
+	}
+	if def > 0 {
+		return def
+	}
+	return DefaultTolerance
+}
+
+// hfeFactors computes each transistor's BF multipliers for the hFE
+// corners from the nominal solution.
+func (a *analyzer) hfeFactors(res *solve.Result) {
+	a.hfeFactor = make([][2]float64, len(a.bjts))
+	ops := map[string]solve.BJTOp{}
+	for _, op := range res.BJTs {
+		ops[netlist.Key(op.Name)] = op
+	}
+	dopt := device.Options{TNom: a.c.Options.TNom, GMin: a.c.Options.GMin}
+	if !(dopt.GMin > 0) {
+		dopt.GMin = solve.DefaultGMin
+	}
+	for j, el := range a.bjts {
+		t := &a.tmpl[j]
+		lo, hi := t.Rating.HFEMin, t.Rating.HFEMax
+		op, ok := ops[netlist.Key(el.Name)]
+		m := a.c.Models[netlist.Key(el.Model)]
+		if m == nil {
+			m = a.c.Models[el.Model]
+		}
+		if !ok || m == nil || !(lo > 0) || !(hi >= lo) || math.IsInf(hi, 0) {
+			continue
+		}
+		area := el.Area
+		if area == 0 {
+			area = 1
+		}
+		two := *m
+		two.Params = map[string]float64{}
+		for k, v := range m.Params {
+			two.Params[k] = v
+		}
+		two.Params["BF"] = 2 * t.GP.BF
+		b1, err1 := device.NewBJT(m, area, op.Temp, dopt)
+		b2, err2 := device.NewBJT(&two, area, op.Temp, dopt)
+		if err1 != nil || err2 != nil {
+			continue
+		}
+		sg := b1.Polarity.Sign()
+		vbe, vbc := op.JunctionVBE, op.JunctionVBC
+		if op.Region != device.Active || sg*op.IC < conductingIC {
+			// Reference point: VBC = -1 V, VBE for IC = referenceIC.
+			vbc = -sg
+			l, h := 0.0, 1.5
+			for i := 0; i < 60; i++ {
+				mid := (l + h) / 2
+				if sg*b1.Eval(sg*mid, vbc).IC < referenceIC*area {
+					l = mid
+				} else {
+					h = mid
+				}
+			}
+			vbe = sg * (l + h) / 2
+		}
+		e1, e2 := b1.Eval(vbe, vbc), b2.Eval(vbe, vbc)
+		ic := sg * e1.IC
+		ideal := 2 * sg * (e1.IB - e2.IB) // Ibe/BF
+		other := sg*e1.IB - ideal
+		for k, h := range []float64{lo, hi} {
+			want := ic/h - other
+			if !(ideal > 0) || !(want > 0) || !(ic > 0) {
+				a.notes.Notef(el.Pos, "%s: hFE %g cannot be reached by BF at its operating point (leakage base current too large); its hFE corner keeps BF", el.Name, h)
+				continue
+			}
+			a.hfeFactor[j][k] = ideal / want
+		}
+	}
+}
+
+// corners lists every corner of every group.
+func (a *analyzer) corners(specs []caseSpec, outs []caseOut, groups []int) ([]caseSpec, error) {
+	var out []caseSpec
+	hfe := false
+	for _, f := range a.hfeFactor {
+		hfe = hfe || f[0] > 0 || f[1] > 0
+	}
+	rng := DefaultAmbientRange
+	if a.opt.AmbientRange != nil {
+		rng = *a.opt.AmbientRange
+	}
+	var rails []*netlist.Element
+	for _, el := range a.c.Elements {
+		if el.Kind == 'V' && !isDriveSource(el, a.board) && el.Source != nil && el.Source.DC != 0 {
+			rails = append(rails, el)
+		}
+	}
+	supplyName := func(sign string) string {
+		t := a.tolerance(rails[0], a.opt.Tolerances.Supply)
+		for _, r := range rails[1:] {
+			if a.tolerance(r, a.opt.Tolerances.Supply) != t {
+				if sign == "-" {
+					return "supplies low"
+				}
+				return "supplies high"
+			}
+		}
+		return fmt.Sprintf("supplies %s%g %%", sign, math.Round(t*1e4)/100)
+	}
+	sens, err := a.sensitivities(specs, outs, groups)
+	if err != nil {
+		return nil, err
+	}
+	for gi, g := range groups {
+		base := specs[g]
+		mk := func(corner string) caseSpec {
+			sp := base
+			sp.corner, sp.kind, sp.guess, sp.group = corner, KindCorner, g, g
+			sp.set = append([]setting(nil), base.set...)
+			return sp
+		}
+		if hfe {
+			for _, h := range []int{-1, 1} {
+				name := "hfe min"
+				if h > 0 {
+					name = "hfe max"
+				}
+				sp := mk(name)
+				sp.hfe = h
+				out = append(out, sp)
+			}
+		}
+		for _, ta := range rng {
+			if ta == a.ambient {
+				continue
+			}
+			sp := mk("ambient " + fmt.Sprintf("%g", ta) + " C")
+			sp.ambient, sp.temp = ta, ta
+			out = append(out, sp)
+		}
+		if len(rails) > 0 {
+			for _, sign := range []float64{-1, 1} {
+				name := supplyName("+")
+				if sign < 0 {
+					name = supplyName("-")
+				}
+				sp := mk(name)
+				for _, r := range rails {
+					k := netlist.Key(r.Name)
+					sp.set = setKey(sp.set, k, a.nominal[k]*(1+sign*a.tolerance(r, a.opt.Tolerances.Supply)))
+				}
+				out = append(out, sp)
+			}
+		}
+		var seen [][]setting
+		for _, c := range sens[gi] {
+			sp := mk("resistors worst " + c.name)
+			sp.set = append(sp.set, c.set...)
+			dup := false
+			for _, s := range seen {
+				if sameSettings(s, c.set) {
+					dup = true
+				}
+			}
+			if dup || len(c.set) == 0 {
+				continue
+			}
+			seen = append(seen, c.set)
+			out = append(out, sp)
+		}
+	}
+	return out, nil
+}
+
+// setKey sets key to v in set.
+func setKey(set []setting, key string, v float64) []setting {
+	for i := range set {
+		if set[i].key == key {
+			set[i].v = v
+			return set
+		}
+	}
+	return append(set, setting{key, v})
+}
+
+// resistorCorner is one extreme-value corner: its objective's name and
+// the resistor values.
+type resistorCorner struct {
+	name string
+	set  []setting
+}
+
+// sensitivities solves the first-order resistor sensitivities of every
+// group and returns its extreme-value corners.
+func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int) ([][]resistorCorner, error) {
+	var rs []*netlist.Element
+	var tol []float64
+	for _, el := range a.c.Elements {
+		if el.Kind == 'R' && len(el.Nodes) == 2 && el.Value != 0 {
+			if t := a.tolerance(el, a.opt.Tolerances.Resistor); t > 0 {
+				rs, tol = append(rs, el), append(tol, t)
+			}
+		}
+	}
+	out := make([][]resistorCorner, len(groups))
+	if len(rs) == 0 {
+		return out, nil
+	}
+	n := len(a.bjts)
+	// Job g*(len(rs)+1)+0 is the group's tight base solve; +1+i moves
+	// resistor i.
+	per := len(rs) + 1
+	ic := make([][]float64, len(groups)*per)
+	beta := make([][]float64, len(groups)*per)
+	errs := make([]error, len(groups)*per)
+	a.pool.each(len(groups)*per, func(w *worker, k int) {
+		gi, i := k/per, k%per-1
+		sp := specs[groups[gi]]
+		if w.err != nil {
+			errs[k] = w.err
+			return
+		}
+		w.setHFE(0)
+		set := append([]setting(nil), sp.set...)
+		if i >= 0 {
+			key := netlist.Key(rs[i].Name)
+			set = setKey(set, key, rs[i].Value*(1+sensitivityStep))
+		}
+		if err := w.apply(w.sys, &w.dirty, set); err != nil {
+			errs[k] = err
+			return
+		}
+		held := map[string]float64{}
+		for _, op := range outs[groups[gi]].res.BJTs {
+			held[netlist.Key(op.Name)] = op.Temp
+		}
+		o := tightOptions(solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: held, Guess: outs[groups[gi]].res, Linear: w.lu})
+		r, err := w.sys.Solve(o)
+		if err != nil {
+			errs[k] = err
+			return
+		}
+		ic[k], beta[k] = make([]float64, n), make([]float64, n)
+		for _, op := range r.BJTs {
+			j := a.bjtIdx[netlist.Key(op.Name)]
+			s := 1.0
+			if op.Polarity == "pnp" {
+				s = -1
+			}
+			ic[k][j] = s * op.IC
+			beta[k][j] = op.IC / op.IB
+		}
+	})
+	for k, err := range errs {
+		if err != nil {
+			return nil, caseError(&specs[groups[k/per]], fmt.Errorf("resistor sensitivities: %w", err))
+		}
+	}
+	for gi := range groups {
+		b := gi * per
+		corner := func(j int, what string, obj [][]float64, up bool) {
+			var set []setting
+			for i, r := range rs {
+				d := obj[b+1+i][j] - obj[b][j]
+				if math.Abs(d) <= 1e-9*math.Abs(obj[b][j]) || math.IsNaN(d) {
+					continue
+				}
+				sign := 1.0
+				if (d < 0) == up {
+					sign = -1
+				}
+				set = append(set, setting{netlist.Key(r.Name), r.Value * (1 + sign*tol[i])})
+			}
+			out[gi] = append(out[gi], resistorCorner{name: a.bjts[j].Name + " " + what, set: set})
+		}
+		for j := range a.bjts {
+			if !(ic[b][j] > conductingIC) {
+				continue
+			}
+			corner(j, "IC-high", ic, true)
+			if a.tmpl[j].Role == RoleSwitch {
+				corner(j, "drive-weak", beta, true)
+			} else {
+				corner(j, "IC-low", ic, false)
+			}
+		}
+	}
+	return out, nil
+}

@@ -1,0 +1,534 @@
+package checks
+
+// This file holds the case runner: the specification of one case, the
+// workers that solve cases on all cores, and the stages of Analyze.
+//
+// Every worker owns a private copy of the circuit in which each transistor
+// has its own copy of its model card (so an hFE corner can set one
+// transistor's BF without touching another's), and a prepared
+// solve.System of it. A case changes element values on that System with
+// SetValue and solves again, so the numbering and structure of the MNA
+// matrix (and the linear solver's storage) are reused from case to case;
+// only cases that change the structure (an opened drive, the swing view
+// with capacitors held) prepare another System. Before each case the
+// worker resets every value and model it changed, so a case's result
+// depends only on its specification and its warm start, never on which
+// worker ran it or what that worker ran before: Analyze gives the same
+// bits for any number of workers.
+
+import (
+	"math"
+	"runtime"
+	"sync"
+
+	"github.com/biaslint/biaslint/checks/solve"
+	"github.com/biaslint/biaslint/netlist"
+)
+
+// Case kinds (Case.Kind).
+const (
+	KindNominal    = "nominal"
+	KindLevel      = "drive level"
+	KindOpen       = "drive open"
+	KindSwing      = "swing"
+	KindCorner     = "corner"
+	KindMonteCarlo = "monte carlo"
+)
+
+// setting is one element value of a case, by netlist.Key of the name.
+type setting struct {
+	key string
+	v   float64
+}
+
+// caseSpec says how to make one case.
+type caseSpec struct {
+	scenario, corner, kind string
+	run                    int
+	// set are the element values that differ from nominal.
+	set []setting
+	// hfe is -1 for every transistor at its hFE min, +1 at its max, 0 for
+	// the model's own BF.
+	hfe int
+	// ambient and temp are the case's ambient and circuit temperature, C.
+	ambient, temp float64
+	// open is the drive source the case opens (nil for none).
+	open *netlist.Element
+	// thermal iterates the electro-thermal solve; otherwise the
+	// transistors sit at heldTemps (nil: the circuit temperature).
+	thermal   bool
+	heldTemps map[string]float64
+	// guess is the index of the case whose solution warm-starts this one
+	// (-1 for a cold start); group the index of the drive-level scenario's
+	// nominal-corner case this case belongs to (-1 for none).
+	guess, group int
+	// swing is the swept source and level its deviation (swing cases).
+	swing *swingSource
+	level float64
+}
+
+// caseOut is what solving one case gives.
+type caseOut struct {
+	res *solve.Result
+	th  thermalOut
+	// rth, vth and floats are the Thevenin facts recomputed in an opened
+	// drive case, for the transistors in reth.
+	rth, vth []float64
+	reth     []bool
+	err      error
+}
+
+// pool runs jobs on the workers.
+type pool struct {
+	a       *analyzer
+	workers []*worker
+	mu      sync.Mutex
+	done    int
+	total   int
+}
+
+func newPool(a *analyzer) *pool {
+	n := a.opt.Workers
+	if n <= 0 {
+		n = runtime.GOMAXPROCS(0)
+	}
+	p := &pool{a: a}
+	for i := 0; i < n; i++ {
+		p.workers = append(p.workers, newWorker(a))
+	}
+	return p
+}
+
+// expect adds n cases to the progress total.
+func (p *pool) expect(n int) {
+	p.mu.Lock()
+	p.total += n
+	p.mu.Unlock()
+}
+
+// tick reports n more cases done.
+func (p *pool) tick(n int) {
+	if p.a.opt.Progress == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.done += n
+	p.a.opt.Progress(p.done, p.total)
+}
+
+// each runs do(w, i) for i in [0, n) on the workers. Each i is run once;
+// do writes its result into slot i of a slice the caller owns.
+func (p *pool) each(n int, do func(w *worker, i int)) {
+	if n <= 0 {
+		return
+	}
+	k := min(len(p.workers), n)
+	if k == 1 {
+		for i := 0; i < n; i++ {
+			do(p.workers[0], i)
+		}
+		return
+	}
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for _, w := range p.workers[:k] {
+		wg.Add(1)
+		go func(w *worker) {
+			defer wg.Done()
+			for i := range next {
+				do(w, i)
+			}
+		}(w)
+	}
+	for i := 0; i < n; i++ {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+}
+
+// worker is one goroutine's private circuit and systems.
+type worker struct {
+	a    *analyzer
+	circ *netlist.Circuit
+	// models are the private model cards by transistor index, bf0 their
+	// BF as written (hasBF: whether the card writes one).
+	models []*netlist.Model
+	bf0    []float64
+	hasBF  []bool
+	sys    *solve.System
+	swing  *solve.System
+	lu     *solve.DenseLU
+	// dirty lists the values changed on sys and swing.
+	dirty, swingDirty []string
+	err               error
+}
+
+func newWorker(a *analyzer) *worker {
+	w := &worker{a: a, lu: solve.NewDenseLU()}
+	c := *a.c
+	c.Models = make(map[string]*netlist.Model, len(a.c.Models)+len(a.bjts))
+	for k, m := range a.c.Models {
+		c.Models[k] = m
+	}
+	c.Elements = make([]*netlist.Element, len(a.c.Elements))
+	copy(c.Elements, a.c.Elements)
+	for i, el := range c.Elements {
+		j, ok := a.bjtIdx[netlist.Key(el.Name)]
+		if !ok || el.Kind != 'Q' {
+			continue
+		}
+		m := a.c.Models[netlist.Key(el.Model)]
+		if m == nil {
+			m = a.c.Models[el.Model]
+		}
+		pm := *m
+		pm.Params = make(map[string]float64, len(m.Params)+1)
+		for k, v := range m.Params {
+			pm.Params[k] = v
+		}
+		key := "#q:" + netlist.Key(el.Name)
+		c.Models[key] = &pm
+		q := *el
+		q.Model = key
+		c.Elements[i] = &q
+		for len(w.models) <= j {
+			w.models = append(w.models, nil)
+			w.bf0 = append(w.bf0, 0)
+			w.hasBF = append(w.hasBF, false)
+		}
+		w.models[j] = &pm
+		w.bf0[j], w.hasBF[j] = m.Params["BF"], false
+		if _, ok := m.Params["BF"]; ok {
+			w.hasBF[j] = true
+		} else {
+			w.bf0[j] = a.tmpl[j].GP.BF
+		}
+	}
+	w.circ = &c
+	w.sys, w.err = solve.Prepare(w.circ)
+	return w
+}
+
+// setHFE sets every private model's BF for hFE corner h (-1, 0, +1).
+func (w *worker) setHFE(h int) {
+	for j, m := range w.models {
+		if m == nil {
+			continue
+		}
+		f := 0.0
+		switch h {
+		case -1:
+			f = w.a.hfeFactor[j][0]
+		case 1:
+			f = w.a.hfeFactor[j][1]
+		}
+		switch {
+		case f > 0:
+			m.Params["BF"] = w.bf0[j] * f
+		case w.hasBF[j]:
+			m.Params["BF"] = w.bf0[j]
+		default:
+			delete(m.Params, "BF")
+		}
+	}
+}
+
+// apply resets the values changed on sys and sets those of set.
+func (w *worker) apply(sys *solve.System, dirty *[]string, set []setting) error {
+	for _, k := range *dirty {
+		if err := sys.SetValue(k, w.a.nominal[k]); err != nil {
+			return err
+		}
+	}
+	*dirty = (*dirty)[:0]
+	for _, s := range set {
+		if err := sys.SetValue(s.key, s.v); err != nil {
+			return err
+		}
+		*dirty = append(*dirty, s.key)
+	}
+	return nil
+}
+
+// solveCase solves one case.
+func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
+	if w.err != nil {
+		return caseOut{err: w.err}
+	}
+	w.setHFE(sp.hfe)
+	sys := w.sys
+	var out caseOut
+	var oc *netlist.Circuit
+	if sp.open != nil && sp.open.Kind == 'V' {
+		oc = w.opened(sp.open)
+		s, err := solve.Prepare(oc)
+		if err != nil {
+			return caseOut{err: err}
+		}
+		sys = s
+		set := make([]setting, 0, len(sp.set))
+		for _, x := range sp.set {
+			if x.key != netlist.Key(sp.open.Name) {
+				set = append(set, x)
+			}
+		}
+		var none []string
+		if err := w.apply(sys, &none, set); err != nil {
+			return caseOut{err: err}
+		}
+	} else if err := w.apply(sys, &w.dirty, sp.set); err != nil {
+		return caseOut{err: err}
+	}
+	out.res, out.th, out.err = w.a.solveThermal(sys, w.lu, sp, guess)
+	if sp.open != nil {
+		if oc == nil {
+			oc = w.circ // a current source opened by setting it to zero
+		}
+		w.openThevenin(oc, sp, &out)
+	}
+	return out
+}
+
+// opened returns the worker's circuit with voltage source src replaced by
+// a leak resistor (leakR, the conductance SPICE places across junctions):
+// the source lets go of its net, and no net is left without a DC path.
+func (w *worker) opened(src *netlist.Element) *netlist.Circuit {
+	c := *w.circ
+	c.Elements = make([]*netlist.Element, 0, len(w.circ.Elements))
+	for _, e := range w.circ.Elements {
+		if netlist.Key(e.Name) == netlist.Key(src.Name) {
+			e = &netlist.Element{Kind: 'R', Name: e.Name, Nodes: e.Nodes[:2], Value: leakR, Pos: e.Pos, Chain: e.Chain}
+		}
+		c.Elements = append(c.Elements, e)
+	}
+	return &c
+}
+
+// openThevenin recomputes the Thevenin facts of the transistors whose base
+// the opened source drives, on the opened circuit.
+func (w *worker) openThevenin(oc *netlist.Circuit, sp *caseSpec, out *caseOut) {
+	if out.err != nil {
+		return
+	}
+	a := w.a
+	n := len(a.bjts)
+	out.rth, out.vth, out.reth = make([]float64, n), make([]float64, n), make([]bool, n)
+	for j := range a.bjts {
+		if !drivenBy(&a.tmpl[j], sp.open.Name) {
+			continue
+		}
+		s := 1.0
+		if a.tmpl[j].Polarity == "pnp" {
+			s = -1
+		}
+		out.rth[j], out.vth[j] = thevenin(oc, a.bjts[j].Name, s, sp.temp)
+		out.reth[j] = true
+	}
+}
+
+// drivenBy reports whether source name drives t's base.
+func drivenBy(t *Transistor, name string) bool {
+	for _, d := range t.Drives {
+		if netlist.Key(d) == netlist.Key(name) {
+			return true
+		}
+	}
+	return false
+}
+
+// solveSpecs solves specs[i] for every i in idx on the pool, with outs
+// indexed like specs; it returns the first error in spec order.
+func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error {
+	a.pool.expect(len(idx))
+	a.pool.each(len(idx), func(w *worker, k int) {
+		i := idx[k]
+		var g *solve.Result
+		if sp := &specs[i]; sp.guess >= 0 && sp.guess < len(outs) {
+			g = outs[sp.guess].res
+		}
+		outs[i] = w.solveCase(&specs[i], g)
+		a.pool.tick(1)
+	})
+	for _, i := range idx {
+		if outs[i].err != nil {
+			return caseError(&specs[i], outs[i].err)
+		}
+	}
+	return nil
+}
+
+// caseError names the case an error came from.
+func caseError(sp *caseSpec, err error) error {
+	return &CaseError{Case: rulesCaseName(sp), Err: err}
+}
+
+// rulesCaseName names a case "scenario" or "scenario/corner".
+func rulesCaseName(sp *caseSpec) string {
+	if sp.corner != "" {
+		return sp.scenario + "/" + sp.corner
+	}
+	return sp.scenario
+}
+
+// CaseError is a failure to solve one case other than the nominal one.
+type CaseError struct {
+	Case string
+	Err  error
+}
+
+func (e *CaseError) Error() string { return "case " + e.Case + ": " + e.Err.Error() }
+
+// Unwrap returns the solver's error.
+func (e *CaseError) Unwrap() error { return e.Err }
+
+// run makes and solves every case and computes the facts.
+func (a *analyzer) run() (*Analysis, error) {
+	o := a.opt
+	nom := caseSpec{scenario: "nominal", kind: KindNominal, ambient: a.ambient, temp: a.temp,
+		thermal: o.Thermal, guess: -1, group: 0}
+	specs := []caseSpec{nom}
+	outs := make([]caseOut, 1)
+	if err := a.solveSpecs(specs, outs, []int{0}); err != nil {
+		var ce *CaseError
+		if asCaseError(err, &ce) {
+			return nil, ce.Err
+		}
+		return nil, err
+	}
+	groups := []int{0}
+	if o.Scenarios || o.Corners {
+		levels := a.levelScenarios()
+		first := len(specs)
+		for i := range levels {
+			levels[i].group = first + i
+			groups = append(groups, first+i)
+		}
+		specs, outs = a.add(specs, outs, levels)
+		if err := a.solveSpecs(specs, outs, span(first, len(specs))); err != nil {
+			return nil, err
+		}
+	}
+	var swings []*swingSource
+	if o.Scenarios {
+		first := len(specs)
+		specs, outs = a.add(specs, outs, a.openScenarios())
+		if err := a.solveSpecs(specs, outs, span(first, len(specs))); err != nil {
+			return nil, err
+		}
+		var err error
+		if specs, outs, swings, err = a.runSwings(specs, outs); err != nil {
+			return nil, err
+		}
+	}
+	if o.Corners {
+		a.hfeFactors(outs[0].res)
+		first := len(specs)
+		corners, err := a.corners(specs, outs, groups)
+		if err != nil {
+			return nil, err
+		}
+		specs, outs = a.add(specs, outs, corners)
+		if err := a.solveSpecs(specs, outs, span(first, len(specs))); err != nil {
+			return nil, err
+		}
+	}
+	if o.MonteCarlo > 0 {
+		first := len(specs)
+		specs, outs = a.add(specs, outs, a.monteCarlo(outs[0]))
+		if err := a.solveSpecs(specs, outs, span(first, len(specs))); err != nil {
+			return nil, err
+		}
+	}
+	an := &Analysis{Circuit: a.c}
+	for i := range specs {
+		an.Cases = append(an.Cases, a.caseFacts(&specs[i], &outs[i]))
+		if outs[i].th.unsettled {
+			a.notes.Notef(netlist.Pos{File: a.c.File}, "case %s: the electro-thermal iteration did not settle in %d steps; junction temperatures are the last iterate's",
+				rulesCaseName(&specs[i]), thermalMaxIter)
+		}
+	}
+	a.crossCase(an, specs, swings)
+	return an, nil
+}
+
+func asCaseError(err error, target **CaseError) bool {
+	ce, ok := err.(*CaseError)
+	if ok {
+		*target = ce
+	}
+	return ok
+}
+
+// add appends specs to the list and room for their results.
+func (a *analyzer) add(specs []caseSpec, outs []caseOut, more []caseSpec) ([]caseSpec, []caseOut) {
+	specs = append(specs, more...)
+	outs = append(outs, make([]caseOut, len(more))...)
+	return specs, outs
+}
+
+func span(from, to int) []int {
+	idx := make([]int, 0, to-from)
+	for i := from; i < to; i++ {
+		idx = append(idx, i)
+	}
+	return idx
+}
+
+// valueOf returns an element's value in a case.
+func valueOf(sp *caseSpec, key string, nominal float64) float64 {
+	for _, s := range sp.set {
+		if s.key == key {
+			return s.v
+		}
+	}
+	return nominal
+}
+
+// caseFacts computes every fact of one solved case that does not need the
+// other cases.
+func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
+	res := o.res
+	cs := Case{Scenario: sp.scenario, Corner: sp.corner, Ambient: sp.ambient, Solution: res, Kind: sp.kind, Run: sp.run}
+	for _, op := range res.BJTs {
+		j, ok := a.bjtIdx[netlist.Key(op.Name)]
+		if !ok {
+			continue
+		}
+		t := a.transistor(j, op, sp.ambient)
+		t.Thermal = sp.thermal
+		if sp.thermal && !math.IsNaN(t.Rating.RthJA) && !o.th.runaway[j] {
+			t.Tj = op.Temp // the fixed point: Ta + P*RthJA
+		}
+		t.RunawayTj = t.Tj
+		if sp.thermal {
+			t.ThermalGain = o.th.gain[j]
+			t.ThermalRunaway = o.th.runaway[j]
+			if t.ThermalRunaway {
+				t.RunawayTj = o.th.runTj[j]
+			}
+		}
+		if sp.swing != nil {
+			t.Swing, t.SwingLevel = true, sp.level
+		}
+		if sp.open != nil && drivenBy(&t, sp.open.Name) {
+			t.DriveOpen = true
+			if o.reth != nil && o.reth[j] {
+				t.BaseRth, t.BaseVth = o.rth[j], o.vth[j]
+			}
+			t.BaseFloats = math.IsInf(t.BaseRth, 1)
+		}
+		cs.Transistors = append(cs.Transistors, t)
+	}
+	for _, el := range a.c.Elements {
+		if el.Kind == 'R' && len(el.Nodes) == 2 {
+			k := netlist.Key(el.Name)
+			cs.Resistors = append(cs.Resistors, a.resistor(el, valueOf(sp, k, el.Value), res))
+		}
+	}
+	for _, n := range res.Nodes {
+		cs.Nodes = append(cs.Nodes, Node{Name: n.Name, V: n.V, Peak: math.Abs(n.V), Pos: a.firstPos[nodeKey(n.Name)]})
+	}
+	return cs
+}
