@@ -2,12 +2,17 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
 	"testing"
+
+	"github.com/biaslint/biaslint/rules"
+	"github.com/biaslint/biaslint/rules/report"
 )
 
 // This file runs the corpus of malformed inputs in testdata/bad. Each case
@@ -257,5 +262,107 @@ func writeFile(t *testing.T, path string, data []byte) {
 	t.Helper()
 	if err := os.WriteFile(path, data, 0o644); err != nil {
 		t.Fatal(err)
+	}
+}
+
+// TestOutputFile: --output writes exactly what stdout would get, for every
+// command and format, and leaves no temporary file behind.
+func TestOutputFile(t *testing.T) {
+	for _, args := range [][]string{
+		{"check", "--format", "text", good}, {"check", "--format", "json", good}, {"check", "--format", "sarif", good},
+		{"op", "--format", "text", "--demo"}, {"op", "--format", "json", "--demo"}, {"rules"},
+	} {
+		t.Run(strings.Join(args, " "), func(t *testing.T) {
+			want, _, code := runCLI(t, args...)
+			dir := t.TempDir()
+			path := filepath.Join(dir, "report.out")
+			withOut := append([]string{args[0], "--output", path}, args[1:]...)
+			out, errs, code2 := runCLI(t, withOut...)
+			if code2 != code || out != "" {
+				t.Fatalf("with --output: exit %d (want %d), stdout %q, stderr %q", code2, code, out, errs)
+			}
+			got, err := os.ReadFile(path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if string(got) != want {
+				t.Errorf("--output file differs from stdout:\n%s\n--- stdout\n%s", got, want)
+			}
+			onlyFiles(t, dir, "report.out")
+		})
+	}
+}
+
+// TestOutputFailure: a run that fails leaves no report and no temporary
+// file, and an existing report is left as it was.
+func TestOutputFailure(t *testing.T) {
+	for _, f := range []string{"text", "json", "sarif"} {
+		for _, in := range [][]string{
+			{"testdata/bad/vsource-loop.cir"},
+			{"--ruleset", "testdata/bad/ruleset-expr-type.yaml", good},
+			{"--board", "testdata/bad/board-yaml-syntax.yaml", good},
+		} {
+			dir := t.TempDir()
+			fresh := filepath.Join(dir, "fresh."+f)
+			old := filepath.Join(dir, "old."+f)
+			writeFile(t, old, []byte("previous report\n"))
+			for _, path := range []string{fresh, old} {
+				args := append([]string{"check", "--format", f, "--output", path}, in...)
+				out, errs, code := runCLI(t, args...)
+				if code != exitBadInput || out != "" || errs == "" {
+					t.Errorf("%v: exit %d, stdout %q, stderr %q; want 2, nothing, a message", args, code, out, errs)
+				}
+			}
+			if _, err := os.Stat(fresh); !os.IsNotExist(err) {
+				t.Errorf("%s %v: a failed run left %s (%v)", f, in, fresh, err)
+			}
+			if b, _ := os.ReadFile(old); string(b) != "previous report\n" {
+				t.Errorf("%s %v: a failed run changed the existing report to %q", f, in, b)
+			}
+			onlyFiles(t, dir, "old."+f)
+		}
+	}
+}
+
+// onlyFiles fails unless dir holds exactly the named files.
+func onlyFiles(t *testing.T, dir string, names ...string) {
+	t.Helper()
+	ents, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, e := range ents {
+		got = append(got, e.Name())
+	}
+	if strings.Join(got, " ") != strings.Join(names, " ") {
+		t.Errorf("%s holds %v, want only %v", dir, got, names)
+	}
+}
+
+// TestReportNonFinite: a finding carrying NaN or Inf (which Evaluate never
+// makes; see FuzzEvaluate) must not give half-written JSON or SARIF: the
+// writer fails before writing anything, or writes valid JSON with no
+// non-finite number in it.
+func TestReportNonFinite(t *testing.T) {
+	for _, v := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
+		f := rules.Finding{Rule: "r", Severity: rules.SeverityError, Device: "Q1", Message: "m",
+			Value: v, Limit: v, HasLimit: true, Values: []rules.Quantity{{Value: v}}}
+		r := &report.Report{Files: []report.File{{Path: "x.cir", Findings: []rules.Finding{f}}}, Version: version}
+		for name, write := range map[string]func(*bytes.Buffer) error{
+			"json":  func(b *bytes.Buffer) error { return report.JSON(b, r) },
+			"sarif": func(b *bytes.Buffer) error { return report.SARIF(b, r) },
+		} {
+			var b bytes.Buffer
+			err := write(&b)
+			switch {
+			case err != nil && b.Len() > 0:
+				t.Errorf("%s with %g: error %v after writing %d bytes", name, v, err, b.Len())
+			case err == nil && !json.Valid(b.Bytes()):
+				t.Errorf("%s with %g: invalid JSON:\n%s", name, v, b.Bytes())
+			case err == nil && nonFinite.Match(b.Bytes()):
+				t.Errorf("%s with %g: non-finite number in output:\n%s", name, v, b.Bytes())
+			}
+		}
 	}
 }
