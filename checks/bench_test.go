@@ -1,0 +1,47 @@
+package checks_test
+
+import (
+	"testing"
+
+	"github.com/biaslint/biaslint/checks"
+	"github.com/biaslint/biaslint/netlist"
+)
+
+func demo(b *testing.B) *netlist.Circuit {
+	b.Helper()
+	d, err := netlist.Load("../rulesets/demo/bench-logger.cir", nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	c, err := netlist.Flatten(d)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return c
+}
+
+func benchAnalyze(b *testing.B, opt checks.Options) {
+	c := demo(b)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		a, err := checks.Analyze(c, opt)
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.ReportMetric(float64(len(a.Cases)), "cases")
+	}
+}
+
+// BenchmarkNominal is the demo board's nominal case, as before corners.
+func BenchmarkNominal(b *testing.B) { benchAnalyze(b, checks.Options{}) }
+
+// BenchmarkCorners is what check runs by default: scenarios, corners and
+// the electro-thermal solve.
+func BenchmarkCorners(b *testing.B) { benchAnalyze(b, full) }
+
+// BenchmarkMonteCarlo1000 adds 1000 Monte Carlo runs.
+func BenchmarkMonteCarlo1000(b *testing.B) {
+	o := full
+	o.MonteCarlo, o.Seed = 1000, 1
+	benchAnalyze(b, o)
+}
