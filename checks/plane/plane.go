@@ -3,6 +3,7 @@ package plane
 import (
 	"fmt"
 	"math"
+	"sort"
 	"strings"
 
 	"github.com/biaslint/biaslint/checks"
@@ -26,36 +27,52 @@ type Kind string
 const (
 	// Nominal is the nominal case: nominal values, no corner.
 	Nominal Kind = "nominal"
-	// Scenario is another scenario (a drive level, a load) at nominal values.
+	// Scenario is another DC state at nominal values: a drive level, an
+	// opened drive.
 	Scenario Kind = "scenario"
-	// Corner is any scenario at a corner (hFE, ambient, tolerances).
+	// Corner is a scenario at a corner (hFE, ambient, supply, tolerances).
 	Corner Kind = "corner"
-	// Swing is a point of a solved signal swing at nominal values.
+	// MonteCarlo is a Monte Carlo run.
+	MonteCarlo Kind = "monte carlo"
+	// Swing is a point of a solved signal swing.
 	Swing Kind = "swing"
 )
 
 // Kinds lists the kinds in legend order.
-var Kinds = []Kind{Nominal, Scenario, Corner, Swing}
+var Kinds = []Kind{Nominal, Scenario, Corner, MonteCarlo, Swing}
 
-// SwingPrefix begins the scenario name of every point of a signal swing
-// (e.g. "swing+", "swing 90deg"); KindOf reads it.
-const SwingPrefix = "swing"
-
-// KindOf classifies case i of an analysis: the first case, or a case named
-// "nominal" without a corner, is Nominal; a scenario whose name begins with
-// SwingPrefix (any case) is Swing when it has no corner; any other case with
-// a corner is Corner; the rest are Scenario.
+// KindOf classifies case i of an analysis by its checks.Case.Kind; a case
+// without one is Nominal when it is the first, Corner when it names a
+// corner, and Scenario otherwise.
 func KindOf(i int, c checks.Case) Kind {
-	swing := strings.HasPrefix(strings.ToLower(c.Scenario), SwingPrefix)
+	switch c.Kind {
+	case checks.KindNominal:
+		return Nominal
+	case checks.KindLevel, checks.KindOpen:
+		return Scenario
+	case checks.KindCorner:
+		return Corner
+	case checks.KindMonteCarlo:
+		return MonteCarlo
+	case checks.KindSwing:
+		return Swing
+	}
 	switch {
-	case i == 0 || (c.Corner == "" && strings.EqualFold(c.Scenario, "nominal")):
+	case i == 0:
 		return Nominal
 	case c.Corner != "":
 		return Corner
-	case swing:
-		return Swing
 	}
 	return Scenario
+}
+
+// Trajectory is the path of the operating point over one source's signal
+// swing, in order of the source's level, through the nominal point.
+type Trajectory struct {
+	// Source names the swing source (the first word of its cases'
+	// scenario names).
+	Source string
+	Points []Point
 }
 
 // OpPoint is a transistor's operating point in one case.
@@ -67,6 +84,9 @@ type OpPoint struct {
 	// Region is the operating region there; Power the dissipation, W.
 	Region string
 	Power  float64
+	// Level is the swing source's deviation from its centre at a Swing
+	// point, V (0 elsewhere).
+	Level float64
 }
 
 // LoadLine is the DC load line of a transistor's collector-emitter loop.
@@ -123,8 +143,8 @@ type Plane struct {
 	Saturation []Point
 	// Points holds the operating point of every case, in case order.
 	Points []OpPoint
-	// Swing is the trajectory through the Swing points, in case order.
-	Swing []Point
+	// Swings are the trajectories over each solved signal swing.
+	Swings []Trajectory
 	// XMax (V) and YMax (A) bound the plotted area (see View).
 	XMax, YMax float64
 }
@@ -381,6 +401,44 @@ func View(ll *LoadLine, pts []OpPoint, icmax, vceo float64) (xmax, ymax float64)
 	return 1.1 * xmax, 1.1 * ymax
 }
 
+// trajectories groups the Swing points by source (the first word of the
+// case name) in order of first appearance, each sorted by level and
+// passing through the nominal point at level 0.
+func trajectories(pts []OpPoint) []Trajectory {
+	var nominal *OpPoint
+	for i := range pts {
+		if pts[i].Kind == Nominal {
+			nominal = &pts[i]
+			break
+		}
+	}
+	var out []Trajectory
+	index := map[string]int{}
+	levels := map[string][]OpPoint{}
+	for _, p := range pts {
+		if p.Kind != Swing {
+			continue
+		}
+		src, _, _ := strings.Cut(p.Case, " ")
+		if _, ok := index[src]; !ok {
+			index[src] = len(out)
+			out = append(out, Trajectory{Source: src})
+			if nominal != nil {
+				levels[src] = append(levels[src], OpPoint{Point: nominal.Point})
+			}
+		}
+		levels[src] = append(levels[src], p)
+	}
+	for i := range out {
+		l := levels[out[i].Source]
+		sort.SliceStable(l, func(a, b int) bool { return l[a].Level < l[b].Level })
+		for _, p := range l {
+			out[i].Points = append(out[i].Points, p.Point)
+		}
+	}
+	return out
+}
+
 // caseName names a case the way findings do: "scenario" or
 // "scenario/corner".
 func caseName(c checks.Case) string {
@@ -417,12 +475,13 @@ func Of(an *checks.Analysis, name string) (Plane, error) {
 				continue
 			}
 			op := OpPoint{Point: Point{x.VCE, x.IC}, Kind: KindOf(i, cs), Case: caseName(cs), Region: x.Region, Power: x.Power}
-			pl.Points = append(pl.Points, op)
 			if op.Kind == Swing {
-				pl.Swing = append(pl.Swing, op.Point)
+				op.Level = x.SwingLevel
 			}
+			pl.Points = append(pl.Points, op)
 		}
 	}
+	pl.Swings = trajectories(pl.Points)
 
 	opt := solve.Options{DeviceTemp: map[string]float64{}}
 	devTemp := nom.Ambient

@@ -269,17 +269,49 @@ func TestKindOf(t *testing.T) {
 		c    checks.Case
 		want Kind
 	}{
-		{0, checks.Case{Scenario: "nominal"}, Nominal},
-		{0, checks.Case{Scenario: "drive-low"}, Nominal},
-		{3, checks.Case{Scenario: "nominal"}, Nominal},
-		{1, checks.Case{Scenario: "drive-low"}, Scenario},
-		{2, checks.Case{Scenario: "nominal", Corner: "hfe-min"}, Corner},
-		{4, checks.Case{Scenario: "Swing+"}, Swing},
-		{5, checks.Case{Scenario: "swing-", Corner: "hot"}, Corner},
+		{0, checks.Case{Scenario: "nominal", Kind: checks.KindNominal}, Nominal},
+		{1, checks.Case{Scenario: "VRELAY high", Kind: checks.KindLevel}, Scenario},
+		{2, checks.Case{Scenario: "VRELAY open", Kind: checks.KindOpen}, Scenario},
+		{3, checks.Case{Scenario: "nominal", Corner: "hfe min", Kind: checks.KindCorner}, Corner},
+		{4, checks.Case{Scenario: "VSIG +peak", Kind: checks.KindSwing}, Swing},
+		{5, checks.Case{Scenario: "monte carlo 3", Kind: checks.KindMonteCarlo}, MonteCarlo},
+		// Without a kind: by position and corner.
+		{0, checks.Case{Scenario: "anything"}, Nominal},
+		{6, checks.Case{Scenario: "nominal", Corner: "hot"}, Corner},
+		{7, checks.Case{Scenario: "other"}, Scenario},
 	} {
 		if got := KindOf(tc.i, tc.c); got != tc.want {
 			t.Errorf("KindOf(%d, %+v) = %s, want %s", tc.i, tc.c, got, tc.want)
 		}
+	}
+}
+
+// Swing points form one trajectory per source, ordered by the source's
+// level and passing through the nominal point.
+func TestTrajectories(t *testing.T) {
+	pts := []OpPoint{
+		{Point: Point{5, 1e-3}, Kind: Nominal, Case: "nominal"},
+		{Point: Point{2, 2e-3}, Kind: Swing, Case: "VSIG +peak", Level: 0.02},
+		{Point: Point{8, 0.4e-3}, Kind: Swing, Case: "VSIG -peak", Level: -0.02},
+		{Point: Point{4, 1.2e-3}, Kind: Corner, Case: "nominal/hfe max"},
+		{Point: Point{3.5, 1.5e-3}, Kind: Swing, Case: "VSIG at +10.0 mV", Level: 0.01},
+		{Point: Point{6, 0.8e-3}, Kind: Swing, Case: "VAUX +peak", Level: 0.1},
+	}
+	tr := trajectories(pts)
+	if len(tr) != 2 || tr[0].Source != "VSIG" || tr[1].Source != "VAUX" {
+		t.Fatalf("trajectories %+v", tr)
+	}
+	want := []Point{{8, 0.4e-3}, {5, 1e-3}, {3.5, 1.5e-3}, {2, 2e-3}}
+	if len(tr[0].Points) != len(want) {
+		t.Fatalf("VSIG path %+v, want %+v", tr[0].Points, want)
+	}
+	for i := range want {
+		if tr[0].Points[i] != want[i] {
+			t.Errorf("VSIG point %d = %+v, want %+v", i, tr[0].Points[i], want[i])
+		}
+	}
+	if len(tr[1].Points) != 2 || tr[1].Points[0] != (Point{5, 1e-3}) {
+		t.Errorf("VAUX path %+v", tr[1].Points)
 	}
 }
 
@@ -306,11 +338,11 @@ func TestOf(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// Two cases more, as scenario and corner work adds them.
+	// Two cases more, of the kinds the worst-case analysis adds.
 	hot := an.Cases[0]
-	hot.Corner = "hot"
+	hot.Corner, hot.Kind = "hot", checks.KindCorner
 	sw := an.Cases[0]
-	sw.Scenario = "swing+"
+	sw.Scenario, sw.Kind = "VSIG +peak", checks.KindSwing
 	an.Cases = append(an.Cases, hot, sw)
 
 	pl, err := Of(an, "q1")
@@ -322,8 +354,8 @@ func TestOf(t *testing.T) {
 		pl.Points[1].Kind != Corner || pl.Points[1].Case != "nominal/hot" || pl.Points[2].Kind != Swing {
 		t.Errorf("points %+v", pl.Points)
 	}
-	if len(pl.Swing) != 1 {
-		t.Errorf("swing trajectory %+v, want one point", pl.Swing)
+	if len(pl.Swings) != 1 || pl.Swings[0].Source != "VSIG" || len(pl.Swings[0].Points) != 2 {
+		t.Errorf("swing trajectories %+v, want VSIG through two points", pl.Swings)
 	}
 	if pl.Load == nil || !near(pl.Load.VOpen, 12, 1e-6) || !near(pl.Load.IShort, 12/5700.0, 1e-6) {
 		t.Errorf("load line %+v (%s)", pl.Load, pl.LoadNote)

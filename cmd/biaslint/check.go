@@ -53,8 +53,11 @@ func checkCommand() *cli.Command {
 		Name:      "check",
 		Usage:     "solve every BJT's bias and judge it against the rule set",
 		ArgsUsage: "FILE...",
+		Description: "FILE may be a netlist, a directory (searched for " + extList() + " files) or a glob; " +
+			"files are checked in parallel and reported in a stable order.",
 		Flags: []cli.Flag{
-			&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "text", Usage: formatFlagUsage + ": text, json or sarif"},
+			&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "text", Usage: formatFlagUsage + ": text, json, sarif or csv (one row per finding)"},
+			summaryFlag,
 			&cli.StringFlag{Name: "fail-on", Value: "error", Usage: "exit with status 1 when a finding at or above this severity is left: error, warning or note"},
 			rulesetFlag, setFlag,
 			&cli.StringSliceFlag{Name: "only", Usage: "judge only these rule `IDS` (comma-separated or repeated)"},
@@ -203,14 +206,7 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 		opt.Progress = bar.update
 	}
 	var problems []string
-	for _, in := range inputs {
-		f, err := run.one(c, in, opt)
-		if err != nil {
-			problems = append(problems, err.Error())
-			continue
-		}
-		run.report.Files = append(run.report.Files, f)
-	}
+	run.report.Files, problems = run.all(c, inputs, opt) // batch.go: in parallel, in input order
 	if len(problems) > 0 {
 		return nil, badInput(fmt.Errorf("%s", strings.Join(problems, "\n")))
 	}
@@ -253,9 +249,12 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 func runCheck(c *cli.Context) error {
 	format := c.String("format")
 	switch format {
-	case "text", "json", "sarif":
+	case "text", "json", "sarif", "csv":
 	default:
-		return badInput(fmt.Errorf("biaslint: --format must be text, json or sarif, not %q", format))
+		return badInput(fmt.Errorf("biaslint: --format must be text, json, sarif or csv, not %q", format))
+	}
+	if err := checkBatchFlags(c); err != nil {
+		return err
 	}
 	failOn := rules.Severity(c.String("fail-on"))
 	if failOn.Rank() > 2 {
@@ -275,8 +274,12 @@ func runCheck(c *cli.Context) error {
 		err = report.JSON(&out, &run.report)
 	case "sarif":
 		err = report.SARIF(&out, &run.report)
+	case "csv": // written by writeBatch
 	default:
 		err = report.Text(&out, &run.report, report.TextOptions{Color: on && c.String("output") == "", Notes: c.Bool("notes")})
+	}
+	if err == nil {
+		err = writeBatch(c, &out, &run.report, format)
 	}
 	if err != nil {
 		return badInput(err)

@@ -329,6 +329,7 @@ dl.summary dd { margin: 0; }
 td.fix { color: var(--muted); max-width: 26rem; } td.msg { max-width: 30rem; }
 table.grid td.n { text-align: center; min-width: 2.2rem; }
 table.grid td.path { white-space: nowrap; }
+div.scroll { overflow-x: auto; }
 table.grid th.rule { writing-mode: vertical-rl; transform: rotate(180deg); text-transform: none; letter-spacing: 0; white-space: nowrap; }
 table.grid td.sev-error { background: #f3d6cf; } table.grid td.sev-warning { background: #f6e6c8; } table.grid td.sev-note { background: #dde5f1; }
 .devices { display: grid; grid-template-columns: repeat(auto-fill, minmax(430px, 1fr)); gap: 1.2rem; }
@@ -352,6 +353,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
   figure.device, table.margins, tr { break-inside: avoid; }
   .devices { grid-template-columns: 1fr 1fr; }
   a { color: inherit; text-decoration: none; }
+  div.scroll { overflow: visible; }
   .chip, table.grid td, .danger { -webkit-print-color-adjust: exact; print-color-adjust: exact; }
   details > summary { display: none; }
   footer { border: 0; }
@@ -369,12 +371,12 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 {{with .Grid}}
 <section class="overview">
 <h2 id="overview">Overview</h2>
-<table class="grid">
+<div class="scroll"><table class="grid">
 <thead><tr><th>file</th><th>transistors</th><th>errors</th><th>warnings</th><th>notes</th>{{range .Rules}}<th class="rule"><code>{{.}}</code></th>{{end}}</tr></thead>
 <tbody>
 {{range .Rows}}<tr class="grid-row"><td class="path"><a href="#{{.ID}}">{{.Path}}</a></td><td class="n">{{.Transistors}}</td><td class="n{{if .Counts.Error}} count-error{{end}}">{{.Counts.Error}}</td><td class="n{{if .Counts.Warning}} count-warning{{end}}">{{.Counts.Warning}}</td><td class="n">{{.Counts.Note}}</td>{{range .Cells}}<td class="n {{.Class}}">{{if .N}}{{.N}}{{end}}</td>{{end}}</tr>
 {{end}}</tbody>
-</table>
+</table></div>
 </section>
 {{end}}
 {{range .Files}}

@@ -40,22 +40,25 @@ var (
 	soaEdge    = color.RGBA{0xa9, 0x3f, 0x2a, 0xff}
 	satColor   = color.RGBA{0x7d, 0x6b, 0x9a, 0xff}
 	kindColor  = map[plane.Kind]color.Color{
-		plane.Nominal:  color.RGBA{0x1b, 0x1f, 0x24, 0xff},
-		plane.Scenario: color.RGBA{0xc9, 0x7c, 0x10, 0xff},
-		plane.Corner:   color.RGBA{0x1f, 0x85, 0x7a, 0xff},
-		plane.Swing:    color.RGBA{0xa3, 0x30, 0x6b, 0xff},
+		plane.Nominal:    color.RGBA{0x1b, 0x1f, 0x24, 0xff},
+		plane.Scenario:   color.RGBA{0xc9, 0x7c, 0x10, 0xff},
+		plane.Corner:     color.RGBA{0x1f, 0x85, 0x7a, 0xff},
+		plane.MonteCarlo: color.RGBA{0x8a, 0x93, 0xa3, 0xff},
+		plane.Swing:      color.RGBA{0xa3, 0x30, 0x6b, 0xff},
 	}
 	kindGlyph = map[plane.Kind]draw.GlyphDrawer{
-		plane.Nominal:  draw.CircleGlyph{},
-		plane.Scenario: draw.PyramidGlyph{},
-		plane.Corner:   diamondGlyph{},
-		plane.Swing:    draw.RingGlyph{},
+		plane.Nominal:    draw.CircleGlyph{},
+		plane.Scenario:   draw.PyramidGlyph{},
+		plane.Corner:     diamondGlyph{},
+		plane.MonteCarlo: draw.CircleGlyph{},
+		plane.Swing:      draw.RingGlyph{},
 	}
 	kindRadius = map[plane.Kind]vg.Length{
-		plane.Nominal: 4.2, plane.Scenario: 3.6, plane.Corner: 3.8, plane.Swing: 2.6,
+		plane.Nominal: 4.2, plane.Scenario: 3.6, plane.Corner: 3.8, plane.MonteCarlo: 1.6, plane.Swing: 2.6,
 	}
 	kindLabel = map[plane.Kind]string{
-		plane.Nominal: "nominal", plane.Scenario: "scenario", plane.Corner: "corner", plane.Swing: "signal swing",
+		plane.Nominal: "nominal", plane.Scenario: "scenario", plane.Corner: "corner", plane.MonteCarlo: "Monte Carlo",
+		plane.Swing: "signal swing",
 	}
 )
 
@@ -196,13 +199,18 @@ func PlaneFigure(pl plane.Plane) (*plot.Plot, error) {
 		}
 	}
 
-	if len(pl.Swing) > 1 {
-		if l, err := plotter.NewLine(xy(pl.Swing)); err == nil {
-			l.Color, l.Width, l.Dashes = kindColor[plane.Swing], 1, []vg.Length{3, 2}
+	for _, tr := range pl.Swings {
+		if len(tr.Points) < 2 {
+			continue
+		}
+		if l, err := plotter.NewLine(xy(tr.Points)); err == nil {
+			l.Color, l.Width, l.Dashes = kindColor[plane.Swing], 1.2, []vg.Length{3, 2}
 			p.Add(l)
 		}
 	}
-	// Markers: the nominal point last, on top of the others.
+	// Markers: drawn with the nominal point last, on top of the others;
+	// listed in the legend nominal first.
+	scatters := map[plane.Kind]*plotter.Scatter{}
 	for i := len(plane.Kinds) - 1; i >= 0; i-- {
 		kind := plane.Kinds[i]
 		var pts []plane.Point
@@ -221,12 +229,32 @@ func PlaneFigure(pl plane.Plane) (*plot.Plot, error) {
 		}
 		s.GlyphStyle = draw.GlyphStyle{Color: kindColor[kind], Radius: kindRadius[kind], Shape: kindGlyph[kind]}
 		p.Add(s)
-		p.Legend.Add(kindLabel[kind]+" Q point", s)
+		scatters[kind] = s
+	}
+	for _, kind := range plane.Kinds {
+		s := scatters[kind]
+		if s == nil {
+			continue
+		}
+		label := kindLabel[kind] + " Q point"
+		if kind == plane.Swing && len(pl.Swings) > 0 {
+			label = kindLabel[kind] + " (" + strings.Join(swingSources(pl), ", ") + ")"
+		}
+		p.Legend.Add(label, s)
 	}
 
 	p.X.Min, p.X.Max = 0, pl.XMax
 	p.Y.Min, p.Y.Max = 0, pl.YMax*k
 	return p, nil
+}
+
+// swingSources lists the sources of a plane's swing trajectories.
+func swingSources(pl plane.Plane) []string {
+	var out []string
+	for _, tr := range pl.Swings {
+		out = append(out, tr.Source)
+	}
+	return out
 }
 
 // soaLegend names the safe-area outline with the ambient of its power

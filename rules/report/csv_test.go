@@ -1,0 +1,97 @@
+package report
+
+import (
+	"bytes"
+	"encoding/csv"
+	"strings"
+	"testing"
+
+	"github.com/biaslint/biaslint/netlist"
+	"github.com/biaslint/biaslint/rules"
+)
+
+// batchSample is two files: sample()'s, and one whose names would start a
+// spreadsheet formula and whose message spans lines and holds commas.
+func batchSample() *Report {
+	r := sample()
+	pos := netlist.Pos{File: "=cmd.cir", Line: 3, Col: 2}
+	r.Files = append(r.Files, File{Path: "=cmd.cir", Title: "-lab 4, group 7", Findings: []rules.Finding{
+		{Rule: "cutoff-linear-stage", Severity: rules.SeverityWarning, Device: "@Q1", Pos: pos, Scenario: "nominal", Corner: "hfe-min",
+			Message: "stage is cut off,\n  IC 1 pA", HasLimit: true, Value: 1e-12, Limit: 1e-6, Unit: "A"},
+	}})
+	return r
+}
+
+func TestCSV(t *testing.T) {
+	var b bytes.Buffer
+	if err := CSV(&b, batchSample()); err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(&b).ReadAll()
+	if err != nil {
+		t.Fatalf("not CSV: %v", err)
+	}
+	// A header and one row per finding, waived ones included (4 + 1).
+	if len(recs) != 6 {
+		t.Fatalf("%d records, want 6:\n%v", len(recs), recs)
+	}
+	if strings.Join(recs[0], ",") != strings.Join(CSVHeader, ",") {
+		t.Errorf("header %v", recs[0])
+	}
+	col := map[string]int{}
+	for i, h := range CSVHeader {
+		col[h] = i
+	}
+	for _, tc := range []struct {
+		row       int
+		key, want string
+	}{
+		{1, "file", "a b/board.cir"},
+		{1, "line", "7"},
+		{3, "value", "48"},
+		{3, "limit", "40"},
+		{3, "unit", "V"},
+		{2, "value", ""}, // no limit given
+		{4, "waived", "true"},
+		{4, "waiver_reason", "rev B"},
+		{5, "file", "'=cmd.cir"}, // kept as text by a spreadsheet
+		{5, "device", "'@Q1"},
+		{5, "case", "nominal/hfe-min"},
+		{5, "message", "stage is cut off, IC 1 pA"},
+		{5, "value", "1e-12"}, // SI, full precision
+	} {
+		if got := recs[tc.row][col[tc.key]]; got != tc.want {
+			t.Errorf("row %d %s = %q, want %q", tc.row, tc.key, got, tc.want)
+		}
+	}
+}
+
+func TestSummaryCSV(t *testing.T) {
+	var b bytes.Buffer
+	if err := SummaryCSV(&b, batchSample()); err != nil {
+		t.Fatal(err)
+	}
+	want := "file,title,transistors,errors,warnings,notes,waived,top_rule\n" +
+		"a b/board.cir,,0,1,2,0,1,floating-base\n" +
+		"'=cmd.cir,\"'-lab 4, group 7\",0,0,1,0,0,cutoff-linear-stage\n"
+	if b.String() != want {
+		t.Errorf("summary CSV:\n%s\nwant:\n%s", b.String(), want)
+	}
+}
+
+func TestSummaryTable(t *testing.T) {
+	var b bytes.Buffer
+	if err := SummaryTable(&b, batchSample()); err != nil {
+		t.Fatal(err)
+	}
+	want := `file             transistors  errors  warnings  notes  fired most
+--------------------------------------------------------------------------
+a b/board.cir              0       1         2      0  floating-base
+=cmd.cir                   0       0         1      0  cutoff-linear-stage
+--------------------------------------------------------------------------
+total (2 files)            0       1         3      0
+`
+	if b.String() != want {
+		t.Errorf("summary table:\n%s\nwant:\n%s", b.String(), want)
+	}
+}
