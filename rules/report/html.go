@@ -105,8 +105,13 @@ func htmlFindingOf(x rules.Finding) htmlFinding {
 	}
 	if x.Scenario != "" {
 		h.Case = rules.CaseName(x.Scenario, x.Corner)
-		if len(x.AlsoIn) > 0 {
-			h.Case += " (also " + strings.Join(x.AlsoIn, ", ") + ")"
+		if also := x.AlsoIn; len(also) > 0 {
+			more := ""
+			if len(also) > 3 {
+				more = fmt.Sprintf(" and %d more", len(also)-3)
+				also = also[:3]
+			}
+			h.Case += " (also " + strings.Join(also, ", ") + more + ")"
 		}
 	}
 	if x.Waived {
@@ -290,7 +295,7 @@ func htmlGridOf(r *Report, files []htmlFile) *htmlGrid {
 	return g
 }
 
-var htmlTemplate = template.Must(template.New("review").Parse(htmlSource))
+var htmlTemplate = template.Must(template.New("review").Funcs(template.FuncMap{"plural": plural}).Parse(htmlSource))
 
 // htmlSource is the page. Its colours follow the plots' palette (see
 // html_plot.go).
@@ -326,7 +331,9 @@ dl.summary dd { margin: 0; }
   font-size: .78rem; font-weight: 600; text-align: center; color: #fff; }
 .chip.error { background: var(--err); } .chip.warning { background: var(--warn); } .chip.note { background: var(--note); }
 .count-error { color: var(--err); font-weight: 600; } .count-warning { color: var(--warn); font-weight: 600; }
-td.fix { color: var(--muted); max-width: 26rem; } td.msg { max-width: 30rem; }
+table.findings, table.waived { width: 100%; }
+td.fix { color: var(--muted); min-width: 14rem; } td.msg { min-width: 18rem; }
+table.findings td.pos, table.waived td.pos { overflow-wrap: anywhere; min-width: 8rem; }
 table.grid td.n { text-align: center; min-width: 2.2rem; }
 table.grid td.path { white-space: nowrap; }
 div.scroll { overflow-x: auto; }
@@ -365,7 +372,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <header class="page">
 <h1>{{.Title}}</h1>
 <p>{{len .Files}} netlist{{if ne (len .Files) 1}}s{{end}} checked against rule set <strong>{{.RuleSet}}</strong>{{if .RuleSetDesc}}: {{.RuleSetDesc}}{{end}}</p>
-<p>{{.Totals.Error}} errors, {{.Totals.Warning}} warnings, {{.Totals.Note}} notes, {{.Totals.Waived}} waived</p>
+<p>{{plural .Totals.Error "error"}}, {{plural .Totals.Warning "warning"}}, {{plural .Totals.Note "note"}}, {{.Totals.Waived}} waived</p>
 </header>
 <main>
 {{with .Grid}}
@@ -385,7 +392,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 {{if .Hazard}}<p class="danger">Danger: findings below report hazardous voltage or heat on this design. Treat the board as dangerous until a qualified person has checked it.</p>{{end}}
 <dl class="summary">
 <dt>transistors</dt><dd>{{.Transistors}}</dd>
-<dt>findings</dt><dd><span{{if .Counts.Error}} class="count-error"{{end}}>{{.Counts.Error}} errors</span>, <span{{if .Counts.Warning}} class="count-warning"{{end}}>{{.Counts.Warning}} warnings</span>, {{.Counts.Note}} notes, {{.Counts.Waived}} waived</dd>
+<dt>findings</dt><dd><span{{if .Counts.Error}} class="count-error"{{end}}>{{plural .Counts.Error "error"}}</span>, <span{{if .Counts.Warning}} class="count-warning"{{end}}>{{plural .Counts.Warning "warning"}}</span>, {{plural .Counts.Note "note"}}, {{.Counts.Waived}} waived</dd>
 {{if .TopRule}}<dt>fired most</dt><dd><code>{{.TopRule}}</code></dd>{{end}}
 <dt>rule set</dt><dd>{{.RuleSet}}</dd>
 {{if .Temp}}<dt>temperature</dt><dd>{{.Temp}} (circuit, nominal case)</dd>{{end}}
