@@ -75,7 +75,7 @@ Q1 c b e SMALLNPN
 func TestThevenin(t *testing.T) {
 	a := analyze(t, dividerStage)
 	q := transistor(t, a, "Q1")
-	vth := 15 * 12e3 / (68e3 + 12e3) // 2.25 V
+	vth := 15 * 12e3 / (68e3 + 12e3)   // 2.25 V
 	rth := 68e3 * 12e3 / (68e3 + 12e3) // 10.2 kOhm
 	if !near(q.BaseVth, vth, 1e-4) {
 		t.Errorf("base_vth = %g V, want %g V (divider)", q.BaseVth, vth)

@@ -56,4 +56,3 @@ func TestWaivers(t *testing.T) {
 		t.Error("ApplyWaivers must not modify its input")
 	}
 }
-
