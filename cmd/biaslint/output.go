@@ -113,7 +113,13 @@ func writeAtomic(path string, data []byte) error {
 		return badInput(fmt.Errorf("biaslint: cannot write %s: %v", path, err))
 	}
 	name := tmp.Name()
-	_, werr := tmp.Write(data)
+	// CreateTemp makes the file private (0600); a report is an ordinary
+	// file, readable as any other the user writes (umask applies as usual
+	// to the directory, not here).
+	werr := tmp.Chmod(0o644)
+	if werr == nil {
+		_, werr = tmp.Write(data)
+	}
 	cerr := tmp.Close()
 	if werr == nil {
 		werr = cerr

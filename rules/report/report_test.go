@@ -68,3 +68,12 @@ func TestTextAndSARIF(t *testing.T) {
 		t.Errorf("SARIF lacks the escaped URI or the suppression:\n%s", s)
 	}
 }
+
+func TestAlsoInShortened(t *testing.T) {
+	if got := alsoIn([]string{"a", "b", "c"}); got != "a, b, c" {
+		t.Errorf("three cases: %q", got)
+	}
+	if got := alsoIn([]string{"a", "b", "c", "d", "e"}); got != "a, b, c and 2 more cases" {
+		t.Errorf("five cases: %q", got)
+	}
+}

@@ -84,7 +84,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			if x.Scenario != "" {
 				ew.printf("    case     %s", rules.CaseName(x.Scenario, x.Corner))
 				if len(x.AlsoIn) > 0 {
-					ew.printf(" (also %s)", strings.Join(x.AlsoIn, ", "))
+					ew.printf(" (also %s)", alsoIn(x.AlsoIn))
 				}
 				ew.printf("\n")
 			}
@@ -163,4 +163,17 @@ func (e *errWriter) printf(format string, args ...any) {
 	if e.err == nil {
 		_, e.err = fmt.Fprintf(e.w, format, args...)
 	}
+}
+
+// maxAlsoIn is how many other violating cases a text finding names before
+// it only counts the rest (the JSON report lists them all).
+const maxAlsoIn = 3
+
+// alsoIn names the other cases where a finding holds, the first few by
+// name and the rest by count.
+func alsoIn(cases []string) string {
+	if len(cases) <= maxAlsoIn {
+		return strings.Join(cases, ", ")
+	}
+	return fmt.Sprintf("%s and %d more cases", strings.Join(cases[:maxAlsoIn], ", "), len(cases)-maxAlsoIn)
 }
