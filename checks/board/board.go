@@ -287,15 +287,13 @@ func (s *Settings) mergeDevice(d *Device, errs *netlist.ErrorList) {
 }
 
 func (s *Settings) waiveAnnotation(a *netlist.Annotation, errs *netlist.ErrorList) {
-	if len(a.Args) < 2 {
+	if len(a.Args) < 2 || a.Args[0] == "" || a.Args[1] == "" {
 		errs.Warnf(a.Pos, "*@waive takes a rule id, a device name and a reason, e.g. *@waive floating-base Q3 base held by the driver's pull-down; annotation ignored")
 		return
 	}
-	// The reason is the text after the rule and device words.
-	reason := a.Text
-	for _, w := range a.Args[:2] {
-		reason = strings.TrimSpace(strings.TrimPrefix(strings.TrimSpace(reason), w))
-	}
+	// The reason is the text as written after the rule and device words
+	// (key=value pairs and quotes in it are part of the reason).
+	reason := strings.TrimSpace(skipFields(a.Text, 2))
 	if reason == "" {
 		errs.Warnf(a.Pos, "*@waive %s %s gives no reason; a waiver must say why, so it is ignored", a.Args[0], a.Args[1])
 		return
@@ -305,6 +303,19 @@ func (s *Settings) waiveAnnotation(a *netlist.Annotation, errs *netlist.ErrorLis
 		dev = scoped(a.Scope, dev)
 	}
 	s.Waivers = append(s.Waivers, Waiver{Rule: strings.ToLower(a.Args[0]), Device: dev, Reason: reason, Pos: a.Pos})
+}
+
+// skipFields returns s after its first n blank-separated fields.
+func skipFields(s string, n int) string {
+	for ; n > 0; n-- {
+		s = strings.TrimLeft(s, " \t")
+		i := strings.IndexAny(s, " \t")
+		if i < 0 {
+			return ""
+		}
+		s = s[i:]
+	}
+	return s
 }
 
 // Merge lays o over s: o's parts, devices and ambient win; waivers add up.

@@ -145,3 +145,16 @@ func TestBoardFileErrors(t *testing.T) {
 		}
 	}
 }
+
+// A waiver's reason is kept as written, key=value words and quotes included.
+func TestWaiverReasonAsWritten(t *testing.T) {
+	s, _ := FromCircuit(circuit(t, `reason text
+V1 a 0 5
+R1 a 0 1k
+*@waive resistor-overpower R1 rated "2 W" part, R=1k  in the BOM
+*@waive resistor-overpower "
+`))
+	if len(s.Waivers) != 1 || s.Waivers[0].Reason != `rated "2 W" part, R=1k  in the BOM` {
+		t.Errorf("waivers %+v", s.Waivers)
+	}
+}
