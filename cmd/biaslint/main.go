@@ -12,6 +12,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 )
@@ -46,7 +47,7 @@ func main() {
 // run is main without the process exit, so tests can drive the CLI.
 func run(args []string, stdout, stderr io.Writer) int {
 	app := newApp(stdout, stderr)
-	err := app.Run(args)
+	err := app.Run(flagsFirst(app, args))
 	if err == nil {
 		return exitOK
 	}
@@ -60,6 +61,51 @@ func run(args []string, stdout, stderr io.Writer) int {
 	// Anything else comes from flag parsing or usage.
 	fmt.Fprintf(stderr, "biaslint: %v\n", err)
 	return exitBadInput
+}
+
+// flagsFirst moves a command's flags ahead of its FILE arguments, so that
+// "biaslint report a.cir b.cir --output review.html" reads as people type
+// it: the flag parser underneath stops at the first argument that is not a
+// flag. A flag that takes a value keeps the word after it; "--" ends the
+// flags as usual.
+func flagsFirst(app *cli.App, args []string) []string {
+	if len(args) < 3 {
+		return args
+	}
+	cmd := app.Command(args[1])
+	if cmd == nil {
+		return args
+	}
+	takesValue := map[string]bool{}
+	for _, f := range cmd.Flags {
+		_, isBool := f.(*cli.BoolFlag)
+		for _, n := range f.Names() {
+			takesValue[n] = !isBool
+		}
+	}
+	var flags, rest []string
+	for i := 2; i < len(args); i++ {
+		a := args[i]
+		switch {
+		case a == "--":
+			rest = append(rest, args[i+1:]...)
+			i = len(args)
+		case len(a) > 1 && a[0] == '-':
+			flags = append(flags, a)
+			name := strings.TrimLeft(a, "-")
+			if !strings.Contains(name, "=") && takesValue[name] && i+1 < len(args) {
+				i++
+				flags = append(flags, args[i])
+			}
+		default:
+			rest = append(rest, a)
+		}
+	}
+	out := append([]string{args[0], args[1]}, flags...)
+	if len(rest) > 0 {
+		out = append(append(out, "--"), rest...)
+	}
+	return out
 }
 
 func newApp(stdout, stderr io.Writer) *cli.App {

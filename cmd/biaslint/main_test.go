@@ -79,3 +79,20 @@ func TestUsageErrors(t *testing.T) {
 		})
 	}
 }
+
+// Flags may follow the FILE arguments, as the usage lines show them.
+func TestFlagsAfterFiles(t *testing.T) {
+	path := "testdata/check/floating-base.bad.cir"
+	before, _, c1 := runCLI(t, "check", "--format", "json", "--fail-on", "warning", path)
+	after, _, c2 := runCLI(t, "check", path, "--format", "json", "--fail-on=warning")
+	if before != after || c1 != c2 || c1 != exitFindings {
+		t.Errorf("flags after the file changed the result: exit %d vs %d", c1, c2)
+	}
+	out := filepath.Join(t.TempDir(), "r.json")
+	if _, errs, code := runCLI(t, "check", path, "-o", out, "--format", "json"); code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if b, err := os.ReadFile(out); err != nil || string(b) != before {
+		t.Errorf("-o after the file: %v", err)
+	}
+}
