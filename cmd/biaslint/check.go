@@ -276,7 +276,9 @@ func runCheck(c *cli.Context) error {
 		err = report.SARIF(&out, &run.report)
 	case "csv": // written by writeBatch
 	default:
-		err = report.Text(&out, &run.report, report.TextOptions{Color: on && c.String("output") == "", Notes: c.Bool("notes")})
+		err = report.Text(&out, &run.report, report.TextOptions{Color: on && c.String("output") == "", Notes: c.Bool("notes"),
+			// One board: show its transistors; a batch has the summary table.
+			Transistors: len(run.report.Files) == 1})
 	}
 	if err == nil {
 		err = writeBatch(c, &out, &run.report, format)

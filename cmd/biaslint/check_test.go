@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"sort"
@@ -175,5 +176,40 @@ func TestWaivers(t *testing.T) {
 	}
 	if r.Summary["waived"] != 1 {
 		t.Errorf("summary waived = %d, want 1", r.Summary["waived"])
+	}
+}
+
+// The JSON report lists each transistor's junction temperature: at the
+// nominal case Tj = Ta + P*RthJA (common practice), with the demo's
+// *@part RthJA of 250 K/W and the 25 C default ambient, and the hottest
+// junction at the 70 C ambient corner (0:70 C by default).
+func TestJunctionTemperatureReported(t *testing.T) {
+	out, _, _ := runCLI(t, "check", "--format", "json", "--demo")
+	var r struct {
+		Results []struct {
+			BJTs []struct {
+				Name      string  `json:"name"`
+				Power     float64 `json:"power"`
+				Tj        float64 `json:"tj"`
+				TjWorst   float64 `json:"tj_worst"`
+				WorstCase string  `json:"tj_worst_case"`
+			} `json:"bjts"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Results) != 1 || len(r.Results[0].BJTs) != 6 {
+		t.Fatalf("want 6 transistors of the demo board, got %+v", r.Results)
+	}
+	for _, q := range r.Results[0].BJTs {
+		// The electro-thermal fixed point settles to 1 mK steps, so Tj
+		// and the power solved at it agree to a few mK.
+		if want := 25 + q.Power*250; math.Abs(q.Tj-want) > 5e-3 {
+			t.Errorf("%s: tj %g C, want 25 + P*250 = %g C", q.Name, q.Tj, want)
+		}
+		if q.TjWorst < 70 || !strings.Contains(q.WorstCase, "ambient 70 C") {
+			t.Errorf("%s: hottest junction %g C in %q, want at least 70 C in an ambient 70 C corner", q.Name, q.TjWorst, q.WorstCase)
+		}
 	}
 }

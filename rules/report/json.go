@@ -3,6 +3,9 @@ package report
 import (
 	"encoding/json"
 	"io"
+	"math"
+
+	"github.com/biaslint/biaslint/checks"
 
 	"github.com/biaslint/biaslint/rules"
 )
@@ -44,10 +47,63 @@ type jsonFile struct {
 	File        string        `json:"file"`
 	Title       string        `json:"title"`
 	Transistors int           `json:"transistors"`
+	BJTs        []jsonBJT     `json:"bjts"`
 	Findings    []jsonFinding `json:"findings"`
 	Waived      []jsonFinding `json:"waived"`
 	Notes       []jsonNote    `json:"notes"`
 	Summary     Counts        `json:"summary"`
+}
+
+// jsonBJT is one transistor's nominal operating point (forward-referenced
+// facts, SI units) and its hottest junction over every case. A value that
+// is not known (a missing rating) is left out.
+type jsonBJT struct {
+	Name      string   `json:"name"`
+	Model     string   `json:"model"`
+	Polarity  string   `json:"polarity"`
+	Role      string   `json:"role"`
+	Region    string   `json:"region"`
+	VCE       *float64 `json:"vce,omitempty"`
+	IC        *float64 `json:"ic,omitempty"`
+	Power     *float64 `json:"power,omitempty"`
+	Tj        *float64 `json:"tj,omitempty"`
+	TjMax     *float64 `json:"tj_worst,omitempty"`
+	TjMaxCase string   `json:"tj_worst_case,omitempty"`
+}
+
+func finite(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+// bjtsOf lists the transistors of an analysis for the JSON report.
+func bjtsOf(an *checks.Analysis) []jsonBJT {
+	out := []jsonBJT{}
+	if an == nil || len(an.Cases) == 0 {
+		return out
+	}
+	at := map[string]int{}
+	hottest := map[string]float64{}
+	for i, t := range an.Cases[0].Transistors {
+		at[t.Name] = i
+		out = append(out, jsonBJT{Name: t.Name, Model: t.Model, Polarity: t.Polarity, Role: t.Role, Region: t.Region,
+			VCE: finite(t.VCE), IC: finite(t.IC), Power: finite(t.Power), Tj: finite(t.Tj)})
+	}
+	for _, c := range an.Cases {
+		for _, t := range c.Transistors {
+			i, ok := at[t.Name]
+			if !ok || math.IsNaN(t.Tj) || math.IsInf(t.Tj, 0) {
+				continue
+			}
+			if h, seen := hottest[t.Name]; !seen || t.Tj > h {
+				hottest[t.Name] = t.Tj
+				out[i].TjMax, out[i].TjMaxCase = finite(t.Tj), rules.CaseName(c.Scenario, c.Corner)
+			}
+		}
+	}
+	return out
 }
 
 type jsonReport struct {
@@ -95,7 +151,7 @@ func JSON(w io.Writer, r *Report) error {
 	}
 	for i := range r.Files {
 		f := &r.Files[i]
-		jf := jsonFile{File: f.Path, Title: f.Title, Transistors: f.Transistors(),
+		jf := jsonFile{File: f.Path, Title: f.Title, Transistors: f.Transistors(), BJTs: bjtsOf(f.Analysis),
 			Findings: []jsonFinding{}, Waived: []jsonFinding{}, Notes: []jsonNote{}, Summary: f.Counts()}
 		for _, x := range f.Findings {
 			if x.Waived {

@@ -1,9 +1,11 @@
 package report
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"strings"
+	"text/tabwriter"
 
 	"github.com/fatih/color"
 
@@ -20,6 +22,9 @@ type TextOptions struct {
 	// Notes prints the input notes (reading the netlist, annotations);
 	// input warnings are printed either way.
 	Notes bool
+	// Transistors prints a table of each file's transistors: role, nominal
+	// region, IC and VCE, and the hottest junction over every case.
+	Transistors bool
 }
 
 type paint struct{ on bool }
@@ -115,6 +120,9 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				ew.printf("  %s\n", e.Error())
 			}
 		}
+		if opt.Transistors {
+			writeTransistors(ew, f)
+		}
 		c := f.Counts()
 		ew.printf("\n  %s: %s, %s\n", f.Path, plural(f.Transistors(), "transistor"), countText(c))
 	}
@@ -176,4 +184,32 @@ func alsoIn(cases []string) string {
 		return strings.Join(cases, ", ")
 	}
 	return fmt.Sprintf("%s and %d more cases", strings.Join(cases[:maxAlsoIn], ", "), len(cases)-maxAlsoIn)
+}
+
+// writeTransistors prints the transistor table of one file: the nominal
+// operating point (forward-referenced) and the hottest junction over every
+// case, with the case it occurs in.
+func writeTransistors(ew *errWriter, f *File) {
+	bjts := bjtsOf(f.Analysis)
+	if len(bjts) == 0 {
+		return
+	}
+	var b bytes.Buffer
+	tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "  transistor\trole\tregion\tIC\tVCE\tpower\thottest Tj")
+	val := func(v *float64, unit string) string {
+		if v == nil {
+			return "-"
+		}
+		return units.Format(*v, unit)
+	}
+	for _, t := range bjts {
+		hot := val(t.TjMax, "C")
+		if t.TjMaxCase != "" {
+			hot += " (" + t.TjMaxCase + ")"
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\t%s\t%s\n", t.Name, t.Role, t.Region, val(t.IC, "A"), val(t.VCE, "V"), val(t.Power, "W"), hot)
+	}
+	tw.Flush()
+	ew.printf("\n%s", b.String())
 }
