@@ -292,14 +292,14 @@ func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
 }
 
 // opened returns the worker's circuit with voltage source src replaced by
-// a leak resistor (leakR, the conductance SPICE places across junctions):
+// a leak resistor (solve.LeakR, the conductance SPICE places across junctions):
 // the source lets go of its net, and no net is left without a DC path.
 func (w *worker) opened(src *netlist.Element) *netlist.Circuit {
 	c := *w.circ
 	c.Elements = make([]*netlist.Element, 0, len(w.circ.Elements))
 	for _, e := range w.circ.Elements {
 		if netlist.Key(e.Name) == netlist.Key(src.Name) {
-			e = &netlist.Element{Kind: 'R', Name: e.Name, Nodes: e.Nodes[:2], Value: leakR, Pos: e.Pos, Chain: e.Chain}
+			e = &netlist.Element{Kind: 'R', Name: e.Name, Nodes: e.Nodes[:2], Value: solve.LeakR, Pos: e.Pos, Chain: e.Chain}
 		}
 		c.Elements = append(c.Elements, e)
 	}

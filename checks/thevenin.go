@@ -7,12 +7,6 @@ import (
 	"github.com/biaslint/biaslint/netlist"
 )
 
-// leakR is the resistance, Ohm, that holds each terminal of a transistor
-// removed for a Thevenin solve: 1 pS, the conductance SPICE's GMIN places
-// across junctions, so no net floats and no bias network is disturbed by
-// more than a few parts per million.
-const leakR = 1e12
-
 // floatingR is the Thevenin resistance, Ohm, above which a base counts as
 // having no DC source at all (it is held only by the leaks).
 const floatingR = 1e10
@@ -128,22 +122,13 @@ func thevenin(c *netlist.Circuit, name string, sign, temp float64) (rth, vth flo
 		return math.NaN(), math.NaN()
 	}
 	base := func(extra float64) (float64, bool) {
-		tc := *c
-		tc.Elements = make([]*netlist.Element, 0, len(c.Elements)+4)
-		for _, e := range c.Elements {
-			if e != q {
-				tc.Elements = append(tc.Elements, e)
-			}
-		}
-		for i, n := range q.Nodes[:3] {
-			tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'R', Name: "R#leak" + string("cbe"[i]),
-				Nodes: []string{n, netlist.Ground}, Value: leakR, Pos: q.Pos})
-		}
+		var test []*netlist.Element
 		if extra != 0 {
-			tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'I', Name: "I#test",
+			test = append(test, &netlist.Element{Kind: 'I', Name: "I#test",
 				Nodes: []string{netlist.Ground, q.Nodes[1]}, Source: &netlist.Source{DC: extra, HasDC: true}, Pos: q.Pos})
 		}
-		res, err := solve.Solve(&tc, solve.Options{Temp: solve.Temp(temp)})
+		tc := solve.Without(c, q, test...)
+		res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(temp)})
 		if err != nil {
 			return 0, false
 		}

@@ -149,10 +149,6 @@ type Plane struct {
 	XMax, YMax float64
 }
 
-// Leak resistance, Ohm, from each terminal of the removed transistor to
-// ground: the 1 pS SPICE places across junctions, so no net floats.
-const leakR = 1e12
-
 // Bounds of the loop resistance, Ohm: above highR the loop has no
 // resistive path (a current source or an open terminal), below lowR it has
 // no resistance at all (both terminals on rails).
@@ -187,24 +183,7 @@ func LoadLineOf(c *netlist.Circuit, name string, opt solve.Options) (LoadLine, e
 	if pnp {
 		hi, lo = emit, col
 	}
-	without := func(extra *netlist.Element) *netlist.Circuit {
-		tc := *c
-		tc.Elements = make([]*netlist.Element, 0, len(c.Elements)+4)
-		for _, e := range c.Elements {
-			if e != q {
-				tc.Elements = append(tc.Elements, e)
-			}
-		}
-		for i, n := range q.Nodes[:3] {
-			if netlist.Key(n) == netlist.Ground || netlist.Key(n) == "gnd" {
-				continue
-			}
-			tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'R', Name: "R#leak" + string("cbe"[i]),
-				Nodes: []string{n, netlist.Ground}, Value: leakR, Pos: q.Pos})
-		}
-		tc.Elements = append(tc.Elements, extra)
-		return &tc
-	}
+	without := func(extra *netlist.Element) *netlist.Circuit { return solve.Without(c, q, extra) }
 	vfwd := func(r *solve.Result) float64 {
 		return r.Voltage[netlist.Key(hi)] - r.Voltage[netlist.Key(lo)]
 	}
