@@ -24,7 +24,7 @@ const initRuleSet = `# A team rule set for biaslint, written by 'biaslint init'.
 #     biaslint check --ruleset biaslint-team.yaml board.cir
 #
 # 'biaslint rules --ruleset biaslint-team.yaml' lists the result, and
-# 'biaslint rules facts' the names a rule's expressions can use.
+# 'biaslint rules --facts' the names a rule's expressions can use.
 #
 # Sections (all optional except name):
 #   parameters  thresholds by name; a value may carry a unit ("1 V", "10mA")
