@@ -1,7 +1,9 @@
 package checks
 
 import (
+	"fmt"
 	"math"
+	"strings"
 	"testing"
 
 	"github.com/biaslint/biaslint/netlist"
@@ -248,5 +250,28 @@ Q1 c b vcc P
 	// VCC - VCC*470k/570k = 12*100/570 V.
 	if want := 12 * 100e3 / 570e3; !near(q.BaseVth, want, 1e-4) {
 		t.Errorf("base_vth = %g, want %g", q.BaseVth, want)
+	}
+}
+
+// A board with more resistors than the extreme-value analysis moves keeps
+// the nearest ones and says how many stayed at nominal.
+func TestResistorCornersBounded(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("long attenuator chain behind a follower\nVCC vcc 0 12\nR1 vcc b 47k\nR2 b 0 10k\nQ1 vcc b e N\nRE e n0 1k\n")
+	for i := 0; i < MaxSensitivityResistors+20; i++ {
+		fmt.Fprintf(&b, "RA%d n%d n%d 10\n", i, i, i+1)
+	}
+	fmt.Fprintf(&b, "RL n%d 0 1k\n.model N NPN\n", MaxSensitivityResistors+20)
+	a, err := Analyze(circuit(t, b.String()), Options{Corners: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := fmt.Sprintf("move the %d resistors nearest the transistors; %d more stay", MaxSensitivityResistors, 24)
+	found := false
+	for _, n := range a.Notes {
+		found = found || strings.Contains(n.Msg, want)
+	}
+	if !found {
+		t.Errorf("no note %q in %v", want, a.Notes)
 	}
 }

@@ -33,6 +33,7 @@ package checks
 import (
 	"fmt"
 	"math"
+	"sort"
 
 	"github.com/biaslint/biaslint/checks/device"
 	"github.com/biaslint/biaslint/checks/solve"
@@ -244,6 +245,67 @@ type resistorCorner struct {
 	set  []setting
 }
 
+// MaxSensitivityResistors bounds how many resistors the extreme-value
+// analysis moves: each costs one solve per drive-level scenario. Past it,
+// the resistors nearest the transistors (fewest elements away from a
+// transistor terminal) are moved and the rest stay at nominal, with a note.
+const MaxSensitivityResistors = 200
+
+// nearestResistors keeps the MaxSensitivityResistors resistors of rs
+// nearest a transistor terminal, in netlist order, and notes the cut.
+func (a *analyzer) nearestResistors(rs []*netlist.Element, tol []float64) ([]*netlist.Element, []float64) {
+	dist := map[string]int{}
+	var queue []string
+	for _, q := range a.bjts {
+		for _, n := range q.Nodes[:3] {
+			if k := nodeKey(n); !a.g.rail[k] {
+				if _, ok := dist[k]; !ok {
+					dist[k] = 0
+					queue = append(queue, k)
+				}
+			}
+		}
+	}
+	for len(queue) > 0 { // each net enters the queue once
+		k := queue[0]
+		queue = queue[1:]
+		for _, e := range a.g.at[k] {
+			for _, n := range e.Nodes {
+				if m := nodeKey(n); !a.g.rail[m] {
+					if _, ok := dist[m]; !ok {
+						dist[m] = dist[k] + 1
+						queue = append(queue, m)
+					}
+				}
+			}
+		}
+	}
+	far := func(e *netlist.Element) int {
+		d := math.MaxInt
+		for _, n := range e.Nodes {
+			if v, ok := dist[nodeKey(n)]; ok && v < d {
+				d = v
+			}
+		}
+		return d
+	}
+	idx := make([]int, len(rs))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(i, j int) bool { return far(rs[idx[i]]) < far(rs[idx[j]]) })
+	idx = idx[:MaxSensitivityResistors]
+	sort.Ints(idx)
+	keptR, keptT := make([]*netlist.Element, len(idx)), make([]float64, len(idx))
+	for i, j := range idx {
+		keptR[i], keptT[i] = rs[j], tol[j]
+	}
+	a.notes.Notef(netlist.Pos{File: a.c.File, Line: 1, Col: 1},
+		"the resistor corners move the %d resistors nearest the transistors; %d more stay at their nominal values",
+		MaxSensitivityResistors, len(rs)-MaxSensitivityResistors)
+	return keptR, keptT
+}
+
 // sensitivities solves the first-order resistor sensitivities of every
 // group and returns its extreme-value corners.
 func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int) ([][]resistorCorner, error) {
@@ -257,8 +319,12 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		}
 	}
 	out := make([][]resistorCorner, len(groups))
-	if len(rs) == 0 {
+	if len(rs) == 0 || len(a.bjts) == 0 {
+		// No transistor, no objective to push the resistors towards.
 		return out, nil
+	}
+	if len(rs) > MaxSensitivityResistors {
+		rs, tol = a.nearestResistors(rs, tol)
 	}
 	n := len(a.bjts)
 	// Job g*(len(rs)+1)+0 is the group's tight base solve; +1+i moves
