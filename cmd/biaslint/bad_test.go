@@ -113,6 +113,7 @@ var badCases = []badCase{
 	netlistCase("limit-errors", 2, "(and 10 more errors)"),
 	{name: "limit-file-size", gen: genBigFile, code: 2, want: []string{"$TMP/big.cir:1:1:", "limit"}},
 	{name: "limit-line-length", gen: genLongLine, code: 2, want: []string{"$TMP/line.cir:3:1:", "limit of 1048576 bytes"}},
+	{name: "limit-solver-size", gen: genLadder, code: 2, want: []string{"$TMP/ladder.cir:1:1:", "2102 unknowns", "2000"}},
 	{name: "limit-include-depth", gen: genIncludeChain, code: 2, want: []string{"$TMP/inc16.inc:2:10:", "limit of 16"}},
 	// Annotations: legal netlists whose annotations are odd give located warnings.
 	netlistCase("annotation-bad", 0, ":8:11:", "4.7.7k", "Q9", "amplifier", "*@colour"),
@@ -245,6 +246,20 @@ func genLongLine(t *testing.T, dir string) []string {
 	src := "One line longer than the limit\nV1 a 0 5\nR1 a 0 1k " + strings.Repeat("x", 1<<20) + "\nR2 a 0 1k\n.end\n"
 	writeFile(t, path, []byte(src))
 	return []string{"check", path}
+}
+
+// genLadder writes a resistor ladder of 2100 sections: 2102 unknowns,
+// past the dense solver's 2000.
+func genLadder(t *testing.T, dir string) []string {
+	var b strings.Builder
+	b.WriteString("Attenuator ladder too large for the dense solver\nV1 n0 0 1\n")
+	for i := 0; i < 2100; i++ {
+		fmt.Fprintf(&b, "R%d n%d n%d 1k\n", i, i, i+1)
+	}
+	b.WriteString("RL n2100 0 1k\n.end\n")
+	path := filepath.Join(dir, "ladder.cir")
+	writeFile(t, path, []byte(b.String()))
+	return []string{"op", path}
 }
 
 // genIncludeChain writes top.cir including inc1.inc including inc2.inc
