@@ -106,31 +106,56 @@ func (d *DenseLU) Factor() error {
 		d.ok = true
 		return nil
 	}
+	// Equilibrate on the raw row-major storage: this runs at every Newton
+	// iteration, and At/Set with their bounds checks cost as much as the
+	// factorisation itself on small systems.
+	raw := d.a.RawMatrix()
 	for i := 0; i < d.n; i++ {
+		row := raw.Data[i*raw.Stride : i*raw.Stride+d.n]
 		m := 0.0
-		for j := 0; j < d.n; j++ {
-			m = math.Max(m, math.Abs(d.a.At(i, j)))
+		for _, v := range row {
+			if v < 0 {
+				v = -v
+			}
+			if v > m || v != v { // v != v: NaN
+				m = v
+			}
 		}
 		if m == 0 || math.IsNaN(m) || math.IsInf(m, 0) {
 			return &SingularError{Cond: math.Inf(1), Index: i}
 		}
 		d.scale[i] = 1 / m
-		for j := 0; j < d.n; j++ {
-			d.a.Set(i, j, d.a.At(i, j)/m)
+		for j := range row {
+			row[j] /= m
 		}
 	}
 	for j := 0; j < d.n; j++ {
-		m := 0.0
-		for i := 0; i < d.n; i++ {
-			m = math.Max(m, math.Abs(d.a.At(i, j)))
+		d.col[j] = 0
+	}
+	for i := 0; i < d.n; i++ {
+		row := raw.Data[i*raw.Stride : i*raw.Stride+d.n]
+		for j, v := range row {
+			if v < 0 {
+				v = -v
+			}
+			if v > d.col[j] {
+				d.col[j] = v
+			}
 		}
-		if m == 0 {
+	}
+	for j := 0; j < d.n; j++ {
+		if d.col[j] == 0 {
 			return &SingularError{Cond: math.Inf(1), Index: j}
 		}
-		d.col[j] = 1 / m
-		for i := 0; i < d.n; i++ {
-			d.a.Set(i, j, d.a.At(i, j)/m)
+	}
+	for i := 0; i < d.n; i++ {
+		row := raw.Data[i*raw.Stride : i*raw.Stride+d.n]
+		for j := range row {
+			row[j] /= d.col[j]
 		}
+	}
+	for j := 0; j < d.n; j++ {
+		d.col[j] = 1 / d.col[j]
 	}
 	d.lu.Factorize(d.a)
 	cond := d.lu.Cond()
