@@ -76,4 +76,7 @@ func TestAlsoInShortened(t *testing.T) {
 	if got := alsoIn([]string{"a", "b", "c", "d", "e"}); got != "a, b, c and 2 more cases" {
 		t.Errorf("five cases: %q", got)
 	}
+	if got := alsoIn([]string{"a", "b", "c", "d"}); got != "a, b, c and 1 more case" {
+		t.Errorf("four cases: %q", got)
+	}
 }

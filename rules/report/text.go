@@ -183,7 +183,12 @@ func alsoIn(cases []string) string {
 	if len(cases) <= maxAlsoIn {
 		return strings.Join(cases, ", ")
 	}
-	return fmt.Sprintf("%s and %d more cases", strings.Join(cases[:maxAlsoIn], ", "), len(cases)-maxAlsoIn)
+	more := len(cases) - maxAlsoIn
+	word := "cases"
+	if more == 1 {
+		word = "case"
+	}
+	return fmt.Sprintf("%s and %d more %s", strings.Join(cases[:maxAlsoIn], ", "), more, word)
 }
 
 // writeTransistors prints the transistor table of one file: the nominal
