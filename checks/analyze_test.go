@@ -12,24 +12,12 @@ import (
 // circuit reads netlist text with includes disabled.
 func circuit(t *testing.T, src string) *netlist.Circuit {
 	t.Helper()
-	d, err := netlist.Parse("t.cir", []byte(src), &netlist.LoadOptions{
-		ReadFile: func(string) ([]byte, error) { return nil, errNoInclude },
-	})
+	c, err := netlist.ReadSource("t.cir", []byte(src), &netlist.LoadOptions{ReadFile: netlist.NoFiles})
 	if err != nil {
-		t.Fatalf("parse: %v", err)
-	}
-	c, err := netlist.Flatten(d)
-	if err != nil {
-		t.Fatalf("flatten: %v", err)
+		t.Fatalf("read: %v", err)
 	}
 	return c
 }
-
-type noInclude struct{}
-
-func (noInclude) Error() string { return "includes disabled in tests" }
-
-var errNoInclude = noInclude{}
 
 func analyze(t *testing.T, src string) *Analysis {
 	t.Helper()

@@ -9,11 +9,7 @@ import (
 
 func demo(b *testing.B) *netlist.Circuit {
 	b.Helper()
-	d, err := netlist.Load("../rulesets/demo/bench-logger.cir", nil)
-	if err != nil {
-		b.Fatal(err)
-	}
-	c, err := netlist.Flatten(d)
+	c, err := netlist.Read("../rulesets/demo/bench-logger.cir", nil)
 	if err != nil {
 		b.Fatal(err)
 	}

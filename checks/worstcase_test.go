@@ -14,22 +14,12 @@ import (
 // parse reads netlist text with includes disabled.
 func parse(t testing.TB, src string) *netlist.Circuit {
 	t.Helper()
-	d, err := netlist.Parse("t.cir", []byte(src), &netlist.LoadOptions{
-		ReadFile: func(string) ([]byte, error) { return nil, errNoFiles{} },
-	})
+	c, err := netlist.ReadSource("t.cir", []byte(src), &netlist.LoadOptions{ReadFile: netlist.NoFiles})
 	if err != nil {
-		t.Fatalf("parse: %v", err)
-	}
-	c, err := netlist.Flatten(d)
-	if err != nil {
-		t.Fatalf("flatten: %v", err)
+		t.Fatalf("read: %v", err)
 	}
 	return c
 }
-
-type errNoFiles struct{}
-
-func (errNoFiles) Error() string { return "no includes in tests" }
 
 // full are the options the check command uses.
 var full = checks.Options{Scenarios: true, Corners: true, Thermal: true}

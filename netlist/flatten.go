@@ -1,6 +1,8 @@
 package netlist
 
 import (
+	"errors"
+	"io/fs"
 	"math"
 	"sort"
 	"strings"
@@ -11,6 +13,24 @@ import (
 func Read(filename string, opts *LoadOptions) (*Circuit, error) {
 	d, _ := Load(filename, opts)
 	return Flatten(d)
+}
+
+// ReadSource is Read for netlist text already in memory: src is parsed as
+// the file filename (includes are read through opts.ReadFile) and
+// flattened. The error, if any, lists the problems of both steps.
+func ReadSource(filename string, src []byte, opts *LoadOptions) (*Circuit, error) {
+	d, _ := Parse(filename, src, opts)
+	return Flatten(d)
+}
+
+// errNoFiles is what NoFiles answers.
+var errNoFiles = errors.New("includes are disabled")
+
+// NoFiles is a LoadOptions.ReadFile that reads nothing, so that .include
+// and .lib are located errors and text read in tests or fuzzing never
+// reaches the file system.
+func NoFiles(path string) ([]byte, error) {
+	return nil, &fs.PathError{Op: "open", Path: path, Err: errNoFiles}
 }
 
 // Flatten evaluates the deck's parameters and expands every subcircuit

@@ -110,7 +110,7 @@ func FuzzFlatten(f *testing.F) {
 	const maxElements, maxDepth = 3000, 8
 	f.Fuzz(func(t *testing.T, data []byte) {
 		src := hierarchyText(data)
-		opts := &LoadOptions{ReadFile: noIncludes, MaxElements: maxElements, MaxSubcktDepth: maxDepth}
+		opts := &LoadOptions{ReadFile: NoFiles, MaxElements: maxElements, MaxSubcktDepth: maxDepth}
 		d, _ := Parse("h.cir", []byte(src), opts)
 		c, err := Flatten(d)
 		if c == nil {

@@ -1,7 +1,6 @@
 package netlist
 
 import (
-	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -9,12 +8,6 @@ import (
 
 	"github.com/biaslint/biaslint/netlist/units"
 )
-
-// noIncludes is a ReadFile that refuses every file, so fuzzing never touches
-// the file system.
-func noIncludes(string) ([]byte, error) {
-	return nil, errors.New("includes are disabled while fuzzing")
-}
 
 // FuzzParse feeds arbitrary bytes through Parse and Flatten. Neither may
 // panic, every diagnostic must carry a position in the input file, and an
@@ -29,7 +22,7 @@ func FuzzParse(f *testing.F) {
 		}
 	}
 	f.Fuzz(func(t *testing.T, src []byte) {
-		opts := &LoadOptions{ReadFile: noIncludes, MaxElements: 2000, MaxSubcktDepth: 8}
+		opts := &LoadOptions{ReadFile: NoFiles, MaxElements: 2000, MaxSubcktDepth: 8}
 		d, _ := Parse("fuzz.cir", src, opts)
 		if d == nil {
 			t.Fatal("Parse returned no Deck")

@@ -326,3 +326,14 @@ func TestDefinitionNestingLimit(t *testing.T) {
 		t.Errorf("top level after the skipped definition: %v", d.Top.Elements)
 	}
 }
+
+// ReadSource parses and flattens text in memory; with NoFiles an include is
+// a located error, never a file-system read.
+func TestReadSourceNoFiles(t *testing.T) {
+	c, err := ReadSource("mem.cir", []byte("probe bias\nV1 a 0 5\nR1 a 0 1k\n"), &LoadOptions{ReadFile: NoFiles})
+	if err != nil || len(c.Elements) != 2 {
+		t.Fatalf("ReadSource: %v, %d elements", err, len(c.Elements))
+	}
+	_, err = ReadSource("mem.cir", []byte("probe bias\n.include /etc/passwd\nR1 a 0 1k\n"), &LoadOptions{ReadFile: NoFiles})
+	mustMention(t, err, "mem.cir:2:10", "includes are disabled")
+}

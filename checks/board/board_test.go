@@ -1,7 +1,6 @@
 package board
 
 import (
-	"errors"
 	"math"
 	"strings"
 	"testing"
@@ -11,13 +10,7 @@ import (
 
 func circuit(t *testing.T, src string) *netlist.Circuit {
 	t.Helper()
-	d, err := netlist.Parse("b.cir", []byte(src), &netlist.LoadOptions{
-		ReadFile: func(string) ([]byte, error) { return nil, errors.New("no includes in tests") },
-	})
-	if err != nil {
-		t.Fatal(err)
-	}
-	c, err := netlist.Flatten(d)
+	c, err := netlist.ReadSource("b.cir", []byte(src), &netlist.LoadOptions{ReadFile: netlist.NoFiles})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -26,9 +26,7 @@ RL a k 10k
 
 func fuzzCircuit(t *testing.T, extra string) *netlist.Circuit {
 	t.Helper()
-	opts := &netlist.LoadOptions{ReadFile: func(string) ([]byte, error) {
-		return nil, errNoIncludes
-	}, MaxElements: 200}
+	opts := &netlist.LoadOptions{ReadFile: netlist.NoFiles, MaxElements: 200}
 	d, _ := netlist.Parse("fuzz.cir", []byte(fuzzNetlist+extra), opts)
 	c, _ := netlist.Flatten(d)
 	if c == nil {
@@ -36,12 +34,6 @@ func fuzzCircuit(t *testing.T, extra string) *netlist.Circuit {
 	}
 	return c
 }
-
-type noIncludes struct{}
-
-func (noIncludes) Error() string { return "includes are disabled while fuzzing" }
-
-var errNoIncludes error = noIncludes{}
 
 // checkSettings tests what any Settings must hold: every rating and
 // setting unknown (NaN) or a finite number in range, every entry and

@@ -1,7 +1,6 @@
 package plane
 
 import (
-	"errors"
 	"math"
 	"strings"
 	"testing"
@@ -15,15 +14,9 @@ import (
 // circuit reads netlist text with includes disabled.
 func circuit(t *testing.T, src string) *netlist.Circuit {
 	t.Helper()
-	d, err := netlist.Parse("t.cir", []byte(src), &netlist.LoadOptions{
-		ReadFile: func(string) ([]byte, error) { return nil, errors.New("includes disabled in tests") },
-	})
+	c, err := netlist.ReadSource("t.cir", []byte(src), &netlist.LoadOptions{ReadFile: netlist.NoFiles})
 	if err != nil {
-		t.Fatalf("parse: %v", err)
-	}
-	c, err := netlist.Flatten(d)
-	if err != nil {
-		t.Fatalf("flatten: %v", err)
+		t.Fatalf("read: %v", err)
 	}
 	return c
 }

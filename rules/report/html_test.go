@@ -3,7 +3,6 @@ package report
 import (
 	"bytes"
 	"encoding/xml"
-	"errors"
 	"image/png"
 	"math"
 	"strings"
@@ -18,13 +17,7 @@ import (
 // analysed reads, analyses and judges netlist text with the default rules.
 func analysed(t *testing.T, name, src string) (File, []plane.Plane) {
 	t.Helper()
-	d, err := netlist.Parse(name, []byte(src), &netlist.LoadOptions{
-		ReadFile: func(string) ([]byte, error) { return nil, errors.New("includes disabled in tests") },
-	})
-	if err != nil {
-		t.Fatal(err)
-	}
-	c, err := netlist.Flatten(d)
+	c, err := netlist.ReadSource(name, []byte(src), &netlist.LoadOptions{ReadFile: netlist.NoFiles})
 	if err != nil {
 		t.Fatal(err)
 	}
