@@ -33,6 +33,16 @@ const MaxFileSize = 4 << 20
 // Load reads a board file. Device names are checked against c when c is
 // not nil. Problems are located errors (file:line:col).
 func Load(path string, c *netlist.Circuit) (*Settings, error) {
+	src, err := ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return Parse(path, src, c)
+}
+
+// ReadFile reads a board file's text, refusing one over MaxFileSize, so a
+// batch can read it once and Parse it against each circuit.
+func ReadFile(path string) ([]byte, error) {
 	fi, err := os.Stat(path)
 	if err != nil {
 		return nil, fmt.Errorf("%s: cannot read board file: %v", path, unwrapPathErr(err))
@@ -44,7 +54,7 @@ func Load(path string, c *netlist.Circuit) (*Settings, error) {
 	if err != nil {
 		return nil, fmt.Errorf("%s: cannot read board file: %v", path, unwrapPathErr(err))
 	}
-	return Parse(path, src, c)
+	return src, nil
 }
 
 func unwrapPathErr(err error) error {

@@ -166,6 +166,10 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 type checkRun struct {
 	set    *rules.RuleSet
 	report report.Report
+	// boardPath and board are the --board file and its text, read once
+	// and parsed against each netlist.
+	boardPath string
+	board     []byte
 }
 
 func newCheckRun(c *cli.Context) (*checkRun, error) {
@@ -187,6 +191,11 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 		return nil, err
 	}
 	run := &checkRun{set: set}
+	if run.boardPath = c.String("board"); run.boardPath != "" {
+		if run.board, err = board.ReadFile(run.boardPath); err != nil {
+			return nil, badInput(err)
+		}
+	}
 	run.report.Version = version
 	run.report.RuleSet = set
 	opt, err := worstCaseOptions(c, set)
@@ -222,8 +231,8 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 	if err != nil {
 		return report.File{}, err
 	}
-	if path := c.String("board"); path != "" {
-		b, err := board.Load(path, circ)
+	if run.boardPath != "" {
+		b, err := board.Parse(run.boardPath, run.board, circ)
 		if err != nil {
 			return report.File{}, err
 		}
