@@ -111,6 +111,12 @@ func expandArgs(args []string) ([]string, error) {
 		return nil
 	}
 	for _, a := range args {
+		if a == "-" { // standard input, read once however often named
+			if err := add(a); err != nil {
+				return nil, err
+			}
+			continue
+		}
 		fi, err := os.Stat(a)
 		switch {
 		case err == nil && fi.IsDir():

@@ -22,9 +22,6 @@ import (
 	"github.com/biaslint/biaslint/rulesets"
 )
 
-// version is the tool version written into SARIF reports.
-const version = "0.1.0"
-
 var (
 	rulesetFlag = &cli.StringSliceFlag{
 		Name:  "ruleset",
@@ -196,7 +193,7 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 			return nil, badInput(err)
 		}
 	}
-	run.report.Version = version
+	run.report.Version = toolVersion()
 	run.report.RuleSet = set
 	opt, err := worstCaseOptions(c, set)
 	if err != nil {

@@ -97,6 +97,7 @@ func runOp(c *cli.Context) error {
 	case "json":
 		enc := json.NewEncoder(&out)
 		enc.SetIndent("", "  ")
+		enc.SetEscapeHTML(false)
 		if err := enc.Encode(struct {
 			Results []opFile `json:"results"`
 		}{results}); err != nil {

@@ -168,5 +168,6 @@ func JSON(w io.Writer, r *Report) error {
 	out.Summary = r.Counts()
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	return enc.Encode(out)
 }
