@@ -68,7 +68,9 @@ func checkCommand() *cli.Command {
 			&cli.IntFlag{Name: "monte-carlo", Usage: "add `N` Monte Carlo runs drawing every resistor and supply within its tolerance"},
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
+			configFlag, noConfigFlag,
 		},
+		Before: applyProjectFile,
 		Action: runCheck,
 	}
 }
