@@ -13,6 +13,7 @@ import (
 	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/netlist/units"
+	"github.com/biaslint/biaslint/rules/report"
 )
 
 func opCommand() *cli.Command {
@@ -99,8 +100,9 @@ func runOp(c *cli.Context) error {
 		enc.SetIndent("", "  ")
 		enc.SetEscapeHTML(false)
 		if err := enc.Encode(struct {
-			Results []opFile `json:"results"`
-		}{results}); err != nil {
+			FormatVersion int      `json:"format_version"`
+			Results       []opFile `json:"results"`
+		}{report.FormatVersion, results}); err != nil {
 			return badInput(err)
 		}
 	default:
