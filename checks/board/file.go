@@ -158,6 +158,7 @@ func Parse(file string, src []byte, c *netlist.Circuit) (*Settings, error) {
 				case strings.TrimSpace(wv.Reason) == "":
 					errs.Addf(wv.Pos, "waiver of %s on %s gives no reason; a waiver must say why", wv.Rule, wv.Device)
 				default:
+					wv.External = true
 					s.Waivers = append(s.Waivers, wv)
 				}
 			}

@@ -247,7 +247,7 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 	}
 	var waivers []rules.Waiver
 	for _, w := range an.Board.Waivers {
-		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
+		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos, External: w.External})
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
@@ -276,6 +276,9 @@ func runCheck(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	if run.report.AtOrAbove(failOn) {
+		run.report.ExitCode = exitFindings
+	}
 	var out bytes.Buffer
 	switch format {
 	case "json":
@@ -297,8 +300,8 @@ func runCheck(c *cli.Context) error {
 	if err := emit(c, &out); err != nil {
 		return err
 	}
-	if run.report.AtOrAbove(failOn) {
-		return &statusError{code: exitFindings}
+	if run.report.ExitCode != exitOK {
+		return &statusError{code: run.report.ExitCode}
 	}
 	return nil
 }
