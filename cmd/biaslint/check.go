@@ -151,7 +151,7 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 	}
 	src, err := os.ReadFile(path)
 	if err != nil {
-		return nil, badInput(fmt.Errorf("%s: cannot read parts library: %v", path, err))
+		return nil, badInput(fmt.Errorf("%s: error: cannot read parts library: %v", path, err))
 	}
 	user, err := rulesets.LoadParts(path, src)
 	if err != nil {

@@ -6,6 +6,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -207,3 +208,40 @@ func TestStdin(t *testing.T) {
 		t.Errorf("op - with includes differs:\n%s\n---\n%s", got, want)
 	}
 }
+
+// NO_COLOR turns colour off when it is set and not empty; an empty
+// NO_COLOR is as if unset (no-color.org).
+func TestNoColor(t *testing.T) {
+	for _, tc := range []struct {
+		env      string
+		terminal bool
+		want     bool
+	}{
+		{"", true, true}, {"1", true, false}, {"0", true, false}, {"", false, false}, {"1", false, false},
+	} {
+		if got := autoColor(tc.env, tc.terminal); got != tc.want {
+			t.Errorf("NO_COLOR=%q terminal=%v: colour %v, want %v", tc.env, tc.terminal, got, tc.want)
+		}
+	}
+}
+
+// Tables align the same with colour as without: the coloured output, with
+// its escape sequences removed, is the plain output byte for byte.
+func TestColourTablesAlign(t *testing.T) {
+	for _, args := range [][]string{
+		{"op", "--demo"},
+		{"check", "--demo", "--notes"},
+		{"check", "testdata/check/weak-switch-drive.bad.cir", "testdata/check/floating-base.bad.cir"},
+	} {
+		plain, _, _ := runCLI(t, append(args, "--color", "never")...)
+		coloured, _, _ := runCLI(t, append(args, "--color", "always")...)
+		if !strings.Contains(coloured, "\x1b[") {
+			t.Errorf("%v --color always: no colour", args)
+		}
+		if got := ansiStrip.ReplaceAllString(coloured, ""); got != plain {
+			t.Errorf("%v: coloured output differs from plain once its colour is removed:\n%s\n---\n%s", args, got, plain)
+		}
+	}
+}
+
+var ansiStrip = regexp.MustCompile("\x1b\\[[0-9;]*m")

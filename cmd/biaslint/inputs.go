@@ -45,7 +45,7 @@ var stdin io.Reader = os.Stdin
 func readStdin() ([]byte, error) {
 	src, err := io.ReadAll(io.LimitReader(stdin, netlist.DefaultMaxFileSize+1))
 	if err != nil {
-		return nil, fmt.Errorf("%s: cannot read standard input: %v", stdinName, err)
+		return nil, fmt.Errorf("%s: error: cannot read standard input: %v", stdinName, err)
 	}
 	if len(src) > netlist.DefaultMaxFileSize {
 		return nil, fmt.Errorf("%s:1:1: error: standard input is larger than the limit of %d bytes (16 MiB)", stdinName, netlist.DefaultMaxFileSize)

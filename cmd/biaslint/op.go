@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
 
@@ -180,7 +179,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		if len(r.BJTs) == 0 {
 			fmt.Fprintln(w, "  no bipolar transistors")
 		} else {
-			tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+			tw := report.NewTabWriter(w)
 			fmt.Fprintln(tw, "  transistor\tmodel\tregion\tVBE\tVCE\tIC\tIB\tIC/IB\tpower\tTj")
 			for _, q := range r.BJTs {
 				tjText := "-"
@@ -196,7 +195,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			tw.Flush()
 		}
 		w.WriteString("\n")
-		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		tw := report.NewTabWriter(w)
 		fmt.Fprintln(tw, "  node\tvoltage")
 		for _, n := range r.nodeOrder {
 			fmt.Fprintf(tw, "  %s\t%s\n", n, units.Format(r.Nodes[n], "V"))

@@ -127,12 +127,12 @@ func TestProjectFilePrecedence(t *testing.T) {
 // A bad project file is a located error, exit status 2.
 func TestProjectFileErrors(t *testing.T) {
 	for _, tc := range []struct{ text, want string }{
-		{"rulset: [default]\n", `biaslint.yaml:1:1: project file: unknown key "rulset"`},
-		{"fail-on: [warning]\n", "biaslint.yaml:1:10: project file: fail-on: expected a single value"},
+		{"rulset: [default]\n", `biaslint.yaml:1:1: error: project file: unknown key "rulset"`},
+		{"fail-on: [warning]\n", "biaslint.yaml:1:10: error: project file: fail-on: expected a single value"},
 		{"fail-on: fatal\n", "--fail-on must be error, warning or note"},
-		{"set: 80%\n", "biaslint.yaml:1:6: project file: set: expected a mapping"},
+		{"set: 80%\n", "biaslint.yaml:1:6: error: project file: set: expected a mapping"},
 		{"board: [x\n", "biaslint.yaml:"},
-		{"- a\n", "biaslint.yaml:1:1: project file: expected a mapping"},
+		{"- a\n", "biaslint.yaml:1:1: error: project file: expected a mapping"},
 	} {
 		top := projectTree(t, map[string]string{"biaslint.yaml": tc.text})
 		out, errs, code := runCLI(t, "check", "--config", filepath.Join(top, "biaslint.yaml"), filepath.Join(top, "boards/bench/pin.cir"))
