@@ -63,10 +63,14 @@ func knownUnit(u string) bool {
 }
 
 // formatValue prints v in unit u through units.Format; "%" shows a
-// fraction as a percentage.
+// fraction as a percentage, and a figure without a unit is dimensionless
+// (a gain, a forced beta) and prints without an SI prefix (units.Number).
 func formatValue(v float64, u string) string {
-	if u == "%" {
+	switch u {
+	case "%":
 		return units.Format(v*100, "%")
+	case "":
+		return units.Number(v)
 	}
 	return units.Format(v, u)
 }

@@ -68,8 +68,8 @@ rules:
     limit: param.team_tj_max
     unit: C
     message: >-
-      {name} runs its junction at about {tj:C}, above our limit of
-      {param.team_tj_max:C} ({power:W} at {ambient:C} ambient)
+      {name} runs its junction at about {tj:C}, {tj - param.team_tj_max:K}
+      above our limit of {param.team_tj_max:C} ({power:W} at {ambient:C} ambient)
     rationale: >-
       Our guideline keeps junctions well below their rating so that parts
       last; failure rates rise steeply with temperature (common practice).

@@ -101,7 +101,7 @@ func htmlFindingOf(x rules.Finding) htmlFinding {
 	h := htmlFinding{Severity: string(x.Severity), Rule: x.Rule, Device: x.Device, Pos: x.Pos.String(),
 		Message: x.Message, Fix: x.Fix}
 	if x.HasLimit {
-		h.Value = units.Format(x.Value, x.Unit) + " against " + units.Format(x.Limit, x.Unit)
+		h.Value = Figure(x.Value, x.Unit) + " against " + Figure(x.Limit, x.Unit)
 	}
 	if x.Scenario != "" {
 		h.Case = rules.CaseName(x.Scenario, x.Corner)
@@ -252,9 +252,36 @@ func htmlMargins(pl plane.Plane, t checks.Transistor, haveFacts bool) []htmlMarg
 	v, at = worst(func(p plane.OpPoint) float64 { return p.Power })
 	out = append(out, row("power against Pd("+units.Format(pl.Ambient, "C")+")", v, at, pl.SOA.Pd, "W"))
 	if haveFacts && !math.IsNaN(t.Tj) {
-		out = append(out, row("Tj against Tj,max", t.Tj, "", t.Rating.TjMax, "C"))
+		out = append(out, tjMargin(t.Tj, t.Ambient, t.Rating.TjMax))
 	}
 	return out
+}
+
+// tjMargin compares the junction temperature with Tj,max. Celsius values
+// do not divide (0 C is no zero of heat), so the share is of the rise
+// the rating allows above the ambient, (Tj - Ta)/(Tj,max - Ta), and the
+// margin Tj,max - Tj is a temperature difference, in kelvin.
+func tjMargin(tj, ta, tjMax float64) htmlMargin {
+	m := htmlMargin{Label: "Tj against Tj,max", Value: units.Format(tj, "C"), Limit: "not rated", Class: "unknown"}
+	if math.IsNaN(tjMax) || math.IsInf(tjMax, 0) {
+		return m
+	}
+	m.Limit = units.Format(tjMax, "C")
+	margin := tjMax - tj
+	m.Share = units.Format(margin, "K") + " below"
+	m.Class = "ok"
+	if margin < 0 {
+		m.Share = units.Format(-margin, "K") + " above"
+		m.Class = "over"
+	}
+	if allowed := tjMax - ta; allowed > 0 && !math.IsNaN(ta) {
+		share := (tj - ta) / allowed
+		m.Share = fmt.Sprintf("%.0f %% of the %s rise; %s", 100*share, units.Format(allowed, "K"), m.Share)
+		if share > 0.8 && share <= 1 {
+			m.Class = "near"
+		}
+	}
+	return m
 }
 
 // htmlGridOf counts each file's unwaived findings per rule, for the rules

@@ -84,7 +84,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				ew.printf("    nets     %s\n", nets(x))
 			}
 			if x.HasLimit {
-				ew.printf("    value    %s against limit %s\n", units.Format(x.Value, x.Unit), units.Format(x.Limit, x.Unit))
+				ew.printf("    value    %s against limit %s\n", Figure(x.Value, x.Unit), Figure(x.Limit, x.Unit))
 			}
 			if x.Scenario != "" {
 				ew.printf("    case     %s", rules.CaseName(x.Scenario, x.Corner))
