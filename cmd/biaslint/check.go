@@ -61,7 +61,7 @@ func checkCommand() *cli.Command {
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
 			partsFlag, boardFlag, ambientFlag, tempFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
-			colorFlag, outputFlag, demoFlag,
+			colorFlag, outputFlag, demoFlag, demoRevFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
 			&cli.BoolFlag{Name: "thermal", Value: true, Usage: "solve each transistor at its junction temperature Ta + P*RthJA (--thermal=false: at the ambient)"},
 			&cli.BoolFlag{Name: "corners", Value: true, Usage: "also judge the hFE, ambient, supply and resistor corners (--corners=false: scenarios at nominal values only)"},

@@ -84,6 +84,8 @@ func flagChoices(cmd, flag string) []string {
 		return []string{"uniform", "normal"}
 	case "ruleset":
 		return rulesets.Names() // or a file: both are offered
+	case "rev", "demo-rev":
+		return []string{"A", "B"}
 	}
 	return nil
 }
@@ -103,7 +105,7 @@ func completionModel(app *cli.App) []compCommand {
 		}
 		cc := compCommand{Name: cmd.Name, Usage: cmd.Usage}
 		switch cmd.Name {
-		case "check", "op", "report", "plot", "demo":
+		case "check", "op", "report", "plot":
 			cc.Files = true
 		case "completion":
 			cc.Words = []string{"bash", "zsh", "fish"}

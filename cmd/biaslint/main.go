@@ -127,6 +127,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			reportCommand(),
 			plotCommand(),
 			initCommand(),
+			demoCommand(),
 			versionCommand(),
 			completionCommand(),
 			helpCommand(),

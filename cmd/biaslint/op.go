@@ -27,6 +27,7 @@ func opCommand() *cli.Command {
 			colorFlag,
 			outputFlag,
 			demoFlag,
+			demoRevFlag,
 		},
 		Action: runOp,
 	}

@@ -29,12 +29,16 @@ func plotCommand() *cli.Command {
 // (none with --demo).
 func plotArgs(c *cli.Context) (string, error) {
 	want := 2
-	if c.Bool("demo") {
+	_, useDemo, err := demoRevision(c)
+	if err != nil {
+		return "", err
+	}
+	if useDemo {
 		want = 1
 	}
 	if c.NArg() != want {
 		return "", badInput(fmt.Errorf("biaslint plot: name a DEVICE and %s (see 'biaslint plot --help')",
-			map[bool]string{true: "no FILE with --demo", false: "one netlist FILE"}[c.Bool("demo")]))
+			map[bool]string{true: "no FILE with --demo", false: "one netlist FILE"}[useDemo]))
 	}
 	return c.Args().First(), nil
 }

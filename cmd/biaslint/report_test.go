@@ -61,7 +61,7 @@ func TestReportCommand(t *testing.T) {
 	}
 	// The demo report goes to stdout without --output.
 	stdout, _, code = runCLI(t, "report", "--demo")
-	if code != exitOK || !strings.HasPrefix(stdout, "<!DOCTYPE html>") || strings.Count(stdout, `<svg class="plane"`) != 6 {
+	if code != exitOK || !strings.HasPrefix(stdout, "<!DOCTYPE html>") || strings.Count(stdout, `<svg class="plane"`) != 7 {
 		t.Errorf("report --demo: exit %d, %d plots", code, strings.Count(stdout, `<svg class="plane"`))
 	}
 }

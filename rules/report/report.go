@@ -35,6 +35,15 @@ func (f *File) Transistors() int {
 	return len(f.Analysis.Cases[0].Transistors)
 }
 
+// Cases counts the cases the file was judged in: nominal, drive levels,
+// opened drives, swing points, corners and Monte Carlo runs.
+func (f *File) Cases() int {
+	if f.Analysis == nil {
+		return 0
+	}
+	return len(f.Analysis.Cases)
+}
+
 // Report is one check run over one or more netlists.
 type Report struct {
 	Files []File

@@ -124,7 +124,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			writeTransistors(ew, f)
 		}
 		c := f.Counts()
-		ew.printf("\n  %s: %s, %s\n", f.Path, plural(f.Transistors(), "transistor"), countText(c))
+		ew.printf("\n  %s: %s, %s judged, %s\n", f.Path, plural(f.Transistors(), "transistor"), plural(f.Cases(), "case"), countText(c))
 	}
 	if len(r.Files) > 1 {
 		ew.printf("\n%d files: %s\n", len(r.Files), countText(r.Counts()))
