@@ -64,10 +64,11 @@ func runPlot(c *cli.Context) error {
 		return badInput(fmt.Errorf("biaslint plot: %v", err))
 	}
 	var out bytes.Buffer
+	marks := report.MarksOf(run.report.Files[0].Findings, pl.Device)
 	if ext == ".png" {
-		err = report.PlanePNG(&out, pl)
+		err = report.PlanePNG(&out, pl, marks...)
 	} else {
-		err = report.PlaneSVG(&out, pl)
+		err = report.PlaneSVG(&out, pl, marks...)
 	}
 	if err != nil {
 		return badInput(fmt.Errorf("biaslint plot: %v", err))

@@ -179,7 +179,7 @@ func htmlDevices(fileID string, f *File, planes []plane.Plane) []htmlDevice {
 	for j, pl := range planes {
 		d := htmlDevice{ID: fmt.Sprintf("%s-q%d", fileID, j+1), Name: pl.Device, LoadNote: pl.LoadNote}
 		label := fmt.Sprintf("Output plane of %s: IC against VCE with the load line, operating points and safe operating area", pl.Device)
-		svg, err := inlineSVG(pl, label)
+		svg, err := inlineSVG(pl, label, MarksOf(f.Findings, pl.Device)...)
 		if err != nil {
 			d.PlotError = err.Error()
 		} else {
