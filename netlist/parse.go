@@ -11,9 +11,17 @@ import (
 // see Parse.
 func Load(filename string, opts *LoadOptions) (*Deck, error) {
 	o := opts.withDefaults()
-	src, err := o.ReadFile(filename)
+	read := o.ReadFile
+	if o.ConfineTop {
+		read = newPolicy(filename, &o).confineTop
+	}
+	src, err := read(filename)
 	if err != nil {
 		d := &Deck{File: filename, Top: newSubckt(nil), opts: o}
+		if msg, ok := refused(err); ok {
+			d.Diagnostics.Addf(Pos{File: filename, Line: 1, Col: 1}, "netlist %s", msg)
+			return d, d.Diagnostics.Err()
+		}
 		var pe *fs.PathError
 		if errors.As(err, &pe) && pe.Path == filename {
 			err = pe.Err // the position already names the file
@@ -25,7 +33,8 @@ func Load(filename string, opts *LoadOptions) (*Deck, error) {
 }
 
 // Parse parses the netlist src read from filename. Includes are read with
-// opts.ReadFile relative to the including file. The first line is the title,
+// opts.ReadFile relative to the including file, and only inside the folder
+// of filename and opts.IncludeDirs (the include policy, open.go). The first line is the title,
 // unless it starts with '.' (a library file that starts with a statement) or
 // is an annotation.
 //
@@ -35,7 +44,9 @@ func Load(filename string, opts *LoadOptions) (*Deck, error) {
 func Parse(filename string, src []byte, opts *LoadOptions) (*Deck, error) {
 	o := opts.withDefaults()
 	d := &Deck{File: filename, Top: newSubckt(nil), opts: o}
-	r := &reader{opts: o, errs: &d.Diagnostics}
+	ro := o
+	ro.ReadFile = newPolicy(filename, &o).read // every include goes through the policy
+	r := &reader{opts: ro, errs: &d.Diagnostics}
 	r.readTop(filename, src)
 	d.Title, d.TitlePos, d.Files = r.title, r.tpos, r.files
 	p := &parser{d: d, errs: &d.Diagnostics, cur: d.Top, max: o.MaxElements}

@@ -3,9 +3,7 @@ package netlist
 import (
 	"bytes"
 	"errors"
-	"io"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"strings"
 )
@@ -36,6 +34,22 @@ type LoadOptions struct {
 	MaxLineLength int
 	// MaxElements bounds the flat element count (0: default 200000).
 	MaxElements int
+
+	// IncludeDirs are the folders, besides the top file's own folder, that
+	// .include and .lib files may be read from (see open.go): a file
+	// outside all of them, after ".." is applied and links are resolved,
+	// is a located error.
+	IncludeDirs []string
+	// IncludeHint ends the message about a refused include: how the user
+	// allows a folder (the CLI names its --include-dir flag). Nil says to
+	// add the folder to IncludeDirs.
+	IncludeHint func(dir string) string
+	// ConfineTop holds the top file itself to the policy: its path, links
+	// resolved, must lie inside its folder or IncludeDirs. For files found
+	// by searching a folder, where a link could lead anywhere.
+	ConfineTop bool
+
+	osFiles bool // ReadFile is the default file-system reader
 }
 
 // withDefaults returns a copy of o with zero fields set to the defaults.
@@ -56,20 +70,10 @@ func (o *LoadOptions) withDefaults() LoadOptions {
 	set(&r.MaxElements, DefaultMaxElements)
 	if r.ReadFile == nil {
 		limit := r.MaxFileSize
-		r.ReadFile = func(path string) ([]byte, error) { return readLimited(path, limit) }
+		r.ReadFile = func(path string) ([]byte, error) { return readRegular(path, limit) }
+		r.osFiles = true
 	}
 	return r
-}
-
-// readLimited reads at most limit+1 bytes of the file at path: enough to
-// tell that it is over the limit without holding all of it.
-func readLimited(path string, limit int) ([]byte, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, err
-	}
-	defer f.Close()
-	return io.ReadAll(io.LimitReader(f, int64(limit)+1))
 }
 
 // logical is one logical line: a statement with its continuation lines
@@ -374,12 +378,15 @@ func (f *fileState) include(l *logical) bool {
 		r.errs.Addf(t[1].pos, "includes nested deeper than the limit of %d", r.opts.MaxIncludeDepth)
 		return true
 	}
+	// r.opts.ReadFile holds the include policy (Parse wraps it; open.go).
 	src, err := r.opts.ReadFile(name)
 	if err != nil {
-		if errors.Is(err, fs.ErrNotExist) {
+		if msg, ok := refused(err); ok {
+			r.errs.Addf(t[1].pos, "include %q %s", t[1].text, msg)
+		} else if errors.Is(err, fs.ErrNotExist) {
 			r.errs.Addf(t[1].pos, "include file not found: %q", t[1].text)
 		} else {
-			r.errs.Addf(t[1].pos, "cannot read include file %q: %v", t[1].text, err)
+			r.errs.Addf(t[1].pos, "cannot read include file %q: %s", t[1].text, readErrText(err))
 		}
 		return true
 	}

@@ -22,7 +22,7 @@ func opCommand() *cli.Command {
 		ArgsUsage: "FILE...",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "text", Usage: formatFlagUsage + ": text or json"},
-			tempFlag,
+			tempFlag, includeDirFlag,
 			&cli.BoolFlag{Name: "thermal", Usage: "solve each transistor at its junction temperature T + P*RthJA (ratings from the parts library and *@part annotations)"},
 			colorFlag,
 			outputFlag,
