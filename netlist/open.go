@@ -21,16 +21,34 @@ import (
 
 // refusedError is a file the reader will not open: outside the allowed
 // folders, or not a regular file. Its text completes a sentence that starts
-// with the file's name as written ("include \"x\" " + msg).
-type refusedError struct{ msg string }
+// with the file's name as written ("include \"x\" " + msg), and ends with
+// hint(dir) when hint is set: how to allow the folder dir.
+type refusedError struct {
+	msg  string
+	hint func(dir string) string
+	dir  string
+}
 
-func (e *refusedError) Error() string { return e.msg }
+func (e *refusedError) Error() string { return e.text(false) }
+
+// text is the message; shorten cuts the folder (which comes from the path
+// as written) like any other quoted text.
+func (e *refusedError) text(shorten bool) string {
+	if e.hint == nil {
+		return e.msg
+	}
+	dir := e.dir
+	if shorten {
+		dir = short(dir)
+	}
+	return e.msg + "; to allow it, " + e.hint(dir)
+}
 
 // refused reports whether err is a refusal and returns its text.
-func refused(err error) (string, bool) {
+func refused(err error, shorten bool) (string, bool) {
 	var re *refusedError
 	if errors.As(err, &re) {
-		return re.msg, true
+		return re.text(shorten), true
 	}
 	return "", false
 }
@@ -106,8 +124,8 @@ func (p *includePolicy) check(path string) (string, error) {
 		return "", err
 	}
 	if !withinAny(a, p.abs) {
-		return "", &refusedError{fmt.Sprintf("is outside the folders includes may be read from (%s); to allow it, %s",
-			p.allowed(), p.hint(filepath.Dir(filepath.Clean(path))))}
+		return "", &refusedError{msg: fmt.Sprintf("is outside the folders includes may be read from (%s)", p.allowed()),
+			hint: p.hint, dir: filepath.Dir(filepath.Clean(path))}
 	}
 	if !p.osFS {
 		return path, nil
@@ -117,8 +135,8 @@ func (p *includePolicy) check(path string) (string, error) {
 		return "", err
 	}
 	if !withinAny(r, p.real) {
-		return "", &refusedError{fmt.Sprintf("is a symbolic link to a file outside the folders includes may be read from (%s); to allow it, %s",
-			p.allowed(), p.hint("the folder it points into"))}
+		return "", &refusedError{msg: fmt.Sprintf("is a symbolic link to a file outside the folders includes may be read from (%s)", p.allowed()),
+			hint: p.hint, dir: "DIR (the folder the link points into)"}
 	}
 	return r, nil
 }
@@ -151,7 +169,7 @@ func notRegular(fi fs.FileInfo) error {
 	default:
 		what = "a special file"
 	}
-	return &refusedError{"is " + what + ", not a regular file; only regular files are read"}
+	return &refusedError{msg: "is " + what + ", not a regular file; only regular files are read"}
 }
 
 // readRegular reads at most limit+1 bytes of the regular file at path:
@@ -206,7 +224,7 @@ func (p *includePolicy) confineTop(path string) ([]byte, error) {
 			return nil, err
 		}
 		if !withinAny(r, p.real) {
-			return nil, &refusedError{fmt.Sprintf("is a symbolic link to a file outside the folders being checked (%s); it is not read", p.allowed())}
+			return nil, &refusedError{msg: fmt.Sprintf("is a symbolic link to a file outside the folders being checked (%s); it is not read", p.allowed())}
 		}
 		path = r
 	}
