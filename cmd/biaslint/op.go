@@ -13,6 +13,7 @@ import (
 	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/netlist/units"
+	"github.com/biaslint/biaslint/rules/report"
 )
 
 func opCommand() *cli.Command {
@@ -168,9 +169,11 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		if i > 0 {
 			w.WriteString("\n")
 		}
-		head := r.File
+		// Names and titles come from the netlist: report.Printable keeps
+		// them from driving the terminal.
+		head := report.Printable(r.File)
 		if r.Title != "" {
-			head += "  " + p.dim(r.Title)
+			head += "  " + p.dim(report.Printable(r.Title))
 		}
 		fmt.Fprintln(w, p.bold(head))
 		fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", units.Format(r.Temperature, "C"), r.Method, r.Iterations)
@@ -185,7 +188,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 					tjText = units.Format(*q.Tj, "C")
 				}
 				fmt.Fprintf(tw, "  %s\t%s %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
-					q.Name, q.Model, p.dim(q.Polarity), regionText(p, q.Region),
+					report.Printable(q.Name), report.Printable(q.Model), p.dim(q.Polarity), regionText(p, q.Region),
 					units.Format(q.VBE, "V"), units.Format(q.VCE, "V"),
 					units.Format(q.IC, "A"), units.Format(q.IB, "A"),
 					forcedBeta(q), units.Format(q.Power, "W"), tjText)
@@ -196,7 +199,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 		fmt.Fprintln(tw, "  node\tvoltage")
 		for _, n := range r.nodeOrder {
-			fmt.Fprintf(tw, "  %s\t%s\n", n, units.Format(r.Nodes[n], "V"))
+			fmt.Fprintf(tw, "  %s\t%s\n", report.Printable(n), units.Format(r.Nodes[n], "V"))
 		}
 		tw.Flush()
 	}
