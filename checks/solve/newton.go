@@ -59,7 +59,7 @@ func (e *ConvergenceError) Error() string {
 	var b strings.Builder
 	if e.Pos.IsValid() || e.Pos.File != "" {
 		b.WriteString(e.Pos.String())
-		b.WriteString(": ")
+		b.WriteString(": error: ")
 	}
 	b.WriteString("no DC operating point found: ")
 	if e.Cause != nil {

@@ -363,7 +363,7 @@ func TestReportNonFinite(t *testing.T) {
 	for _, v := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
 		f := rules.Finding{Rule: "r", Severity: rules.SeverityError, Device: "Q1", Message: "m",
 			Value: v, Limit: v, HasLimit: true, Values: []rules.Quantity{{Value: v}}}
-		r := &report.Report{Files: []report.File{{Path: "x.cir", Findings: []rules.Finding{f}}}, Version: version}
+		r := &report.Report{Files: []report.File{{Path: "x.cir", Findings: []rules.Finding{f}}}, Version: toolVersion()}
 		for name, write := range map[string]func(*bytes.Buffer) error{
 			"json":  func(b *bytes.Buffer) error { return report.JSON(b, r) },
 			"sarif": func(b *bytes.Buffer) error { return report.SARIF(b, r) },

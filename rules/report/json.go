@@ -106,11 +106,18 @@ func bjtsOf(an *checks.Analysis) []jsonBJT {
 	return out
 }
 
+// FormatVersion is the version of the JSON report shapes (check and op),
+// written as "format_version". It changes when a field is removed or
+// changes meaning; fields may be added within a version. The shapes are
+// described by the JSON Schemas in rules/report/schema.
+const FormatVersion = 1
+
 type jsonReport struct {
-	RuleSet string     `json:"ruleset"`
-	Ambient float64    `json:"ambient"`
-	Results []jsonFile `json:"results"`
-	Summary Counts     `json:"summary"`
+	FormatVersion int        `json:"format_version"`
+	RuleSet       string     `json:"ruleset"`
+	Ambient       float64    `json:"ambient"`
+	Results       []jsonFile `json:"results"`
+	Summary       Counts     `json:"summary"`
 }
 
 func toJSON(f rules.Finding) jsonFinding {
@@ -145,7 +152,7 @@ func toJSON(f rules.Finding) jsonFinding {
 // findings (with reasons), input notes and counts, then the run's counts.
 // Values are SI; the shape is documented in the README.
 func JSON(w io.Writer, r *Report) error {
-	out := jsonReport{Ambient: r.Ambient, Results: []jsonFile{}}
+	out := jsonReport{FormatVersion: FormatVersion, Ambient: r.Ambient, Results: []jsonFile{}}
 	if r.RuleSet != nil {
 		out.RuleSet = r.RuleSet.Name
 	}
@@ -168,5 +175,6 @@ func JSON(w io.Writer, r *Report) error {
 	out.Summary = r.Counts()
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	return enc.Encode(out)
 }
