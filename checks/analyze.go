@@ -241,7 +241,7 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 		t.Model = m.Name
 		if p, err := device.BJTParamsOf(m, a.c.Options.TNom); err == nil {
 			t.GP = ModelFacts{IS: p.IS, BF: p.BF, NF: p.NF, VAF: p.VAF, IKF: p.IKF, ISE: p.ISE, NE: p.NE,
-				BR: p.BR, NR: p.NR, VAR: p.VAR, IKR: p.IKR, ISC: p.ISC, NC: p.NC, RB: p.RB, RE: p.RE, RC: p.RC,
+				BR: p.BR, NR: p.NR, VAR: p.VAR, IKR: p.IKR, ISC: p.ISC, NC: p.NC, RB: p.RB, RBM: p.RBM, IRB: p.IRB, RE: p.RE, RC: p.RC,
 				EG: p.EG, XTI: p.XTI, XTB: p.XTB}
 		}
 	}

@@ -70,6 +70,8 @@ type ModelFacts struct {
 	ISC float64 `expr:"isc"`
 	NC  float64 `expr:"nc"`
 	RB  float64 `expr:"rb"`
+	RBM float64 `expr:"rbm"`
+	IRB float64 `expr:"irb"`
 	RE  float64 `expr:"re"`
 	RC  float64 `expr:"rc"`
 	EG  float64 `expr:"eg"`
