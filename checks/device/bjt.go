@@ -140,6 +140,8 @@ type BJT struct {
 	GMin float64
 
 	vcritBE, vcritBC float64
+	// onBE, onBC are the on-thresholds of Region at Temp, V.
+	onBE, onBC float64
 }
 
 // NewBJT returns the transistor of model m (type npn or pnp) with area
@@ -188,6 +190,10 @@ func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
 	b := &BJT{Polarity: pol, Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin}
 	b.vcritBE = Vcrit(s.NF*vt, s.IS)
 	b.vcritBC = Vcrit(s.NR*vt, s.IS)
+	// The current each junction carries at OnVoltage at TNOM.
+	isNom, vtNom := area*p.IS, ThermalVoltage(tnom)
+	b.onBE = onThreshold(s.NF*vt, s.IS, isNom*math.Expm1(OnVoltage/(p.NF*vtNom)))
+	b.onBC = onThreshold(s.NR*vt, s.IS, isNom*math.Expm1(OnVoltage/(p.NR*vtNom)))
 	return b, nil
 }
 
