@@ -500,6 +500,9 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 		t.Thermal = sp.thermal
 		if sp.thermal && !math.IsNaN(t.Rating.RthJA) && !o.th.runaway[j] {
 			t.Tj = op.Temp // the fixed point: Ta + P*RthJA
+			if !math.IsNaN(o.th.tj[j]) {
+				t.Tj = o.th.tj[j] // beyond the followed range, estimated
+			}
 		}
 		t.RunawayTj = t.Tj
 		if sp.thermal {
@@ -508,6 +511,7 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 			if t.ThermalRunaway {
 				t.RunawayTj = o.th.runTj[j]
 			}
+			t.OverTemperature = !t.ThermalRunaway && t.Tj > t.Rating.TjMax
 		}
 		if sp.swing != nil {
 			t.Swing, t.SwingLevel = true, sp.level

@@ -362,7 +362,7 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 		}
 		m := &matrixSink{lin: w.lin, rhs: w.rhs}
 		w.stampLinear(m)
-		w.stampDevices(m, nil, true)
+		w.stampDevices(m, x, true)
 		w.iters++
 		if err := w.lin.Factor(); err != nil {
 			var se *SingularError

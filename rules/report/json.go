@@ -97,7 +97,9 @@ func bjtsOf(an *checks.Analysis) []jsonBJT {
 			if !ok || math.IsNaN(t.Tj) || math.IsInf(t.Tj, 0) {
 				continue
 			}
-			if h, seen := hottest[t.Name]; !seen || t.Tj > h {
+			// Junctions within a microkelvin are a tie: the earlier case
+			// stays, so rounding-level differences do not move the label.
+			if h, seen := hottest[t.Name]; !seen || t.Tj > h+1e-6 {
 				hottest[t.Name] = t.Tj
 				out[i].TjMax, out[i].TjMaxCase = finite(t.Tj), rules.CaseName(c.Scenario, c.Corner)
 			}
