@@ -49,6 +49,9 @@ type System struct {
 	nExt   int // circuit nodes
 	nNodes int // circuit and internal nodes
 	n      int // all unknowns
+	// lin is the System's own linear solver, used when Options.Linear is
+	// nil: its pattern and ordering are the System's, whatever else ran.
+	lin *LU
 }
 
 // Solve prepares c and solves it once; see Prepare and System.Solve.

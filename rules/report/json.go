@@ -97,7 +97,10 @@ func bjtsOf(an *checks.Analysis) []jsonBJT {
 			if !ok || math.IsNaN(t.Tj) || math.IsInf(t.Tj, 0) {
 				continue
 			}
-			if h, seen := hottest[t.Name]; !seen || t.Tj > h {
+			// A later case takes over only when it is hotter by more than
+			// rounding, so that cases a transistor does not feel (another
+			// stage's drive level) do not win on the last bit.
+			if h, seen := hottest[t.Name]; !seen || t.Tj > h+1e-9*math.Max(1, math.Abs(h)) {
 				hottest[t.Name] = t.Tj
 				out[i].TjMax, out[i].TjMaxCase = finite(t.Tj), rules.CaseName(c.Scenario, c.Corner)
 			}
