@@ -159,14 +159,13 @@ type worker struct {
 	hasBF  []bool
 	sys    *solve.System
 	swing  *solve.System
-	lu     *solve.DenseLU
 	// dirty lists the values changed on sys and swing.
 	dirty, swingDirty []string
 	err               error
 }
 
 func newWorker(a *analyzer) *worker {
-	w := &worker{a: a, lu: solve.NewDenseLU()}
+	w := &worker{a: a}
 	c := *a.c
 	c.Models = make(map[string]*netlist.Model, len(a.c.Models)+len(a.bjts))
 	for k, m := range a.c.Models {
@@ -281,7 +280,7 @@ func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
 	} else if err := w.apply(sys, &w.dirty, sp.set); err != nil {
 		return caseOut{err: err}
 	}
-	out.res, out.th, out.err = w.a.solveThermal(sys, w.lu, sp, guess)
+	out.res, out.th, out.err = w.a.solveThermal(sys, sp, guess)
 	if sp.open != nil {
 		if oc == nil {
 			oc = w.circ // a current source opened by setting it to zero

@@ -94,6 +94,7 @@ func (w *work) stampLinear(k sink) {
 			branch(k, n[0], n[1], el.br)
 		case 'V':
 			branch(k, n[0], n[1], el.br)
+			k.a(el.br, el.br, 0) // the place of an opened source's leak
 			k.b(el.br, w.lambda*el.value)
 		case 'I':
 			// SPICE: the source current flows from n+ through the source to n−.
@@ -138,10 +139,10 @@ func (w *work) stampLinear(k sink) {
 			}
 		}
 	}
-	if w.gshunt > 0 {
-		for i := 0; i < w.s.nNodes; i++ {
-			k.a(i, i, w.gshunt)
-		}
+	// The shunts are stamped (as zeros) in every solve, so that the
+	// matrix pattern does not depend on whether GMIN stepping ran.
+	for i := 0; i < w.s.nNodes; i++ {
+		k.a(i, i, w.gshunt)
 	}
 }
 
