@@ -25,7 +25,9 @@ package checks
 //     own at one net (directly or through one resistor each), both
 //     collectors at rails.
 //   - diff-pair: a transistor of the same polarity whose emitter meets its
-//     own at a tail net that is not a rail, with a different base net.
+//     own at a tail net that is not a rail, with a different collector,
+//     neither one's base on the other's collector or emitter (that is a
+//     limiter or a Darlington, not a pair).
 //   - clamp: off in the nominal solve (IC below conductingIC), nothing
 //     drives its base (no drive source, no other collector one resistor
 //     away), and its collector sits on another transistor's base or its
@@ -381,7 +383,7 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 						bjts[o].Name, x.netName(k), x.netName(x.c[j]), x.netName(x.c[o])))
 					break
 				}
-				if pol[o] == pol[j] && x.b[o] != x.b[j] && x.c[o] != x.c[j] {
+				if pol[o] == pol[j] && x.c[o] != x.c[j] && !x.coupled(j, o) {
 					mark(j, RoleDiffPair, fmt.Sprintf("emitter shares tail net %s with %s; %s", x.netName(k), bjts[o].Name, x.tail(k, j, o)))
 					break
 				}
@@ -511,6 +513,13 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 	return out
 }
 
+// coupled reports whether one of j, o has its base on the other's
+// emitter or collector: a transistor that senses or drives the other (a
+// current limiter on a follower, a Darlington) is not its pair partner.
+func (x *roleIndex) coupled(j, o int) bool {
+	return x.b[o] == x.e[j] || x.b[j] == x.e[o] || x.b[o] == x.c[j] || x.b[j] == x.c[o]
+}
+
 // tail describes what feeds the tail node k of a pair j, o.
 func (x *roleIndex) tail(k string, j, o int) string {
 	if r, rail := x.toRail(k); r != nil {
@@ -580,6 +589,9 @@ func (x *roleIndex) currentSource(j int, q *netlist.Element) string {
 	}
 	if es := others(x.emitAt[x.c[j]], j); len(es) > 0 {
 		return fmt.Sprintf("collector feeds the emitters of %s (a tail), emitter through %s to %s", x.names(es), re.Name, x.netName(rail))
+	}
+	if x.rail[x.b[j]] {
+		return fmt.Sprintf("base at %s, emitter through %s to %s", x.netName(x.b[j]), re.Name, x.netName(rail))
 	}
 	for _, e := range x.elems[x.b[j]] {
 		switch {

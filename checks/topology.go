@@ -119,8 +119,8 @@ func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
 // pinNet reports whether the DC voltage source e stands for a controller
 // pin (a logic output written as a plain DC source) rather than a supply,
 // and which net it holds: one terminal is ground, and everything else on
-// the other net is a resistor or a capacitor, at least one resistor
-// leading to a transistor's base. A supply feeds collectors, loads and
+// the other net is a capacitor or a resistor whose far end is a
+// transistor's base (at least one). A supply feeds collectors, loads and
 // dividers; a pin feeds only base resistors.
 func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool) {
 	a, b := nodeKey(e.Nodes[0]), nodeKey(e.Nodes[1])
@@ -143,9 +143,10 @@ func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool)
 		}
 		switch x.Kind {
 		case 'R':
-			if len(x.Nodes) == 2 && bases[other(x, k)] {
-				toBase = true
+			if len(x.Nodes) != 2 || !bases[other(x, k)] {
+				return "", false // a divider's far end or a load: a supply
 			}
+			toBase = true
 		case 'C':
 		default:
 			return "", false
