@@ -220,6 +220,9 @@ func (x *roleIndex) netName(k string) string {
 
 // between returns the first resistor joining nodes a and b, or nil.
 func (x *roleIndex) between(a, b string) *netlist.Element {
+	if len(x.res[b]) < len(x.res[a]) {
+		a, b = b, a // walk the shorter list: a rail has every supply resistor
+	}
 	for _, r := range x.res[a] {
 		if x.far(r, a) == b {
 			return r
@@ -352,6 +355,9 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 		if set[j] {
 			continue
 		}
+		if x.rail[x.c[j]] || x.rail[x.e[j]] {
+			continue // a multiplier floats between the bases it spreads
+		}
 		rcb, rbe := x.between(x.c[j], x.b[j]), x.between(x.b[j], x.e[j])
 		oc, oe := others(x.baseAt[x.c[j]], j), others(x.baseAt[x.e[j]], j)
 		if rcb != nil && rbe != nil && len(oc) > 0 && len(oe) > 0 {
@@ -398,7 +404,7 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 			continue
 		}
 		why := ""
-		if oc := others(x.baseAt[x.c[j]], j); len(oc) > 0 {
+		if oc := others(x.baseAt[x.c[j]], j); len(oc) > 0 && !x.rail[x.c[j]] {
 			why = "collector on the base of " + x.names(oc)
 		} else if r := x.between(x.b[j], x.e[j]); r != nil {
 			if oe := append(others(x.emitAt[x.b[j]], j), others(x.emitAt[x.e[j]], j)...); len(oe) > 0 {
@@ -539,6 +545,9 @@ func (x *roleIndex) tail(k string, j, o int) string {
 // fedByCollector returns a transistor whose collector is one resistor (or
 // nothing) away from j's base, or -1.
 func (x *roleIndex) fedByCollector(j int) int {
+	if x.rail[x.b[j]] {
+		return -1
+	}
 	if cs := others(x.collAt[x.b[j]], j); len(cs) > 0 {
 		return cs[0]
 	}
