@@ -34,9 +34,10 @@ package checks
 //     base-emitter junction sits across a resistor another transistor's
 //     emitter feeds: a protection or limiting transistor, normally off.
 //   - switch: the base is driven by a PULSE or PWL source; or the emitter
-//     is at a rail, a load sits in the collector and the base is fed
-//     through a resistor from a controller pin (a plain DC source that
-//     feeds only base resistors) or from the collector of a switch.
+//     is at a rail, a load sits in the collector, no signal reaches the
+//     base, and the base is fed through resistors (and capacitors) from a
+//     controller pin (a plain DC source that feeds only base networks,
+//     see graph.pinNet) or through a resistor from a switch's collector.
 //   - follower: collector at a rail, emitter not.
 //   - current-source: emitter through a resistor to a rail, collector not
 //     at a rail, and the collector feeds other transistors' emitters (a
@@ -427,12 +428,9 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 		if !x.rail[x.e[j]] || x.rail[x.c[j]] || x.load(j) == nil || x.signal(q) {
 			continue
 		}
-		for _, r := range x.res[x.b[j]] {
-			if p := g.pin[x.far(r, x.b[j])]; p != nil {
-				mark(j, RoleSwitch, fmt.Sprintf("emitter at %s, base fed by %s from %s (DC %s), collector load %s",
-					x.netName(x.e[j]), r.Name, p.Name, units.Format(p.Source.DC, "V"), x.load(j).Name))
-				break
-			}
+		if p, r := x.pinDrive(q, j); p != nil {
+			mark(j, RoleSwitch, fmt.Sprintf("emitter at %s, base fed by %s from %s (DC %s), collector load %s",
+				x.netName(x.e[j]), r.Name, p.Name, units.Format(p.Source.DC, "V"), x.load(j).Name))
 		}
 	}
 	// Switch chains: a base fed from a switch's collector, on a work list.
@@ -557,6 +555,28 @@ func (x *roleIndex) fedByCollector(j int) int {
 		}
 	}
 	return -1
+}
+
+// pinDrive returns the controller pin (see graph.pinNet) that drives q's
+// base through resistors and capacitors, and the base resistor on the way
+// (the first one on the base that does not go to a rail), or nil.
+func (x *roleIndex) pinDrive(q *netlist.Element, j int) (*netlist.Element, *netlist.Element) {
+	var rb *netlist.Element
+	for _, r := range x.res[x.b[j]] {
+		if !x.rail[x.far(r, x.b[j])] {
+			rb = r
+			break
+		}
+	}
+	if rb == nil {
+		return nil, nil
+	}
+	for _, s := range x.g.drives(q).sources {
+		if len(s.Nodes) >= 2 && s.Source != nil && (x.g.pin[nodeKey(s.Nodes[0])] == s || x.g.pin[nodeKey(s.Nodes[1])] == s) {
+			return s, rb
+		}
+	}
+	return nil, nil
 }
 
 // steppedDrive describes a PULSE or PWL source that drives q's base, or "".

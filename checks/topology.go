@@ -118,10 +118,14 @@ func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
 
 // pinNet reports whether the DC voltage source e stands for a controller
 // pin (a logic output written as a plain DC source) rather than a supply,
-// and which net it holds: one terminal is ground, and everything else on
-// the other net is a capacitor or a resistor whose far end is a
-// transistor's base (at least one). A supply feeds collectors, loads and
-// dividers; a pin feeds only base resistors.
+// and which net it holds. One terminal is on ground, and the region the
+// other net reaches through resistors and capacitors (stopping at ground)
+// holds at least one transistor base and nothing else but resistors and
+// capacitors: no collector or emitter, no other source, diode, inductor or
+// controlled element. A supply feeds collectors and loads; a pin feeds
+// base resistors, with pull-downs and RC filters on the way. The walk
+// stops at the first thing a pin cannot feed, and is bounded by the
+// circuit's size.
 func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool) {
 	a, b := nodeKey(e.Nodes[0]), nodeKey(e.Nodes[1])
 	var k string
@@ -137,19 +141,27 @@ func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool)
 		return "", false // straight on a base: a bias source, stiff_drive judges it
 	}
 	toBase := false
-	for _, x := range g.at[k] {
-		if x == e {
-			continue
-		}
-		switch x.Kind {
-		case 'R':
-			if len(x.Nodes) != 2 || !bases[other(x, k)] {
-				return "", false // a divider's far end or a load: a supply
+	seen := map[string]bool{k: true}
+	queue := []string{k}
+	for len(queue) > 0 {
+		n := queue[0]
+		queue = queue[1:]
+		for _, x := range g.at[n] {
+			switch {
+			case x == e:
+			case x.Kind == 'Q' && len(x.Nodes) >= 3:
+				if nodeKey(x.Nodes[0]) == n || nodeKey(x.Nodes[2]) == n {
+					return "", false // a collector or an emitter: a supply
+				}
+				toBase = true
+			case (x.Kind == 'R' || x.Kind == 'C') && len(x.Nodes) == 2:
+				if f := other(x, n); f != netlist.Ground && !seen[f] {
+					seen[f] = true
+					queue = append(queue, f)
+				}
+			default:
+				return "", false
 			}
-			toBase = true
-		case 'C':
-		default:
-			return "", false
 		}
 	}
 	return k, toBase

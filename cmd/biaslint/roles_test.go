@@ -147,3 +147,36 @@ func TestTopologyCorpus(t *testing.T) {
 	t.Logf("corpus: %d netlists, %d labelled transistors, %d roles right, %d must-findings missed, %d must-not findings fired",
 		len(paths), devices, rolesRight, mustMissed, falseAlarms)
 }
+
+// The transistor table and JSON show a switch at its on level, not at
+// t = 0: the floating-base trigger's PULSE starts at 0 V (the switch is
+// off there, about 5 pA of leakage), and at 3.3 V the 1k base resistor
+// drives it into saturation (IB = (3.3 - 0.75)/1k = 2.55 mA against a
+// 32 mA load, hand calculation with VBE(on) 0.75 V, common practice).
+func TestTableShowsOnLevel(t *testing.T) {
+	path := "testdata/check/floating-base.bad.cir"
+	out, errs, code := runCLI(t, "check", "--format", "json", path)
+	if code == exitBadInput {
+		t.Fatalf("exit 2: %s", errs)
+	}
+	var r struct {
+		Results []struct {
+			BJTs []struct {
+				Name, Role, Case, Region string
+				IC                       float64 `json:"ic"`
+				Worst                    string  `json:"worst"`
+			} `json:"bjts"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal([]byte(out), &r); err != nil || len(r.Results) != 1 || len(r.Results[0].BJTs) != 1 {
+		t.Fatalf("JSON: %v", err)
+	}
+	b := r.Results[0].BJTs[0]
+	if b.Role != "switch" || b.Case != "VPIN high" || b.Region != "saturation" || !(b.IC > 20e-3) || b.Worst != "beta" {
+		t.Errorf("shown %+v; want the switch at VPIN high, saturated, IC above 20 mA, worst forced beta", b)
+	}
+	text, _, _ := runCLI(t, "check", path)
+	if !strings.Contains(text, "switch  VPIN high  saturation") {
+		t.Errorf("text table does not show the on level:\n%s", text)
+	}
+}
