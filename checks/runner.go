@@ -396,6 +396,7 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 		return nil, err
 	}
+	a.assignRoles(outs[0].res)
 	groups := []int{0}
 	if o.Scenarios || o.Corners {
 		levels := a.levelScenarios()
