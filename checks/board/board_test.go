@@ -64,7 +64,7 @@ func TestFromCircuit(t *testing.T) {
 	all := strings.Join(msgs, "\n")
 	for _, want := range []string{
 		"b.cir:15:10: warning: *@device names Q7, which is not in the circuit",
-		"role=sometimes must be switch or linear",
+		"role=sometimes must be one of switch, common-emitter",
 		`unknown key "colour"`,
 		"gives no reason",
 		"unknown annotation *@lamp",

@@ -59,7 +59,7 @@ func checkCommand() *cli.Command {
 			rulesetFlag, setFlag,
 			&cli.StringSliceFlag{Name: "only", Usage: "judge only these rule `IDS` (comma-separated or repeated)"},
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
-			partsFlag, boardFlag, ambientFlag, tempFlag,
+			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
 			colorFlag, outputFlag, demoFlag, demoRevFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},

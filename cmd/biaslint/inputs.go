@@ -6,6 +6,8 @@ import (
 	"io"
 	"io/fs"
 	"os"
+	"strconv"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
@@ -99,14 +101,23 @@ func inputsOf(c *cli.Context) ([]input, error) {
 	if len(args) == 0 {
 		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, or use --demo)", c.Command.Name))
 	}
-	names, err := expandArgs(args)
+	dirs, err := includeDirs(c)
+	if err != nil {
+		return nil, err
+	}
+	found, err := expand(args)
 	if err != nil {
 		return nil, badInput(err)
 	}
 	var ins []input
-	for _, a := range names {
-		if a != "-" {
-			ins = append(ins, input{name: a})
+	for _, f := range found {
+		o := &netlist.LoadOptions{IncludeDirs: dirs, IncludeHint: includeHint, ConfineTop: f.searched}
+		if f.root != "" {
+			// A folder argument: its files may include from all of it.
+			o.IncludeDirs = append([]string{f.root}, dirs...)
+		}
+		if f.path != "-" {
+			ins = append(ins, input{name: f.path, opts: o})
 			continue
 		}
 		src, err := readStdin()
@@ -116,9 +127,38 @@ func inputsOf(c *cli.Context) ([]input, error) {
 		if src == nil {
 			src = []byte{}
 		}
-		ins = append(ins, input{name: stdinName, src: src})
+		ins = append(ins, input{name: stdinName, opts: o, src: src})
 	}
 	return ins, nil
+}
+
+// includeDirFlag names further folders includes may be read from.
+var includeDirFlag = &cli.StringSliceFlag{
+	Name: "include-dir",
+	Usage: "also let .include and .lib read files from `DIR` (repeatable); by default only the netlist's folder " +
+		"(for a folder argument, that folder) is allowed",
+}
+
+// includeDirs returns the folders of --include-dir, each checked to be a
+// folder. (The project file's folders join here too.)
+func includeDirs(c *cli.Context) ([]string, error) {
+	var out []string
+	for _, d := range c.StringSlice("include-dir") {
+		fi, err := os.Stat(d)
+		if err != nil || !fi.IsDir() {
+			return nil, badInput(fmt.Errorf("biaslint: --include-dir %s: not a folder", d))
+		}
+		out = append(out, d)
+	}
+	return out, nil
+}
+
+// includeHint tells how to allow a folder an include was refused from.
+func includeHint(dir string) string {
+	if strings.ContainsAny(dir, " \t'\"") {
+		dir = strconv.Quote(dir)
+	}
+	return "pass --include-dir " + dir
 }
 
 // demoFile serves the embedded demo netlists and nothing else.

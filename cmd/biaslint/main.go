@@ -15,6 +15,8 @@ import (
 	"strings"
 
 	"github.com/urfave/cli/v2"
+
+	"github.com/biaslint/biaslint/rules/report"
 )
 
 // Exit statuses.
@@ -54,7 +56,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 	var se *statusError
 	if errors.As(err, &se) {
 		if se.err != nil && se.err.Error() != "" {
-			fmt.Fprintln(stderr, se.err)
+			// Messages quote input: escape what could drive a terminal.
+			fmt.Fprintln(stderr, report.Printable(se.err.Error()))
 		}
 		return se.code
 	}
