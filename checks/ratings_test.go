@@ -41,8 +41,8 @@ Q1 c b e ONLYPD
 	if !(tr.Power > 0.5 && tr.Power < 0.625) {
 		t.Fatalf("power %g W, want between 500 and 625 mW for this test", tr.Power)
 	}
-	if fs := findings(t, a, "overdissipation"); len(fs) != 0 {
-		t.Errorf("overdissipation at %g W against the user's 625 mW: %s", tr.Power, fs[0].Message)
+	if fs := findings(t, a, "power-over-rating"); len(fs) != 0 {
+		t.Errorf("power-over-rating at %g W against the user's 625 mW: %s", tr.Power, fs[0].Message)
 	}
 	var note string
 	for _, n := range a.Notes {

@@ -122,7 +122,17 @@ func loadRuleSets(c *cli.Context) (*rules.RuleSet, error) {
 			return nil, badInput(fmt.Errorf("biaslint: --set %s: no such parameter in the rule set (see 'biaslint rules')", k))
 		}
 	}
-	return rules.Combine(out...), nil
+	rs := rules.Combine(out...)
+	// Notes about the rule-set files (old key names, renamed rule ids)
+	// go to standard error, each once, so that reports stay as they were.
+	seen := map[string]bool{}
+	for _, n := range rs.Notes {
+		if msg := n.Error(); !seen[msg] {
+			seen[msg] = true
+			fmt.Fprintln(c.App.ErrWriter, msg)
+		}
+	}
+	return rs, nil
 }
 
 // idList splits repeated and comma-separated rule ids.
@@ -251,6 +261,9 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
+	if opt.Board != nil {
+		notes = append(notes, opt.Board.Notes...)
+	}
 	return report.File{Path: circ.File, Title: circ.Title, Analysis: an, Findings: findings, Notes: notes}, nil
 }
 

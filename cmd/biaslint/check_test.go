@@ -110,11 +110,11 @@ func TestDemoRevisions(t *testing.T) {
 		t.Errorf("check --demo: exit %d, want 1 (findings)", code)
 	}
 	want := map[string]string{
-		"weak-switch-drive":      "X1.Q1",
-		"floating-base":          "Q4",
-		"signal-clipping":        "Q1",
-		"overdissipation":        "Q6",
-		"vbe-reverse-overstress": "X2.Q1",
+		"weak-switch-drive":       "X1.Q1",
+		"floating-base":           "Q4",
+		"signal-clipping":         "Q1",
+		"power-over-rating":       "Q6",
+		"vbe-reverse-over-rating": "X2.Q1",
 	}
 	got := map[string]string{}
 	for _, x := range r.Results[0].Findings {
@@ -131,7 +131,7 @@ func TestDemoRevisions(t *testing.T) {
 			t.Errorf("rev A: %s not found on %s", rule, dev)
 		}
 	}
-	// The overdissipation of Q6 is a hot-corner problem only: every case
+	// The power-over-rating of Q6 is a hot-corner problem only: every case
 	// it is found in is at the 70 C ambient.
 	out, _, _ := runCLI(t, "check", "--format", "json", "--demo")
 	var full struct {
@@ -146,12 +146,12 @@ func TestDemoRevisions(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, x := range full.Results[0].Findings {
-		if x.Rule != "overdissipation" {
+		if x.Rule != "power-over-rating" {
 			continue
 		}
 		for _, c := range x.Cases {
 			if !strings.Contains(c, "ambient 70 C") {
-				t.Errorf("overdissipation in case %q, want only 70 C corners", c)
+				t.Errorf("power-over-rating in case %q, want only 70 C corners", c)
 			}
 		}
 	}
@@ -209,8 +209,8 @@ func TestGoldenReports(t *testing.T) {
 		args   []string
 	}{
 		{"check-weak-switch.txt", []string{"check", "testdata/check/weak-switch-drive.bad.cir"}},
-		{"check-overdissipation.json", []string{"check", "--format", "json", "testdata/check/overdissipation.bad.cir"}},
-		{"check-vbe-reverse.sarif", []string{"check", "--format", "sarif", "testdata/check/vbe-reverse-overstress.bad.cir"}},
+		{"check-power-over-rating.json", []string{"check", "--format", "json", "testdata/check/power-over-rating.bad.cir"}},
+		{"check-vbe-reverse.sarif", []string{"check", "--format", "sarif", "testdata/check/vbe-reverse-over-rating.bad.cir"}},
 		{"check-demo.txt", []string{"check", "--demo", "--notes"}},
 		{"check-demo-rev-b.txt", []string{"check", "--demo-rev", "B", "--notes"}},
 		{"op-demo.txt", []string{"op", "--demo"}},

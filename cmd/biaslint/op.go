@@ -40,7 +40,7 @@ type opFile struct {
 	Temperature float64            `json:"temperature"`
 	Method      string             `json:"method"`
 	Iterations  int                `json:"iterations"`
-	Nodes       map[string]float64 `json:"nodes"`
+	Nodes       map[string]float64 `json:"nets"`
 	Sources     map[string]float64 `json:"sources"`
 	BJTs        []opBJT            `json:"bjts"`
 
@@ -199,7 +199,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		}
 		w.WriteString("\n")
 		tw := report.NewTabWriter(w)
-		fmt.Fprintln(tw, "  node\tvoltage")
+		fmt.Fprintln(tw, "  net\tvoltage")
 		for _, n := range r.nodeOrder {
 			fmt.Fprintf(tw, "  %s\t%s\n", report.Printable(n), units.Format(r.Nodes[n], "V"))
 		}

@@ -45,7 +45,7 @@ func writeRuleSet(w *bytes.Buffer, rs *rules.RuleSet) {
 	}
 	w.WriteString("\nrules\n")
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "  id\tseverity\tsubject\tparameters\tfrom")
+	fmt.Fprintln(tw, "  id\tlevel\tsubject\tparameters\tfrom")
 	for _, r := range rs.Rules {
 		ps := "-"
 		if len(r.Params) > 0 {
@@ -75,7 +75,7 @@ func writeRuleSet(w *bytes.Buffer, rs *rules.RuleSet) {
 func firstLine(s string) string { return report.FirstSentence(s) }
 
 func writeFacts(w *bytes.Buffer) {
-	for _, s := range []rules.Subject{rules.SubjectTransistor, rules.SubjectResistor, rules.SubjectNode} {
+	for _, s := range []rules.Subject{rules.SubjectTransistor, rules.SubjectResistor, rules.SubjectNet} {
 		fmt.Fprintf(w, "%s facts\n", s)
 		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 		for _, f := range rules.Facts(s) {

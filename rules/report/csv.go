@@ -15,7 +15,7 @@ var CSVHeader = []string{"file", "line", "column", "severity", "rule", "device",
 	"message", "fix", "waived", "waiver_reason"}
 
 // SummaryHeader names the columns of SummaryCSV, one row per file.
-var SummaryHeader = []string{"file", "title", "transistors", "errors", "warnings", "notes", "waived", "top_rule"}
+var SummaryHeader = []string{"file", "title", "transistors", "errors", "warnings", "notes", "waived", "most_frequent_rule"}
 
 // csvNumber writes an SI value in full precision (shortest form that reads
 // back exactly), so a spreadsheet gets the number, not a rounded display.
@@ -78,7 +78,7 @@ func SummaryCSV(w io.Writer, r *Report) error {
 // transistors, errors, warnings, notes and the rule that fired most, then
 // a totals row.
 func SummaryTable(w io.Writer, r *Report) error {
-	head := []string{"file", "transistors", "errors", "warnings", "notes", "fired most"}
+	head := []string{"file", "transistors", "errors", "warnings", "notes", "most frequent rule"}
 	rows := [][]string{head}
 	total := Counts{}
 	nt := 0

@@ -71,7 +71,7 @@ func TestSummaryCSV(t *testing.T) {
 	if err := SummaryCSV(&b, batchSample()); err != nil {
 		t.Fatal(err)
 	}
-	want := "file,title,transistors,errors,warnings,notes,waived,top_rule\n" +
+	want := "file,title,transistors,errors,warnings,notes,waived,most_frequent_rule\n" +
 		"a b/board.cir,,0,1,2,0,1,floating-base\n" +
 		"'=cmd.cir,\"'-lab 4, group 7\",0,0,1,0,0,cutoff-linear-stage\n"
 	if b.String() != want {
@@ -84,7 +84,7 @@ func TestSummaryTable(t *testing.T) {
 	if err := SummaryTable(&b, batchSample()); err != nil {
 		t.Fatal(err)
 	}
-	want := `file             transistors  errors  warnings  notes  fired most
+	want := `file             transistors  errors  warnings  notes  most frequent rule
 --------------------------------------------------------------------------
 a b/board.cir              0       1         2      0  floating-base
 =cmd.cir                   0       0         1      0  cutoff-linear-stage

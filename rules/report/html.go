@@ -420,7 +420,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <dl class="summary">
 <dt>transistors</dt><dd>{{.Transistors}}</dd>
 <dt>findings</dt><dd><span{{if .Counts.Error}} class="count-error"{{end}}>{{plural .Counts.Error "error"}}</span>, <span{{if .Counts.Warning}} class="count-warning"{{end}}>{{plural .Counts.Warning "warning"}}</span>, {{plural .Counts.Note "note"}}, {{.Counts.Waived}} waived</dd>
-{{if .TopRule}}<dt>fired most</dt><dd><code>{{.TopRule}}</code></dd>{{end}}
+{{if .TopRule}}<dt>most frequent rule</dt><dd><code>{{.TopRule}}</code></dd>{{end}}
 <dt>rule set</dt><dd>{{.RuleSet}}</dd>
 {{if .Temp}}<dt>temperature</dt><dd>{{.Temp}} (circuit, nominal case)</dd>{{end}}
 {{if .Amb}}<dt>ambient</dt><dd>{{.Amb}}</dd>{{end}}

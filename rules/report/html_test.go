@@ -64,7 +64,7 @@ func TestHTMLReport(t *testing.T) {
 	f1, p1 := analysed(t, "good.cir", goodStage)
 	f2, p2 := analysed(t, "bad.cir", badStage)
 	// A waived finding, to see its reason on the page.
-	f2.Findings = append(f2.Findings, rules.Finding{Rule: "vce-overstress", Severity: rules.SeverityError, Device: "Q2",
+	f2.Findings = append(f2.Findings, rules.Finding{Rule: "vce-over-rating", Severity: rules.SeverityError, Device: "Q2",
 		Pos: netlist.Pos{File: "bad.cir", Line: 8, Col: 1}, Waived: true, WaiverReason: "bench unit <only>"})
 	r := &Report{Files: []File{f1, f2}, Version: "test"}
 	page := htmlOf(t, r, HTMLOptions{Planes: [][]plane.Plane{p1, p2}})
@@ -133,10 +133,10 @@ func TestHTMLGridCounts(t *testing.T) {
 	r := batchSample()
 	files := htmlPageOf(r, HTMLOptions{}).Files
 	g := htmlGridOf(r, files)
-	if strings.Join(g.Rules, " ") != "cutoff-linear-stage floating-base vce-overstress" {
+	if strings.Join(g.Rules, " ") != "cutoff-linear-stage floating-base vce-over-rating" {
 		t.Fatalf("rules %v", g.Rules)
 	}
-	// sample(): floating-base twice (warning), vce-overstress once (error,
+	// sample(): floating-base twice (warning), vce-over-rating once (error,
 	// the waived one not counted).
 	want := [][]htmlGridCell{
 		{{}, {2, "sev-warning"}, {1, "sev-error"}},
