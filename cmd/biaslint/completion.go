@@ -261,7 +261,7 @@ func zshCompletion(cmds []compCommand) string {
 			if f.Value {
 				switch {
 				case len(f.Choices) > 0 && f.File:
-					action = fmt.Sprintf(":value:{_values value %s; _files}", strings.Join(f.Choices, " "))
+					action = fmt.Sprintf(`:value:_alternative "names:built-in:(%s)" "files:file:_files"`, strings.Join(f.Choices, " "))
 				case len(f.Choices) > 0:
 					action = fmt.Sprintf(":value:(%s)", strings.Join(f.Choices, " "))
 				case f.File:

@@ -98,8 +98,11 @@ func inputsOf(c *cli.Context) ([]input, error) {
 		}
 		return []input{{name: rev.Name, opts: &netlist.LoadOptions{ReadFile: demoFile}}}, nil
 	}
+	if len(args) == 0 && c.Command.Name != "plot" {
+		args = projectFiles(c) // the project file's "files", if any
+	}
 	if len(args) == 0 {
-		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, or use --demo)", c.Command.Name))
+		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, use --demo, or list files: in %s)", c.Command.Name, ProjectFile))
 	}
 	dirs, err := includeDirs(c)
 	if err != nil {
