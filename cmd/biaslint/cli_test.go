@@ -55,9 +55,11 @@ func TestHelpCommand(t *testing.T) {
 	if !strings.Contains(flagHelp, "--fail-on") {
 		t.Errorf("check --help does not list --fail-on")
 	}
-	out, _, code = runCLI(t, "help")
-	if code != exitOK || !strings.Contains(out, "completion") || !strings.Contains(out, "version") {
-		t.Errorf("help: exit %d, %q", code, out)
+	for _, args := range [][]string{{"help"}, {"--help"}, {"-h"}, {}} {
+		out, errs, code := runCLI(t, args...)
+		if code != exitOK || !strings.Contains(out, "completion") || !strings.Contains(out, "--version") {
+			t.Errorf("biaslint %v: exit %d, %q %q", args, code, out, errs)
+		}
 	}
 	out, errs, code = runCLI(t, "help", "chekc")
 	if code != exitBadInput || out != "" || !strings.Contains(errs, `did you mean "check"?`) {

@@ -121,7 +121,10 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		Writer:          stdout,
 		ErrWriter:       stderr,
 		HideHelpCommand: true, // ours is helpCommand
-		Action:          noCommand,
+		// With a command named help of our own the library adds no
+		// --help flag to the app: add it.
+		Flags:  []cli.Flag{cli.HelpFlag},
+		Action: noCommand,
 		Commands: []*cli.Command{
 			checkCommand(),
 			opCommand(),
