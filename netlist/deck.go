@@ -134,6 +134,9 @@ type Deck struct {
 	Diagnostics ErrorList
 
 	opts LoadOptions
+	// libSections counts the .lib sections seen (and skipped, since the
+	// file was read whole).
+	libSections int
 }
 
 // Notes returns the warnings and notes found while reading the deck.
@@ -166,4 +169,16 @@ func (s *Subckt) displayName() string {
 		return "the top level"
 	}
 	return "subcircuit " + s.Name.Text
+}
+
+// LibraryOnly reports whether the deck holds definitions and no circuit:
+// no element at top level, but subcircuit definitions, models, parameters
+// or .lib sections (read directly or through includes). Such a file is a
+// library for other netlists to include, not a board to check.
+func (d *Deck) LibraryOnly() bool {
+	t := d.Top
+	if t == nil || len(t.Elements) > 0 {
+		return false
+	}
+	return len(t.Subckts) > 0 || len(t.Models) > 0 || len(t.ParamDefs) > 0 || d.libSections > 0
 }

@@ -37,7 +37,7 @@ func Parse(filename string, src []byte, opts *LoadOptions) (*Deck, error) {
 	d := &Deck{File: filename, Top: newSubckt(nil), opts: o}
 	r := &reader{opts: o, errs: &d.Diagnostics}
 	r.readTop(filename, src)
-	d.Title, d.TitlePos, d.Files = r.title, r.tpos, r.files
+	d.Title, d.TitlePos, d.Files, d.libSections = r.title, r.tpos, r.files, r.sections
 	p := &parser{d: d, errs: &d.Diagnostics, cur: d.Top, max: o.MaxElements}
 	for i := range r.out {
 		p.logical(&r.out[i])

@@ -88,6 +88,8 @@ type reader struct {
 	files []string
 	title string
 	tpos  Pos
+	// sections counts the .lib sections opened (see Deck.LibraryOnly).
+	sections int
 }
 
 // fileState is the per-file state of the line reader.
@@ -248,6 +250,7 @@ func (f *fileState) line(ln string, lineNo int) {
 			}
 			f.section = toks[1].text
 			f.secPos = pos
+			r.sections++
 			if f.want != "" && Key(f.section) == Key(f.want) {
 				f.found = true
 			} else if f.want == "" && !f.notedSkip[Key(f.section)] {

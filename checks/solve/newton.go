@@ -56,11 +56,15 @@ type ConvergenceError struct {
 }
 
 func (e *ConvergenceError) Error() string {
-	var b strings.Builder
 	if e.Pos.IsValid() || e.Pos.File != "" {
-		b.WriteString(e.Pos.String())
-		b.WriteString(": ")
+		return e.Pos.String() + ": " + e.Detail()
 	}
+	return e.Detail()
+}
+
+// Detail is the message of Error without the position.
+func (e *ConvergenceError) Detail() string {
+	var b strings.Builder
 	b.WriteString("no DC operating point found: ")
 	if e.Cause != nil {
 		b.WriteString(e.Cause.Error())
