@@ -18,6 +18,7 @@ package checks
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"runtime"
 	"sync"
@@ -34,6 +35,7 @@ const (
 	KindSwing      = "swing"
 	KindCorner     = "corner"
 	KindMonteCarlo = "monte carlo"
+	KindTemp       = "temperature"
 )
 
 // setting is one element value of a case, by netlist.Key of the name.
@@ -400,6 +402,22 @@ func (a *analyzer) run() (*Analysis, error) {
 			return nil, ce.Err
 		}
 		return nil, err
+	}
+	// A .temp line with several temperatures: the first is the nominal
+	// case's, each other one is a case of its own (unless --temp, Temp,
+	// sets the temperature for all).
+	if ts := a.c.Options.Temps; o.Temp == nil && len(ts) > 1 {
+		first := len(specs)
+		var more []caseSpec
+		for _, t := range ts[1:] {
+			sp := nom
+			sp.scenario, sp.kind, sp.temp, sp.guess, sp.group = fmt.Sprintf("temp %g C", t), KindTemp, t, 0, -1
+			more = append(more, sp)
+		}
+		specs, outs = a.add(specs, outs, more)
+		if err := a.solveSpecs(specs, outs, span(first, len(specs))); err != nil {
+			return nil, err
+		}
 	}
 	groups := []int{0}
 	if o.Scenarios || o.Corners {

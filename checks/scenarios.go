@@ -256,7 +256,7 @@ func swingCircuit(c *netlist.Circuit, res *solve.Result) *netlist.Circuit {
 		return true
 	}
 	gnd := func(n string) string {
-		if k := nodeKey(n); k == "gnd" {
+		if netlist.IsGround(n) {
 			return netlist.Ground
 		}
 		return n

@@ -69,7 +69,21 @@ type ElementStmt struct {
 	Subckt  Word
 	Params  []Param
 	Source  *SourceStmt
-	Pos     Pos
+	// Poly is the POLY(n) form of an E, F, G or H line (nil otherwise);
+	// the controlling node pairs of E and G follow the output nodes in
+	// Nodes.
+	Poly *PolyStmt
+	Pos  Pos
+}
+
+// PolyStmt is the polynomial part of a controlled source line as written:
+// the dimension, the controlling voltage sources of F and H, and the
+// coefficients.
+type PolyStmt struct {
+	N        int
+	Controls []Word
+	Coeffs   []Value
+	Pos      Pos
 }
 
 // SourceStmt is the value part of an independent V or I source line as

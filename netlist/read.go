@@ -36,6 +36,10 @@ type LoadOptions struct {
 	MaxLineLength int
 	// MaxElements bounds the flat element count (0: default 200000).
 	MaxElements int
+	// ReadDir lists the names in a directory, for an include name that
+	// matches a file only without regard to letter case; nil means
+	// os-backed listing when ReadFile is nil too, else no such lookup.
+	ReadDir func(dir string) ([]string, error)
 }
 
 // withDefaults returns a copy of o with zero fields set to the defaults.
@@ -55,6 +59,9 @@ func (o *LoadOptions) withDefaults() LoadOptions {
 	set(&r.MaxLineLength, DefaultMaxLineLength)
 	set(&r.MaxElements, DefaultMaxElements)
 	if r.ReadFile == nil {
+		if r.ReadDir == nil {
+			r.ReadDir = osReadDir
+		}
 		limit := r.MaxFileSize
 		r.ReadFile = func(path string) ([]byte, error) { return readLimited(path, limit) }
 	}
@@ -378,6 +385,20 @@ func (f *fileState) include(l *logical) bool {
 		return true
 	}
 	src, err := r.opts.ReadFile(name)
+	if errors.Is(err, fs.ErrNotExist) {
+		// The name may differ from the file's only in letter case
+		// (include_fold.go).
+		if disk, ok := foldCase(f.name, name, r.opts.ReadDir); ok {
+			if src2, err2 := r.opts.ReadFile(disk); err2 == nil {
+				shown := disk
+				if rel, err := filepath.Rel(filepath.Dir(f.name), disk); err == nil {
+					shown = filepath.ToSlash(rel)
+				}
+				r.errs.Notef(t[1].pos, "include file %q is read as %q: the names differ only in letter case", t[1].text, shown)
+				name, src, err = disk, src2, nil
+			}
+		}
+	}
 	if err != nil {
 		if errors.Is(err, fs.ErrNotExist) {
 			r.errs.Addf(t[1].pos, "include file not found: %q", t[1].text)
