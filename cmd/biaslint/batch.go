@@ -308,7 +308,15 @@ func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]
 	}, pr.step)
 	pr.finish()
 	if len(inputs) == 1 && errs[0] != nil {
-		return nil, errs[0]
+		// The alerts (a value whose letters are often misread) may well
+		// be why the file fails: they go with its errors.
+		msg := errs[0].Error()
+		for _, n := range files[0].Notes {
+			if n.Alert {
+				msg += "\n" + n.Error()
+			}
+		}
+		return nil, errors.New(msg)
 	}
 	return files, nil
 }

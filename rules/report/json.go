@@ -41,6 +41,9 @@ type jsonNote struct {
 	Severity string `json:"severity"`
 	Position string `json:"position"`
 	Message  string `json:"message"`
+	// Alert marks a note every report shows (a value's letters that
+	// people often misread).
+	Alert bool `json:"alert,omitempty"`
 }
 
 type jsonFile struct {
@@ -171,7 +174,7 @@ func JSON(w io.Writer, r *Report) error {
 			}
 		}
 		for _, n := range f.Notes {
-			jf.Notes = append(jf.Notes, jsonNote{Severity: n.Severity.String(), Position: n.Pos.String(), Message: n.Msg})
+			jf.Notes = append(jf.Notes, jsonNote{Severity: n.Severity.String(), Position: n.Pos.String(), Message: n.Msg, Alert: n.Alert})
 		}
 		out.Results = append(out.Results, jf)
 	}

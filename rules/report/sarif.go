@@ -119,14 +119,18 @@ func fileNotifications(r *Report) []sarifNotification {
 		// Warnings about the input (a case that was not judged, an odd
 		// annotation) go with the file's notifications.
 		for _, e := range f.Notes {
-			if e.Severity != netlist.SevWarning {
+			if e.Severity != netlist.SevWarning && !e.Alert {
 				continue
 			}
 			file := e.Pos.File
 			if file == "" {
 				file = f.Path
 			}
-			out = append(out, sarifNotification{Level: "warning", Message: sarifText{e.Msg}, Locations: at(file, e.Pos.Line, e.Pos.Col)})
+			lvl := "warning"
+			if e.Severity == netlist.SevNote {
+				lvl = "note"
+			}
+			out = append(out, sarifNotification{Level: lvl, Message: sarifText{e.Msg}, Locations: at(file, e.Pos.Line, e.Pos.Col)})
 		}
 		if f.Status.Of() == StatusChecked {
 			continue

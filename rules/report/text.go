@@ -20,7 +20,8 @@ type TextOptions struct {
 	// NO_COLOR, or --color always).
 	Color bool
 	// Notes prints the input notes (reading the netlist, annotations);
-	// input warnings are printed either way.
+	// input warnings and alerts (netlist.Error.Alert: a value whose
+	// letters people often misread) are printed either way.
 	Notes bool
 	// Transistors prints a table of each file's transistors: role, nominal
 	// region, IC and VCE, and the hottest junction over every case.
@@ -280,12 +281,12 @@ func filesText(r *Report) string {
 	return s + " (" + strings.Join(parts, ", ") + ")"
 }
 
-// writeNotes prints a file's input notes: warnings always, notes when
-// asked for.
+// writeNotes prints a file's input notes: warnings and alerts (readings
+// people often get wrong) always, other notes when asked for.
 func writeNotes(ew *errWriter, f *File, opt TextOptions) {
 	var shown []*netlist.Error
 	for _, e := range f.Notes {
-		if opt.Notes || e.Severity == netlist.SevWarning {
+		if opt.Notes || e.Severity == netlist.SevWarning || e.Alert {
 			shown = append(shown, e)
 		}
 	}
