@@ -106,7 +106,8 @@ type Transistor struct {
 	Beta float64 `expr:"beta"`
 	// Power is the dissipation VCE*IC + VBE*IB, W.
 	Power float64 `expr:"power"`
-	// Region is "active", "saturation", "cutoff" or "reverse".
+	// Region is "active", "saturation", "cutoff" or "reverse", or
+	// RegionNotPhysical in a case whose operating point is not physical.
 	Region string `expr:"region"`
 
 	// Model parameters and ratings.
@@ -261,6 +262,11 @@ type Case struct {
 	// (what the solver tried); such a case has no subjects and no
 	// Solution, and every other case is judged as usual.
 	Unjudged string
+	// Unphysical lists the devices whose operating point in this case is
+	// not physical (solve.Result.Unphysical); the transistors' currents,
+	// voltages, power and temperatures are NaN, and the case has no
+	// resistor or net subjects.
+	Unphysical []solve.Unphysical
 }
 
 // Analysis is everything checks learned about one circuit.

@@ -42,6 +42,12 @@ type opFile struct {
 	Nodes       map[string]float64 `json:"nodes"`
 	Sources     map[string]float64 `json:"sources"`
 	BJTs        []opBJT            `json:"bjts"`
+	// Physical is false when the solution satisfies the solver's
+	// equations only through the continuation of a junction exponential;
+	// NotPhysical then says why, per device, and the currents, powers and
+	// temperatures are left out (null).
+	Physical    bool     `json:"physical"`
+	NotPhysical []string `json:"not_physical,omitempty"`
 
 	nodeOrder []string
 }
@@ -54,11 +60,12 @@ type opBJT struct {
 	VBE      float64 `json:"vbe"`
 	VBC      float64 `json:"vbc"`
 	VCE      float64 `json:"vce"`
-	IC       float64 `json:"ic"`
-	IB       float64 `json:"ib"`
-	IE       float64 `json:"ie"`
-	Power    float64 `json:"power"`
-	Region   string  `json:"region"`
+	// IC, IB, IE and Power are null when the solution is not physical.
+	IC     *float64 `json:"ic"`
+	IB     *float64 `json:"ib"`
+	IE     *float64 `json:"ie"`
+	Power  *float64 `json:"power"`
+	Region string   `json:"region"`
 	// Tj is the junction temperature T + P*RthJA, C (null when RthJA is
 	// not known).
 	Tj  *float64 `json:"tj"`
@@ -118,7 +125,9 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	if err != nil {
 		return opFile{}, err
 	}
-	if t == nil {
+	// The same circuit temperature as check: --temp, else the netlist's
+	// .temp, else the ambient (checks.DefaultAmbient).
+	if t == nil && circ.Options.TempSet {
 		t = &circ.Options.Temp
 	}
 	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: t, Thermal: c.Bool("thermal")})
@@ -139,6 +148,16 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 		Nodes:       map[string]float64{},
 		Sources:     map[string]float64{},
 		BJTs:        []opBJT{},
+		Physical:    res.Physical(),
+	}
+	for _, u := range res.Unphysical {
+		f.NotPhysical = append(f.NotPhysical, u.Why)
+	}
+	num := func(v float64) *float64 {
+		if !f.Physical {
+			return nil
+		}
+		return &v
 	}
 	for _, n := range res.Nodes {
 		f.Nodes[n.Name] = n.V
@@ -152,10 +171,13 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	for _, q := range res.BJTs {
 		f.BJTs = append(f.BJTs, opBJT{
 			Name: q.Name, Model: q.Model, Polarity: q.Polarity,
-			VBE: q.VBE, VBC: q.VBC, VCE: q.VCE, IC: q.IC, IB: q.IB, IE: q.IE,
-			Power: q.Power, Region: string(q.Region), Pos: q.Pos.String(),
+			VBE: q.VBE, VBC: q.VBC, VCE: q.VCE, IC: num(q.IC), IB: num(q.IB), IE: num(q.IE),
+			Power: num(q.Power), Region: string(q.Region), Pos: q.Pos.String(),
 		})
-		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) {
+		if !f.Physical {
+			f.BJTs[len(f.BJTs)-1].Region = checks.RegionNotPhysical
+		}
+		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) && f.Physical {
 			f.BJTs[len(f.BJTs)-1].Tj = &v
 		}
 	}
@@ -173,7 +195,16 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			head += "  " + p.dim(r.Title)
 		}
 		fmt.Fprintln(w, p.bold(head))
-		fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", units.Format(r.Temperature, "C"), r.Method, r.Iterations)
+		if r.Physical {
+			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", units.Format(r.Temperature, "C"), r.Method, r.Iterations)
+		} else {
+			fmt.Fprintf(w, "  %s at %s: %s converged in %d iterations to a point the device equations do not describe\n",
+				p.red("not physical"), units.Format(r.Temperature, "C"), r.Method, r.Iterations)
+			for _, why := range r.NotPhysical {
+				fmt.Fprintf(w, "  %s\n", why)
+			}
+			fmt.Fprintf(w, "  currents, power and temperature are not shown; give the junction a series resistance\n\n")
+		}
 		if len(r.BJTs) == 0 {
 			fmt.Fprintln(w, "  no bipolar transistors")
 		} else {
@@ -187,8 +218,8 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 				fmt.Fprintf(tw, "  %s\t%s %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
 					q.Name, q.Model, p.dim(q.Polarity), regionText(p, q.Region),
 					units.Format(q.VBE, "V"), units.Format(q.VCE, "V"),
-					units.Format(q.IC, "A"), units.Format(q.IB, "A"),
-					forcedBeta(q), units.Format(q.Power, "W"), tjText)
+					orDash(q.IC, "A"), orDash(q.IB, "A"),
+					forcedBeta(q), orDash(q.Power, "W"), tjText)
 			}
 			tw.Flush()
 		}
@@ -205,10 +236,18 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 // forcedBeta prints IC/IB, or "-" for a transistor in cutoff, whose
 // leakage currents give no meaningful ratio.
 func forcedBeta(q opBJT) string {
-	if q.Region == "cutoff" || q.IB == 0 {
+	if q.Region == "cutoff" || q.IB == nil || q.IC == nil || *q.IB == 0 {
 		return "-"
 	}
-	return fmt.Sprintf("%.1f", q.IC/q.IB)
+	return fmt.Sprintf("%.1f", *q.IC / *q.IB)
+}
+
+// orDash prints a value that may be left out.
+func orDash(v *float64, unit string) string {
+	if v == nil {
+		return "-"
+	}
+	return units.Format(*v, unit)
 }
 
 func regionText(p palette, region string) string {
