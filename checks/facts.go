@@ -281,4 +281,9 @@ type Analysis struct {
 	// Notes are located notes and warnings about the analysis (e.g. a
 	// device checked against generic ratings).
 	Notes []*netlist.Error
+	// Temp is the circuit temperature of the nominal case, C, and
+	// TempFrom where it came from (TempFromOption, TempFromNetlist or
+	// TempFromAmbient).
+	Temp     float64
+	TempFrom string
 }

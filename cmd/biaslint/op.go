@@ -34,14 +34,17 @@ func opCommand() *cli.Command {
 
 // opFile is one file's operating point in the shape `op --format json` prints.
 type opFile struct {
-	File        string             `json:"file"`
-	Title       string             `json:"title"`
-	Temperature float64            `json:"temperature"`
-	Method      string             `json:"method"`
-	Iterations  int                `json:"iterations"`
-	Nodes       map[string]float64 `json:"nodes"`
-	Sources     map[string]float64 `json:"sources"`
-	BJTs        []opBJT            `json:"bjts"`
+	File        string  `json:"file"`
+	Title       string  `json:"title"`
+	Temperature float64 `json:"temperature"`
+	// TemperatureFrom says where the circuit temperature came from:
+	// --temp, .temp, or ambient (the same convention as check).
+	TemperatureFrom string             `json:"temperature_from"`
+	Method          string             `json:"method"`
+	Iterations      int                `json:"iterations"`
+	Nodes           map[string]float64 `json:"nodes"`
+	Sources         map[string]float64 `json:"sources"`
+	BJTs            []opBJT            `json:"bjts"`
 	// Physical is false when the solution satisfies the solver's
 	// equations only through the continuation of a junction exponential;
 	// NotPhysical then says why, per device, and the currents, powers and
@@ -127,10 +130,11 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	}
 	// The same circuit temperature as check: --temp, else the netlist's
 	// .temp, else the ambient (checks.DefaultAmbient).
+	amb := t
 	if t == nil && circ.Options.TempSet {
-		t = &circ.Options.Temp
+		amb = &circ.Options.Temp
 	}
-	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: t, Thermal: c.Bool("thermal")})
+	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal")})
 	if err != nil {
 		return opFile{}, err
 	}
@@ -140,15 +144,16 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 		tj[q.Name] = q.Tj
 	}
 	f := opFile{
-		File:        circ.File,
-		Title:       circ.Title,
-		Temperature: res.Temp,
-		Method:      string(res.Method),
-		Iterations:  res.Iterations,
-		Nodes:       map[string]float64{},
-		Sources:     map[string]float64{},
-		BJTs:        []opBJT{},
-		Physical:    res.Physical(),
+		File:            circ.File,
+		Title:           circ.Title,
+		Temperature:     res.Temp,
+		TemperatureFrom: an.TempFrom,
+		Method:          string(res.Method),
+		Iterations:      res.Iterations,
+		Nodes:           map[string]float64{},
+		Sources:         map[string]float64{},
+		BJTs:            []opBJT{},
+		Physical:        res.Physical(),
 	}
 	for _, u := range res.Unphysical {
 		f.NotPhysical = append(f.NotPhysical, u.Why)
@@ -195,11 +200,15 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			head += "  " + p.dim(r.Title)
 		}
 		fmt.Fprintln(w, p.bold(head))
+		at := units.Format(r.Temperature, "C")
+		if from := tempFromText[r.TemperatureFrom]; from != "" {
+			at += " (" + from + ")"
+		}
 		if r.Physical {
-			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", units.Format(r.Temperature, "C"), r.Method, r.Iterations)
+			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", at, r.Method, r.Iterations)
 		} else {
 			fmt.Fprintf(w, "  %s at %s: %s converged in %d iterations to a point the device equations do not describe\n",
-				p.red("not physical"), units.Format(r.Temperature, "C"), r.Method, r.Iterations)
+				p.red("not physical"), at, r.Method, r.Iterations)
 			for _, why := range r.NotPhysical {
 				fmt.Fprintf(w, "  %s\n", why)
 			}
@@ -231,6 +240,11 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		}
 		tw.Flush()
 	}
+}
+
+// tempFromText says where a circuit temperature came from.
+var tempFromText = map[string]string{
+	checks.TempFromOption: "--temp", checks.TempFromNetlist: "the netlist's .temp", checks.TempFromAmbient: "the ambient",
 }
 
 // forcedBeta prints IC/IB, or "-" for a transistor in cutoff, whose

@@ -97,3 +97,37 @@ func TestFieldAmpAgainstHandCalculation(t *testing.T) {
 		t.Errorf("I(VCC) = %g A; a supply delivering power shows a negative current", s)
 	}
 }
+
+// op and check solve at the same circuit temperature by default (the 25 C
+// ambient, not the models' TNOM of 27 C), and both say where it came from.
+func TestTemperatureConvention(t *testing.T) {
+	for _, tc := range []struct {
+		args []string
+		temp float64
+		from string
+	}{
+		{[]string{"testdata/check/floating-base.bad.cir"}, 25, "ambient"},
+		{[]string{"--temp", "40", "testdata/check/floating-base.bad.cir"}, 40, "--temp"},
+		{[]string{"testdata/netlist/dialect_spice2.cir"}, 27, ".temp"}, // .TEMP 27 70
+	} {
+		op := opJSONOf(t, tc.args...).Results[0]
+		out, errs, code := runCLI(t, append([]string{"check", "--format", "json"}, tc.args...)...)
+		if code == exitBadInput {
+			t.Fatalf("check %v: %s", tc.args, errs)
+		}
+		var chk struct {
+			Results []struct {
+				Temperature     float64 `json:"temperature"`
+				TemperatureFrom string  `json:"temperature_from"`
+			} `json:"results"`
+		}
+		if err := json.Unmarshal([]byte(out), &chk); err != nil {
+			t.Fatal(err)
+		}
+		c := chk.Results[0]
+		if op.Temperature != tc.temp || c.Temperature != tc.temp || op.TemperatureFrom != tc.from || c.TemperatureFrom != tc.from {
+			t.Errorf("%v: op at %g C (%s), check at %g C (%s); want both %g C (%s)",
+				tc.args, op.Temperature, op.TemperatureFrom, c.Temperature, c.TemperatureFrom, tc.temp, tc.from)
+		}
+	}
+}

@@ -52,15 +52,19 @@ type jsonFile struct {
 	// Status is checked, input-errors, library, included (or a caller's
 	// own word); Detail says more; Errors locate what kept the file from
 	// being judged.
-	Status      string        `json:"status"`
-	Detail      string        `json:"status_detail,omitempty"`
-	Errors      []jsonNote    `json:"errors"`
-	Transistors int           `json:"transistors"`
-	BJTs        []jsonBJT     `json:"bjts"`
-	Findings    []jsonFinding `json:"findings"`
-	Waived      []jsonFinding `json:"waived"`
-	Notes       []jsonNote    `json:"notes"`
-	Summary     Counts        `json:"summary"`
+	Status string     `json:"status"`
+	Detail string     `json:"status_detail,omitempty"`
+	Errors []jsonNote `json:"errors"`
+	// Temperature is the nominal case's circuit temperature, C, and
+	// TemperatureFrom where it came from: --temp, .temp or ambient.
+	Temperature     *float64      `json:"temperature,omitempty"`
+	TemperatureFrom string        `json:"temperature_from,omitempty"`
+	Transistors     int           `json:"transistors"`
+	BJTs            []jsonBJT     `json:"bjts"`
+	Findings        []jsonFinding `json:"findings"`
+	Waived          []jsonFinding `json:"waived"`
+	Notes           []jsonNote    `json:"notes"`
+	Summary         Counts        `json:"summary"`
 }
 
 // jsonBJT is one transistor's nominal operating point (forward-referenced
@@ -165,6 +169,9 @@ func JSON(w io.Writer, r *Report) error {
 			Findings: []jsonFinding{}, Waived: []jsonFinding{}, Notes: []jsonNote{}, Summary: f.Counts()}
 		for _, e := range f.Errors {
 			jf.Errors = append(jf.Errors, jsonNote{Severity: "error", Position: e.Pos.String(), Message: e.Msg})
+		}
+		if an := f.Analysis; an != nil && an.TempFrom != "" {
+			jf.Temperature, jf.TemperatureFrom = finite(an.Temp), an.TempFrom
 		}
 		for _, x := range f.Findings {
 			if x.Waived {

@@ -68,6 +68,9 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			head += "  " + p.with(f.Title, color.Faint)
 		}
 		ew.printf("%s\n", p.with(head, color.Bold))
+		if t := TempText(f); t != "" {
+			ew.printf("  %s\n", p.with(t, color.Faint))
+		}
 		if f.Status.Of() != StatusChecked {
 			writeUnchecked(ew, p, f, opt)
 			continue
@@ -296,4 +299,19 @@ func writeNotes(ew *errWriter, f *File, opt TextOptions) {
 			ew.printf("  %s\n", e.Error())
 		}
 	}
+}
+
+// TempText says at which temperatures a file's nominal case was solved:
+// the circuit temperature and where it came from, and the ambient; "" when
+// the file was not analysed.
+func TempText(f *File) string {
+	an := f.Analysis
+	if an == nil || len(an.Cases) == 0 {
+		return ""
+	}
+	from := map[string]string{"--temp": "from --temp", ".temp": "from the netlist's .temp", "ambient": "the ambient"}[an.TempFrom]
+	if from == "" {
+		from = an.TempFrom
+	}
+	return fmt.Sprintf("circuit at %s (%s), ambient %s", units.Format(an.Temp, "C"), from, units.Format(an.Cases[0].Ambient, "C"))
 }
