@@ -2,6 +2,7 @@ package main
 
 import (
 	"math"
+	"os"
 	"strings"
 	"testing"
 )
@@ -18,7 +19,7 @@ func TestDialects(t *testing.T) {
 		want []string
 	}{
 		{"export", []string{"check", "--notes", "testdata/dialect/export.cir"},
-			[]string{`option search="models" is not used`, `"Stage.inc" is read as "stage.inc"`, "GMIN leak", "1 transistor, 0 errors"}},
+			[]string{`option search="models" is not used`, `"lib\Stage.inc" is read as "lib/stage.inc"`, `each '\' is taken as '/'`, "GMIN leak", "1 transistor, 0 errors"}},
 		{"spice2", []string{"check", "--notes", "testdata/dialect/spice2.cir"},
 			[]string{"circuit at 27.0 C (from the netlist's .temp)", "(temp 70 C)", "option ITL1=300 is not used"}},
 		{"handtyped", []string{"check", "testdata/dialect/handtyped.cir"},
@@ -43,6 +44,14 @@ func TestDialects(t *testing.T) {
 				t.Errorf("report prints a non-finite or absurd figure:\n%s", out)
 			}
 		})
+	}
+	// The review page of the stiff drive shows no NaN or infinite figure.
+	page := t.TempDir() + "/stiff.html"
+	if _, errs, code := runCLI(t, "report", "--output", page, "testdata/dialect/stiff.cir"); code == exitBadInput {
+		t.Fatalf("report: %s", errs)
+	}
+	if b, err := os.ReadFile(page); err != nil || nonFinite.Match(b) {
+		t.Errorf("review page of a point that is not physical: %v, or a non-finite figure: %s", err, nonFinite.Find(b))
 	}
 	// The stiff drive: the unlimited-base-drive finding comes first.
 	out, _, _ := runCLI(t, "check", "testdata/dialect/stiff.cir")

@@ -87,7 +87,16 @@ func runOp(c *cli.Context) error {
 	var results []opFile
 	var problems []string
 	for _, in := range inputs {
-		circ, err := in.read()
+		rd := readInput(in)
+		if rd.library && len(inputs) > 1 {
+			// A library among the files of a batch: nothing to solve.
+			fmt.Fprintf(c.App.ErrWriter, "%s: library (only definitions, no circuit): not solved\n", in.name)
+			continue
+		}
+		circ, err := rd.circ, rd.err
+		if rd.library {
+			circ, err = in.read() // named alone: say why there is nothing to solve
+		}
 		if err != nil {
 			problems = append(problems, err.Error())
 			continue
@@ -99,7 +108,7 @@ func runOp(c *cli.Context) error {
 		}
 		results = append(results, r)
 	}
-	if len(problems) > 0 {
+	if len(problems) > 0 && (len(inputs) == 1 || len(results) == 0) {
 		return badInput(fmt.Errorf("%s", strings.Join(problems, "\n")))
 	}
 	var out bytes.Buffer
@@ -119,7 +128,15 @@ func runOp(c *cli.Context) error {
 		}
 		writeOpText(&out, results, palette{on: on})
 	}
-	return emit(c, &out)
+	if err := emit(c, &out); err != nil {
+		return err
+	}
+	if len(problems) > 0 {
+		// A batch: every file that solved is printed; the others' located
+		// errors go to stderr and the exit status is 2.
+		return badInput(fmt.Errorf("%s", strings.Join(problems, "\n")))
+	}
+	return nil
 }
 
 // solveOp solves one circuit and converts the result to the report shape.

@@ -229,6 +229,14 @@ func htmlMargins(pl plane.Plane, t checks.Transistor, haveFacts bool) []htmlMarg
 	}
 	row := func(label string, v float64, at string, limit float64, unit string) htmlMargin {
 		m := htmlMargin{Label: label, Value: units.Format(v, unit), Limit: "not rated", Class: "unknown"}
+		if math.IsInf(v, -1) || math.IsNaN(v) {
+			// No case gave a physical point.
+			m.Value = "not known"
+			if !math.IsNaN(limit) && !math.IsInf(limit, 0) {
+				m.Limit = units.Format(limit, unit)
+			}
+			return m
+		}
 		if at != "" && len(pl.Points) > 1 {
 			m.Value += " (" + at + ")"
 		}
