@@ -21,6 +21,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"strings"
 	"sync"
 
 	"github.com/biaslint/biaslint/checks/solve"
@@ -464,6 +465,9 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 	}
 	an := &Analysis{Circuit: a.c}
+	// Cases that were not solved, grouped by where and why.
+	failed := map[string]*unjudgedCases{}
+	var failOrder []string
 	unphysical := map[string][]string{} // device key -> case names
 	var why []solve.Unphysical
 	for i := range specs {
@@ -477,12 +481,21 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 		if e := outs[i].err; e != nil {
 			pos, msg := errorPlace(e, a.c.File)
-			a.notes.Warnf(pos, "case %s is not judged (the other cases are): %s", rulesCaseName(&specs[i]), msg)
+			k := pos.String() + "\x00" + msg
+			if failed[k] == nil {
+				failed[k] = &unjudgedCases{pos: pos, msg: msg}
+				failOrder = append(failOrder, k)
+			}
+			failed[k].cases = append(failed[k].cases, rulesCaseName(&specs[i]))
 		}
 		if outs[i].th.unsettled {
 			a.notes.Notef(netlist.Pos{File: a.c.File}, "case %s: the electro-thermal iteration did not settle in %d steps; junction temperatures are the last iterate's",
 				rulesCaseName(&specs[i]), thermalMaxIter)
 		}
+	}
+	for _, k := range failOrder {
+		f := failed[k]
+		a.notes.Warnf(f.pos, "%s unjudged (every other case is judged): %s", caseList(f.cases), f.msg)
 	}
 	for _, u := range why {
 		cases := unphysical[netlist.Key(u.Device)]
@@ -527,6 +540,26 @@ func valueOf(sp *caseSpec, key string, nominal float64) float64 {
 		}
 	}
 	return nominal
+}
+
+// unjudgedCases are the cases that failed at one place for one reason.
+type unjudgedCases struct {
+	pos   netlist.Pos
+	msg   string
+	cases []string
+}
+
+// caseList names cases for a message: "case A is", "cases A and B are",
+// "cases A, B, C, D and 5 more are".
+func caseList(cases []string) string {
+	if len(cases) == 1 {
+		return "case " + cases[0] + " is"
+	}
+	const shown = 4
+	if len(cases) <= shown {
+		return "cases " + strings.Join(cases[:len(cases)-1], ", ") + " and " + cases[len(cases)-1] + " are"
+	}
+	return fmt.Sprintf("cases %s and %d more are", strings.Join(cases[:shown], ", "), len(cases)-shown)
 }
 
 // RegionNotPhysical is the region of every transistor in a case whose
