@@ -138,7 +138,7 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 				if !ok {
 					continue
 				}
-				if unphysical(c, s) {
+				if unphysical(c) {
 					// A case whose operating point is not physical for
 					// this device judges only what its facts still say
 					// (the drive, the topology); what they cannot say is
@@ -198,10 +198,9 @@ func pickWorst(os []outcome) Finding {
 	return f
 }
 
-// unphysical reports whether case c is not physical for subject s: a
-// transistor listed in c.Unphysical, or any subject when some device's
-// point is not physical (the currents it sets spread through the circuit).
-func unphysical(c *checks.Case, s subjectRef) bool { return len(c.Unphysical) > 0 }
+// unphysical reports whether case c is not physical: some device's point
+// is not, and the currents it sets spread through the whole circuit.
+func unphysical(c *checks.Case) bool { return len(c.Unphysical) > 0 }
 
 func sortFindings(fs []Finding) {
 	sort.SliceStable(fs, func(i, j int) bool {
