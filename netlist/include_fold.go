@@ -80,8 +80,9 @@ func osReadDir(dir string) ([]string, error) {
 
 // slashNote notes an include name written with backslashes on a system
 // whose separator is '/': it is read with '/' for each '\'.
-func slashNote(errs *ErrorList, pos Pos, name string) {
+func slashNote(errs quoted, pos Pos, name string, depth int) {
 	if filepath.Separator == '/' && strings.ContainsRune(name, '\\') {
-		errs.Notef(pos, "include file \"%s\" is read as \"%s\": each '\\' is taken as '/'", name, strings.ReplaceAll(name, `\`, "/"))
+		errs.Notef(pos, "include file \"%s\" is read as \"%s\": each '\\' is taken as '/'",
+			pathText(name, depth), pathText(strings.ReplaceAll(name, `\`, "/"), depth))
 	}
 }
