@@ -372,7 +372,7 @@ func TestMixedBatch(t *testing.T) {
 	if err != nil {
 		t.Fatalf("report wrote no page: %v", err)
 	}
-	for _, w := range []string{"good.cir", "top.cir", "broken.cir:3:10", "library"} {
+	for _, w := range []string{"good.cir", "top.cir", "broken.cir:3:10", "library", "(input-errors)"} {
 		if !strings.Contains(string(b), w) {
 			t.Errorf("review page does not show %q", w)
 		}

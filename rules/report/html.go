@@ -90,10 +90,11 @@ type htmlGrid struct {
 }
 
 type htmlGridRow struct {
-	ID, Path    string
-	Transistors int
-	Cells       []htmlGridCell
-	Counts      Counts
+	// Status is the file's status when it was not checked, else "".
+	ID, Path, Status string
+	Transistors      int
+	Cells            []htmlGridCell
+	Counts           Counts
 }
 
 type htmlGridCell struct {
@@ -294,6 +295,9 @@ func htmlGridOf(r *Report, files []htmlFile) *htmlGrid {
 	sort.Strings(g.Rules)
 	for i, f := range r.Files {
 		row := htmlGridRow{ID: files[i].ID, Path: f.Path, Transistors: files[i].Transistors, Counts: files[i].Counts}
+		if st := f.Status.Of(); st != StatusChecked {
+			row.Status = string(st)
+		}
 		for _, id := range g.Rules {
 			cell := htmlGridCell{}
 			rank := 99
@@ -399,7 +403,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <div class="scroll"><table class="grid">
 <thead><tr><th>file</th><th>transistors</th><th>errors</th><th>warnings</th><th>notes</th>{{range .Rules}}<th class="rule"><code>{{.}}</code></th>{{end}}</tr></thead>
 <tbody>
-{{range .Rows}}<tr class="grid-row"><td class="path"><a href="#{{.ID}}">{{.Path}}</a></td><td class="n">{{.Transistors}}</td><td class="n{{if .Counts.Error}} count-error{{end}}">{{.Counts.Error}}</td><td class="n{{if .Counts.Warning}} count-warning{{end}}">{{.Counts.Warning}}</td><td class="n">{{.Counts.Note}}</td>{{range .Cells}}<td class="n {{.Class}}">{{if .N}}{{.N}}{{end}}</td>{{end}}</tr>
+{{range .Rows}}<tr class="grid-row"><td class="path"><a href="#{{.ID}}">{{.Path}}</a>{{if .Status}} <span class="unchecked">({{.Status}})</span>{{end}}</td><td class="n">{{.Transistors}}</td><td class="n{{if .Counts.Error}} count-error{{end}}">{{.Counts.Error}}</td><td class="n{{if .Counts.Warning}} count-warning{{end}}">{{.Counts.Warning}}</td><td class="n">{{.Counts.Note}}</td>{{range .Cells}}<td class="n {{.Class}}">{{if .N}}{{.N}}{{end}}</td>{{end}}</tr>
 {{end}}</tbody>
 </table></div>
 </section>
