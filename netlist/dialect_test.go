@@ -32,3 +32,25 @@ func TestFoldCase(t *testing.T) {
 		t.Error("folded without a directory lister")
 	}
 }
+
+// A file with definitions and no circuit is a library; one element at top
+// level makes it a circuit.
+func TestLibraryOnly(t *testing.T) {
+	for _, tc := range []struct {
+		src  string
+		want bool
+	}{
+		{".model N1 NPN (IS=1e-14)\n", true},
+		{"* blocks\n.subckt DIV a b\nR1 a b 1k\n.ends\n", true},
+		{"* values\n.param rtop=47k\n", true},
+		{"* sections\n.lib typical\n.model N1 NPN\n.endl\n", true},
+		{"amp\n.model N1 NPN\nQ1 c b 0 N1\nV1 c 0 5\nR1 c b 1k\n", false},
+		{"div\n.subckt DIV a b\nR1 a b 1k\n.ends\nX1 in 0 DIV\nV1 in 0 1\n", false},
+		{"* only a comment\n", false},
+	} {
+		d, _ := Parse("t.cir", []byte(tc.src), &LoadOptions{ReadFile: NoFiles})
+		if got := d.LibraryOnly(); got != tc.want {
+			t.Errorf("LibraryOnly(%q) = %v, want %v", tc.src, got, tc.want)
+		}
+	}
+}
