@@ -305,7 +305,7 @@ func (f *flattener) element(s *ElementStmt, def *Subckt, e *env) *Element {
 	if s.Value != nil {
 		el.Value, ok = f.ev.eval(*s.Value, e)
 		if ok {
-			f.letters(s.Kind, s.Name.Text, *s.Value)
+			f.valueLetters(s.Kind, s.Name.Text, *s.Value, e)
 		}
 	}
 	switch s.Kind {
@@ -460,7 +460,7 @@ func (f *flattener) source(s *ElementStmt, e *env) (*Source, bool) {
 	if st.DC != nil {
 		src.DC, src.HasDC = get(st.DC), true
 		if ok {
-			f.letters(s.Kind, s.Name.Text, *st.DC)
+			f.valueLetters(s.Kind, s.Name.Text, *st.DC, e)
 		}
 	}
 	if st.ACMag != nil {

@@ -33,6 +33,27 @@ var (
 	unitSymbols = map[Kind]string{'R': "Ohm", 'C': "F", 'L': "H", 'V': "V", 'I': "A"}
 )
 
+// valueLetters checks the letters of an element's value v written in
+// scope e: the value itself, or, when it is just a parameter's name (rtop
+// or {rtop}), the text that parameter was defined with, at its definition
+// (".param rtop=1M" read as a resistor's value is one milliohm too).
+func (f *flattener) valueLetters(k Kind, elem string, v Value, e *env) {
+	name := strings.TrimSpace(v.Text)
+	if !isIdentText(name) {
+		f.letters(k, elem, v)
+		return
+	}
+	for s := e; s != nil; s = s.parent {
+		if d := s.defs[Key(name)]; d != nil {
+			if d.v.Braced || !looksNumeric(strings.TrimSpace(d.v.Text)) {
+				return // an expression or another name: no letters to judge
+			}
+			f.letters(k, elem+" (parameter "+name+")", d.v)
+			return
+		}
+	}
+}
+
 // letters checks the letters of value v of element elem of kind k and
 // alerts once per position.
 func (f *flattener) letters(k Kind, elem string, v Value) {
