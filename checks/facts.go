@@ -64,6 +64,8 @@ type ModelFacts struct {
 	ISC float64 `expr:"isc"`
 	NC  float64 `expr:"nc"`
 	RB  float64 `expr:"rb"`
+	RBM float64 `expr:"rbm"`
+	IRB float64 `expr:"irb"`
 	RE  float64 `expr:"re"`
 	RC  float64 `expr:"rc"`
 	EG  float64 `expr:"eg"`
@@ -180,14 +182,18 @@ type Transistor struct {
 	// DeviceTemp is the temperature the device was solved at, C.
 	// ThermalGain is the loop gain dP/dTj * RthJA at this case's operating
 	// point (dimensionless; 0 when Thermal is false, NaN when RthJA is not
-	// known). ThermalRunaway is true when no stable fixed point was found
-	// below Tj max; RunawayTj is the junction temperature from which the
-	// loop ran away, C (the operating Tj when it did not).
-	Thermal        bool    `expr:"thermal"`
-	DeviceTemp     float64 `expr:"device_temp"`
-	ThermalGain    float64 `expr:"thermal_gain"`
-	ThermalRunaway bool    `expr:"thermal_runaway"`
-	RunawayTj      float64 `expr:"runaway_tj"`
+	// known). ThermalRunaway is true when the junction runs away: the loop
+	// gain at the fixed point is at or above 1, or there is no fixed point
+	// and the loop gain reached 1 on the way up; RunawayTj is the junction
+	// temperature from which it ran away, C (the operating Tj when it did
+	// not). OverTemperature is true when the junction settles at a stable
+	// point (loop gain below 1) above Tj max; Tj is then that point.
+	Thermal         bool    `expr:"thermal"`
+	DeviceTemp      float64 `expr:"device_temp"`
+	ThermalGain     float64 `expr:"thermal_gain"`
+	ThermalRunaway  bool    `expr:"thermal_runaway"`
+	RunawayTj       float64 `expr:"runaway_tj"`
+	OverTemperature bool    `expr:"over_temperature"`
 
 	// Signal clipping (cross-case, over the quasi-static swing of one
 	// source; in a swing case the facts of that case's source, elsewhere

@@ -358,7 +358,7 @@ func (w *worker) sweep(s *swingSource, specs []caseSpec, outs []caseOut, nominal
 		if err := w.apply(w.swing, &w.swingDirty, []setting{{key, s.centre + v}}); err != nil {
 			return nil, err
 		}
-		o := solve.Options{Temp: solve.Temp(a.temp), DeviceTemp: held, Guess: guess, Linear: w.lu}
+		o := solve.Options{Temp: solve.Temp(a.temp), DeviceTemp: held, Guess: guess}
 		if tight {
 			o = tightOptions(o)
 		}

@@ -110,6 +110,9 @@ var DeviceKeys = []string{"role", "power", "tol", "driver", "amplitude"}
 type Waiver struct {
 	Rule, Device, Reason string
 	Pos                  netlist.Pos
+	// External is true for a waiver of the board file, false for a
+	// *@waive annotation in the netlist.
+	External bool
 }
 
 // Settings is everything a board says about itself.

@@ -138,7 +138,9 @@ func bjtsOf(an *checks.Analysis) []jsonBJT {
 				out[i].Worst, out[i].WorstValue, out[i].WorstCase, out[i].TjMax, out[i].TjMaxCase = w, wv, wc, tm, tmc
 			}
 			if !math.IsNaN(t.Tj) && !math.IsInf(t.Tj, 0) {
-				if h, seen := hottest[t.Name]; !seen || t.Tj > h {
+				// Junctions within a microkelvin are a tie: the earlier case
+				// stays, so rounding-level differences do not move the label.
+				if h, seen := hottest[t.Name]; !seen || t.Tj > h+1e-6 {
 					hottest[t.Name] = t.Tj
 					out[i].TjMax, out[i].TjMaxCase = finite(t.Tj), rules.CaseName(c.Scenario, c.Corner)
 				}
@@ -174,11 +176,18 @@ func bjtsOf(an *checks.Analysis) []jsonBJT {
 	return out
 }
 
+// FormatVersion is the version of the JSON report shapes (check and op),
+// written as "format_version". It changes when a field is removed or
+// changes meaning; fields may be added within a version. The shapes are
+// described by the JSON Schemas in rules/report/schema.
+const FormatVersion = 1
+
 type jsonReport struct {
-	RuleSet string     `json:"ruleset"`
-	Ambient float64    `json:"ambient"`
-	Results []jsonFile `json:"results"`
-	Summary Counts     `json:"summary"`
+	FormatVersion int        `json:"format_version"`
+	RuleSet       string     `json:"ruleset"`
+	Ambient       float64    `json:"ambient"`
+	Results       []jsonFile `json:"results"`
+	Summary       Counts     `json:"summary"`
 }
 
 func toJSON(f rules.Finding) jsonFinding {
@@ -213,7 +222,7 @@ func toJSON(f rules.Finding) jsonFinding {
 // findings (with reasons), input notes and counts, then the run's counts.
 // Values are SI; the shape is documented in the README.
 func JSON(w io.Writer, r *Report) error {
-	out := jsonReport{Ambient: r.Ambient, Results: []jsonFile{}}
+	out := jsonReport{FormatVersion: FormatVersion, Ambient: r.Ambient, Results: []jsonFile{}}
 	if r.RuleSet != nil {
 		out.RuleSet = r.RuleSet.Name
 	}
@@ -236,5 +245,6 @@ func JSON(w io.Writer, r *Report) error {
 	out.Summary = r.Counts()
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	return enc.Encode(out)
 }

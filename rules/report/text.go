@@ -29,16 +29,18 @@ type TextOptions struct {
 
 type paint struct{ on bool }
 
-func (p paint) with(s string, attrs ...color.Attribute) string {
+// with makes s Printable and colours it.
+func (p paint) with(s string, attrs ...color.Attribute) styled {
+	s = Printable(s)
 	if !p.on {
-		return s
+		return styled(s)
 	}
 	c := color.New(attrs...)
 	c.EnableColor()
-	return c.Sprint(s)
+	return styled(c.Sprint(s))
 }
 
-func (p paint) severity(s rules.Severity) string {
+func (p paint) severity(s rules.Severity) styled {
 	switch s {
 	case rules.SeverityError:
 		return p.with(string(s), color.FgRed, color.Bold)
@@ -62,11 +64,11 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 		if i > 0 {
 			ew.printf("\n")
 		}
-		head := f.Path
+		var title styled
 		if f.Title != "" {
-			head += "  " + p.with(f.Title, color.Faint)
+			title = "  " + p.with(f.Title, color.Faint)
 		}
-		ew.printf("%s\n", p.with(head, color.Bold))
+		ew.printf("%s%s\n", p.with(f.Path, color.Bold), title)
 		var waived []rules.Finding
 		n := 0
 		for _, x := range f.Findings {
@@ -167,9 +169,12 @@ type errWriter struct {
 	err error
 }
 
+// printf writes through Printable: every string argument that is not
+// styled is escaped (see Printable), so nothing read from input can drive
+// the terminal.
 func (e *errWriter) printf(format string, args ...any) {
 	if e.err == nil {
-		_, e.err = fmt.Fprintf(e.w, format, args...)
+		_, e.err = fmt.Fprintf(e.w, format, printableArgs(args)...)
 	}
 }
 
