@@ -37,7 +37,10 @@ package checks
 //     is at a rail, a load sits in the collector, no signal reaches the
 //     base, and the base is fed through resistors (and capacitors) from a
 //     controller pin (a plain DC source that feeds only base networks,
-//     see graph.pinNet) or through a resistor from a switch's collector.
+//     see graph.pinNet) into a coil, diode or other load only a switch
+//     drives, or into a resistor with the nominal solve showing it
+//     saturated or off (in forward-active it is a stage biased from a DC
+//     source); or through a resistor from a switch's collector.
 //   - follower: collector at a rail, emitter not.
 //   - current-source: emitter through a resistor to a rail, collector not
 //     at a rail, and the collector feeds other transistors' emitters (a
@@ -285,6 +288,19 @@ func (x *roleIndex) load(j int) *netlist.Element {
 	return nil
 }
 
+// switchedLoad returns an element on j's collector node that only a
+// switch drives (a coil, a diode or LED, anything but a resistor, a
+// capacitor or a transistor), or nil: a stage from a DC source into a
+// plain resistor may be a textbook amplifier biased from a VBB source.
+func (x *roleIndex) switchedLoad(j int) *netlist.Element {
+	for _, e := range x.elems[x.c[j]] {
+		if e.Kind != 'R' && e.Kind != 'C' && e.Kind != 'Q' {
+			return e
+		}
+	}
+	return nil
+}
+
 // names joins transistor names.
 func (x *roleIndex) names(l []int) string {
 	var s []string
@@ -450,9 +466,13 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 		if !x.rail[e] || x.rail[x.c[j]] || x.load(j) == nil || x.signal(q) {
 			continue
 		}
-		if p, r := x.pinDrive(q, j); p != nil {
+		if p, r := x.pinDrive(q, j); p != nil && (x.switchedLoad(j) != nil || ops[j].known && ops[j].region != "active") {
+			ld := x.switchedLoad(j)
+			if ld == nil {
+				ld = x.load(j)
+			}
 			markSwitch(j, fmt.Sprintf("%s, base fed by %s from %s (DC %s), collector load %s",
-				em, r.Name, p.Name, units.Format(p.Source.DC, "V"), x.load(j).Name))
+				em, r.Name, p.Name, units.Format(p.Source.DC, "V"), ld.Name))
 		} else if d, r := x.otherDrive(q, j); d != nil && ops[j].known && ops[j].region != "active" {
 			markSwitch(j, fmt.Sprintf("%s, base fed by %s from %s, collector load %s, %s at nominal",
 				em, r.Name, d.Name, x.load(j).Name, ops[j].region))

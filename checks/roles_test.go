@@ -83,7 +83,8 @@ Q@14 @b13 @e13 @o13 CN
 
 // classifyBoard reads a generated board and returns what classify needs:
 // the graph, the transistors, their polarities and a nominal solve that
-// has every transistor conducting 1 mA except each cell's clamp (off).
+// has every transistor conducting 1 mA (the switches saturated) except
+// each cell's clamp (off).
 func classifyBoard(tb testing.TB, cells int) (*graph, []*netlist.Element, []string, []nominalOp, *board.Settings) {
 	tb.Helper()
 	c, err := netlist.ReadSource("gen.cir", []byte(boardCells(cells)), &netlist.LoadOptions{ReadFile: netlist.NoFiles})
@@ -105,6 +106,9 @@ func classifyBoard(tb testing.TB, cells int) (*graph, []*netlist.Element, []stri
 		}
 		pol = append(pol, p)
 		op := nominalOp{known: true, ic: 1e-3, vbe: 0.65, region: "active"}
+		if strings.HasSuffix(e.Name, "_1") || strings.HasSuffix(e.Name, "_2") {
+			op.region = "saturation" // the pin switch and its high-side switch are on
+		}
 		if strings.HasSuffix(e.Name, "14") {
 			op = nominalOp{known: true, ic: 1e-12, vbe: 0.05, region: "cutoff"}
 		}
