@@ -40,12 +40,16 @@ package checks
 //     see graph.pinNet) into a coil, diode or other load only a switch
 //     drives, or into a resistor with the nominal solve showing it
 //     saturated or off (in forward-active it is a stage biased from a DC
-//     source); or through a resistor from a switch's collector.
+//     source); or through a resistor from a switch's collector; or through
+//     a resistor from another drive (a controlled source standing for a
+//     comparator) with the nominal solve showing it saturated or off. A
+//     Darlington's driver counts its output's emitter as its own, and the
+//     output (fact darlington) takes the driver's role.
 //   - follower: collector at a rail, emitter not.
 //   - current-source: emitter through a resistor to a rail, collector not
 //     at a rail, and the collector feeds other transistors' emitters (a
-//     tail) or the base is held by a diode or a voltage source with no
-//     signal.
+//     tail) or the base is held by a diode, a diode-connected transistor,
+//     a rail or a voltage source, with no signal.
 //   - common-emitter: the rest with a collector load.
 //
 // A transistor that matches nothing is taken as common-emitter by
