@@ -97,6 +97,12 @@ type Transistor struct {
 	RoleFrom   string `expr:"role_from"`
 	RoleReason string `expr:"role_reason"`
 	Linear     bool   `expr:"linear"`
+	// Darlington is true for the output transistor of a Darlington pair
+	// (its base on another transistor's emitter of the same polarity,
+	// collectors joined). It cannot saturate: its VCE stays about one VBE
+	// above its driver's VCE(sat), so a Darlington switch is judged by its
+	// driver.
+	Darlington bool `expr:"darlington"`
 
 	// Operating point, forward-referenced (see the file comment).
 	VBE float64 `expr:"vbe"`

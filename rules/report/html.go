@@ -69,11 +69,13 @@ type htmlFinding struct {
 
 type htmlDevice struct {
 	ID, Name, Caption string
-	SVG               template.HTML
-	PlotError         string
-	Margins           []htmlMargin
-	Points            []htmlPoint
-	LoadNote          string
+	// Role and RoleReason say what the transistor does and why.
+	Role, RoleReason string
+	SVG              template.HTML
+	PlotError        string
+	Margins          []htmlMargin
+	Points           []htmlPoint
+	LoadNote         string
 }
 
 type htmlMargin struct {
@@ -206,6 +208,9 @@ func htmlDevices(fileID string, f *File, planes []plane.Plane) []htmlDevice {
 		}
 		t, ok := facts[pl.Device]
 		d.Margins = htmlMargins(pl, t, ok)
+		if ok {
+			d.Role, d.RoleReason = t.Role, t.RoleReason
+		}
 		for _, p := range pl.Points {
 			d.Points = append(d.Points, htmlPoint{Case: p.Case, Kind: string(p.Kind), VCE: units.Format(p.VCE, "V"),
 				IC: units.Format(p.IC, "A"), Power: units.Format(p.Power, "W"), Region: p.Region})
@@ -446,7 +451,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <div class="devices">
 {{range .Devices}}<figure class="device" id="{{.ID}}">
 {{if .SVG}}{{.SVG}}{{else}}<p>No plot: {{.PlotError}}</p>{{end}}
-<figcaption>{{.Caption}}{{if .LoadNote}} No load line: {{.LoadNote}}.{{end}}</figcaption>
+<figcaption>{{if .Role}}<strong>{{.Name}}: {{.Role}}</strong> ({{.RoleReason}}). {{end}}{{.Caption}}{{if .LoadNote}} No load line: {{.LoadNote}}.{{end}}</figcaption>
 <table class="margins"><thead><tr><th>worst case</th><th>value</th><th>rating</th><th>share</th></tr></thead><tbody>
 {{range .Margins}}<tr><td>{{.Label}}</td><td>{{.Value}}</td><td>{{.Limit}}</td><td class="{{.Class}}">{{.Share}}</td></tr>
 {{end}}</tbody></table>
