@@ -430,7 +430,13 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 		if oc := others(x.baseAt[x.c[j]], j); len(oc) > 0 && !x.rail[x.c[j]] {
 			why = "collector on the base of " + x.names(oc)
 		} else if r := x.between(x.b[j], x.e[j]); r != nil {
-			if oe := append(others(x.emitAt[x.b[j]], j), others(x.emitAt[x.e[j]], j)...); len(oe) > 0 {
+			var oe []int // emitters feeding the resistor, at a rail they feed nothing in particular
+			for _, k := range []string{x.b[j], x.e[j]} {
+				if !x.rail[k] {
+					oe = append(oe, others(x.emitAt[k], j)...)
+				}
+			}
+			if len(oe) > 0 {
 				why = fmt.Sprintf("base-emitter across %s in the emitter path of %s", r.Name, x.names(oe))
 			}
 		}
