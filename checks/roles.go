@@ -497,6 +497,9 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 	for steps := 0; len(work) > 0 && steps <= 2*n; steps++ {
 		s := work[0]
 		work = work[1:]
+		if x.rail[x.c[s]] {
+			continue // a collector on a rail feeds no base through its resistors
+		}
 		for _, r := range x.res[x.c[s]] {
 			far := x.far(r, x.c[s])
 			for _, j := range x.baseAt[far] {
