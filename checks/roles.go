@@ -335,7 +335,7 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 	}
 	// Mirrors first: a reference names its outputs.
 	for j := range bjts {
-		if x.c[j] != x.b[j] {
+		if x.c[j] != x.b[j] || x.rail[x.b[j]] {
 			continue
 		}
 		rail, _ := x.emitterRail(j)
@@ -354,7 +354,7 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 		}
 	}
 	for j := range bjts { // Wilson type: emitter on a reference's diode net
-		if set[j] {
+		if set[j] || x.rail[x.e[j]] || x.rail[x.b[j]] {
 			continue
 		}
 		for _, r := range x.collAt[x.e[j]] {
