@@ -141,9 +141,10 @@ type roleIndex struct {
 const maxEmitterResistors = 4
 
 func newRoleIndex(g *graph, bjts []*netlist.Element, pol []string) *roleIndex {
-	x := &roleIndex{g: g, bjts: bjts, pol: pol, node: map[string]string{}, name: map[string]string{},
-		rail: map[string]bool{}, baseAt: map[string][]int{}, collAt: map[string][]int{}, emitAt: map[string][]int{},
-		res: map[string][]*netlist.Element{}, elems: map[string][]*netlist.Element{}, near: map[string][]int{}}
+	m, n := len(g.at), len(bjts)
+	x := &roleIndex{g: g, bjts: bjts, pol: pol, node: make(map[string]string, m), name: make(map[string]string, m),
+		rail: map[string]bool{}, baseAt: make(map[string][]int, n), collAt: make(map[string][]int, n), emitAt: make(map[string][]int, n),
+		res: make(map[string][]*netlist.Element, m), elems: make(map[string][]*netlist.Element, m), near: make(map[string][]int, n)}
 	uf := newUnionFind()
 	for _, e := range g.c.Elements {
 		if len(e.Nodes) >= 2 && (e.Kind == 'L' || e.Kind == 'R' && e.Value == 0) {
@@ -180,7 +181,6 @@ func newRoleIndex(g *graph, bjts []*netlist.Element, pol []string) *roleIndex {
 			}
 		}
 	}
-	n := len(bjts)
 	x.c, x.b, x.e = make([]string, n), make([]string, n), make([]string, n)
 	for j, q := range bjts {
 		x.c[j], x.b[j], x.e[j] = x.nodeOf(q.Nodes[0]), x.nodeOf(q.Nodes[1]), x.nodeOf(q.Nodes[2])
