@@ -228,10 +228,6 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 	if m != nil && m.Type == netlist.PNP {
 		pol = "pnp"
 	}
-	s := 1.0
-	if pol == "pnp" {
-		s = -1
-	}
 	t := Transistor{
 		Name: el.Name, Polarity: pol,
 		Collector: el.Nodes[0], Base: el.Nodes[1], Emitter: el.Nodes[2],
@@ -256,7 +252,8 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 		t.Drives = append(t.Drives, d.Name)
 	}
 	t.EmitterR = a.emitterResistance(el)
-	t.BaseRth, t.BaseVth = thevenin(a.c, el.Name, s, a.temp)
+	// BaseRth and BaseVth are solved after the nominal case (theveninAll).
+	t.BaseRth, t.BaseVth = math.NaN(), math.NaN()
 	return t
 }
 

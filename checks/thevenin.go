@@ -103,47 +103,60 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 	return res.Voltage[netlist.Key(name(emit))]
 }
 
-// thevenin is the Thevenin source the base of transistor name sees in
-// circuit c with the transistor removed: vth the open-circuit base voltage
-// forward-referenced to the emitter (V(B) - V(E) for an NPN, V(E) - V(B)
-// for a PNP, sign is +1 or -1), V, and rth the resistance, Ohm, measured by
-// injecting testCurrent into the base, both solved at temp (C). Both come
-// from solving the whole circuit, other transistors included. A base with
-// no DC source at all gives rth = +Inf and vth = NaN; a circuit that cannot
-// be solved without the transistor gives NaN for both.
-func thevenin(c *netlist.Circuit, name string, sign, temp float64) (rth, vth float64) {
-	var q *netlist.Element
-	for _, e := range c.Elements {
-		if e.Kind == 'Q' && netlist.Key(e.Name) == netlist.Key(name) {
-			q = e
-		}
-	}
-	if q == nil || len(q.Nodes) < 3 {
+// thevenin is the Thevenin source the base of transistor j sees on the
+// worker's System with the transistor removed (solve.Options.Remove: its
+// terminals held by solve.LeakR) and the sources in open opened: vth the
+// open-circuit base voltage forward-referenced to the emitter (V(B) - V(E)
+// for an NPN, V(E) - V(B) for a PNP), V, and rth the resistance, Ohm,
+// measured by injecting testCurrent into the base, both solved at temp
+// (C). Both come from solving the whole circuit, other transistors
+// included, starting from guess (the case's own solution), on the
+// System's matrix pattern and ordering: two short warm-started solves,
+// no new System. A base with no DC source at all gives rth = +Inf and
+// vth = NaN; a circuit that cannot be solved without the transistor gives
+// NaN for both.
+func (w *worker) thevenin(j int, open []string, temp float64, guess *solve.Result) (rth, vth float64) {
+	q := w.a.bjts[j]
+	if w.err != nil || len(q.Nodes) < 3 {
 		return math.NaN(), math.NaN()
 	}
-	base := func(extra float64) (float64, bool) {
-		var test []*netlist.Element
-		if extra != 0 {
-			test = append(test, &netlist.Element{Kind: 'I', Name: "I#test",
-				Nodes: []string{netlist.Ground, q.Nodes[1]}, Source: &netlist.Source{DC: extra, HasDC: true}, Pos: q.Pos})
-		}
-		tc := solve.Without(c, q, test...)
-		res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(temp)})
-		if err != nil {
-			return 0, false
-		}
-		return res.Voltage[nodeKey(q.Nodes[1])] - res.Voltage[nodeKey(q.Nodes[2])], true
+	sign := 1.0
+	if w.a.tmpl[j].Polarity == "pnp" {
+		sign = -1
 	}
-	v0, ok0 := base(0)
-	v1, ok1 := base(testCurrent)
-	if !ok0 || !ok1 {
+	o := tightOptions(solve.Options{Temp: solve.Temp(temp), Remove: []string{q.Name}, Open: open, Guess: guess})
+	vbe := func(r *solve.Result) float64 {
+		return r.Voltage[nodeKey(q.Nodes[1])] - r.Voltage[nodeKey(q.Nodes[2])]
+	}
+	r0, err := w.sys.Solve(o)
+	if err != nil {
 		return math.NaN(), math.NaN()
 	}
+	o.Guess = r0
+	o.Inject = map[string]float64{q.Nodes[1]: testCurrent}
+	r1, err := w.sys.Solve(o)
+	if err != nil {
+		return math.NaN(), math.NaN()
+	}
+	v0, v1 := vbe(r0), vbe(r1)
 	rth = (v1 - v0) / testCurrent
 	if rth > floatingR {
 		return math.Inf(1), math.NaN()
 	}
 	return math.Max(rth, 0), sign * v0
+}
+
+// theveninAll computes every transistor's base Thevenin source on the
+// nominal circuit, starting from the nominal solution, on the workers.
+func (a *analyzer) theveninAll(nominal *solve.Result) {
+	a.pool.each(len(a.bjts), func(w *worker, j int) {
+		w.setHFE(0)
+		if err := w.apply(w.sys, &w.dirty, nil); err != nil {
+			a.tmpl[j].BaseRth, a.tmpl[j].BaseVth = math.NaN(), math.NaN()
+			return
+		}
+		a.tmpl[j].BaseRth, a.tmpl[j].BaseVth = w.thevenin(j, nil, a.temp, nominal)
+	})
 }
 
 // findRoot returns the root of x in the union-find forest parent (a net
