@@ -117,6 +117,8 @@ type analyzer struct {
 	// min" and "hfe max" corners (0 where the corner does not apply).
 	hfeFactor [][2]float64
 	pool      *pool
+	// enet is the resistor network of the emitter resistances.
+	enet *emitterNetwork
 }
 
 // Analyze solves c and computes every fact of its nominal case, then of

@@ -22,54 +22,38 @@ const testCurrent = 1e-6
 // emitter and ground. It is 0 for an emitter tied straight to a rail and
 // +Inf when no resistor path reaches one (a current-source tail, another
 // transistor).
+//
+// The network is searched from the emitter without passing through the
+// rail (ground and the nets sources tie to it): resistors beyond the rail
+// do not change the resistance between the emitter and the rail, so each
+// transistor costs the size of its own emitter network, not the board's.
 func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
-	// Supernodes: nets joined by shorts.
-	parent := map[string]string{}
-	find := func(x string) string { return findRoot(parent, x) }
-	for _, e := range a.c.Elements {
-		switch e.Kind {
-		case 'V', 'L', 'E', 'H':
-			if len(e.Nodes) >= 2 {
-				ra, rb := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
-				if ra != rb {
-					if rb == find(netlist.Ground) {
-						ra, rb = rb, ra
-					}
-					parent[rb] = ra // keep ground's set rooted at ground
-				}
-			}
-		}
-	}
+	en := a.emitterNet()
+	find := func(x string) string { return findRoot(en.parent, x) }
 	gnd := find(netlist.Ground)
 	emit := find(nodeKey(q.Nodes[2]))
 	if emit == gnd {
 		return 0
 	}
-	// Resistors between distinct supernodes, and the emitter's component.
-	adj := map[string][]*netlist.Element{}
-	for _, e := range a.c.Elements {
-		if e.Kind == 'R' && len(e.Nodes) == 2 {
-			x, y := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
-			if x != y {
-				adj[x] = append(adj[x], e)
-				adj[y] = append(adj[y], e)
-			}
-		}
-	}
 	seen := map[string]bool{emit: true}
 	queue := []string{emit}
 	var rs []*netlist.Element
 	inR := map[*netlist.Element]bool{}
+	reached := false
 	for len(queue) > 0 {
 		k := queue[0]
 		queue = queue[1:]
-		for _, e := range adj[k] {
+		for _, e := range en.adj[k] {
 			if !inR[e] {
 				inR[e] = true
 				rs = append(rs, e)
 			}
 			x, y := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
 			for _, n := range []string{x, y} {
+				if n == gnd {
+					reached = true
+					continue
+				}
 				if !seen[n] {
 					seen[n] = true
 					queue = append(queue, n)
@@ -77,7 +61,7 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 			}
 		}
 	}
-	if !seen[gnd] {
+	if !reached {
 		return math.Inf(1)
 	}
 	name := func(k string) string {
@@ -101,6 +85,53 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 		return math.NaN()
 	}
 	return res.Voltage[netlist.Key(name(emit))]
+}
+
+// emitterNetwork is the resistor network of emitterResistance: nets
+// joined into supernodes by shorts (voltage sources, inductors, E and H
+// sources), and the resistors between distinct supernodes by supernode.
+type emitterNetwork struct {
+	parent map[string]string
+	adj    map[string][]*netlist.Element
+}
+
+// emitterNet builds the emitter network once per analysis.
+func (a *analyzer) emitterNet() *emitterNetwork {
+	if a.enet != nil {
+		return a.enet
+	}
+	parent := map[string]string{}
+	find := func(x string) string { return findRoot(parent, x) }
+	for _, e := range a.c.Elements {
+		switch e.Kind {
+		case 'V', 'L', 'E', 'H':
+			if len(e.Nodes) >= 2 {
+				ra, rb := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
+				if ra != rb {
+					if rb == find(netlist.Ground) {
+						ra, rb = rb, ra
+					}
+					parent[rb] = ra // keep ground's set rooted at ground
+				}
+			}
+		}
+	}
+	// Path compression, so that every later find is one step.
+	for k := range parent {
+		parent[k] = find(k)
+	}
+	adj := map[string][]*netlist.Element{}
+	for _, e := range a.c.Elements {
+		if e.Kind == 'R' && len(e.Nodes) == 2 {
+			x, y := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
+			if x != y {
+				adj[x] = append(adj[x], e)
+				adj[y] = append(adj[y], e)
+			}
+		}
+	}
+	a.enet = &emitterNetwork{parent: parent, adj: adj}
+	return a.enet
 }
 
 // thevenin is the Thevenin source the base of transistor j sees on the
