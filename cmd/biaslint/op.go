@@ -121,14 +121,11 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	if t == nil {
 		t = &circ.Options.Temp
 	}
-	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: t, Thermal: c.Bool("thermal")})
+	// Only the nominal solution and the junction temperatures: op prints
+	// no roles, topology or other cases, so it computes none.
+	res, tj, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: t, Thermal: c.Bool("thermal")})
 	if err != nil {
 		return opFile{}, err
-	}
-	res := an.Cases[0].Solution
-	tj := map[string]float64{}
-	for _, q := range an.Cases[0].Transistors {
-		tj[q.Name] = q.Tj
 	}
 	f := opFile{
 		File:        circ.File,
