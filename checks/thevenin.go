@@ -11,9 +11,6 @@ import (
 // having no DC source at all (it is held only by the leaks).
 const floatingR = 1e10
 
-// testCurrent is the current injected into the base to measure the
-// Thevenin resistance, A.
-const testCurrent = 1e-6
 
 // emitterResistance is the DC resistance from the emitter to its rail, Ohm:
 // with every voltage source and inductor shorted (an ideal source holds its
@@ -138,14 +135,14 @@ func (a *analyzer) emitterNet() *emitterNetwork {
 // worker's System with the transistor removed (solve.Options.Remove: its
 // terminals held by solve.LeakR) and the sources in open opened: vth the
 // open-circuit base voltage forward-referenced to the emitter (V(B) - V(E)
-// for an NPN, V(E) - V(B) for a PNP), V, and rth the resistance, Ohm,
-// measured by injecting testCurrent into the base, both solved at temp
-// (C). Both come from solving the whole circuit, other transistors
-// included, starting from guess (the case's own solution), on the
-// System's matrix pattern and ordering: two short warm-started solves,
-// no new System. A base with no DC source at all gives rth = +Inf and
-// vth = NaN; a circuit that cannot be solved without the transistor gives
-// NaN for both.
+// for an NPN, V(E) - V(B) for a PNP), V, and rth the resistance, Ohm, the
+// small-signal response of V(B) - V(E) to a current into the base
+// (solve.System.SolveResponse), both at temp (C). Both come from solving
+// the whole circuit, other transistors included, with one solve that
+// starts from guess (the case's own solution) on the System's matrix
+// pattern and ordering: no new System. A base with no DC source at all
+// gives rth = +Inf and vth = NaN; a circuit that cannot be solved without
+// the transistor gives NaN for both.
 func (w *worker) thevenin(j int, open []string, temp float64, guess *solve.Result) (rth, vth float64) {
 	q := w.a.bjts[j]
 	if w.err != nil || len(q.Nodes) < 3 {
@@ -159,18 +156,12 @@ func (w *worker) thevenin(j int, open []string, temp float64, guess *solve.Resul
 	vbe := func(r *solve.Result) float64 {
 		return r.Voltage[nodeKey(q.Nodes[1])] - r.Voltage[nodeKey(q.Nodes[2])]
 	}
-	r0, err := w.sys.Solve(o)
+	r0, dv, err := w.sys.SolveResponse(o, map[string]float64{q.Nodes[1]: 1})
 	if err != nil {
 		return math.NaN(), math.NaN()
 	}
-	o.Guess = r0
-	o.Inject = map[string]float64{q.Nodes[1]: testCurrent}
-	r1, err := w.sys.Solve(o)
-	if err != nil {
-		return math.NaN(), math.NaN()
-	}
-	v0, v1 := vbe(r0), vbe(r1)
-	rth = (v1 - v0) / testCurrent
+	v0 := vbe(r0)
+	rth = dv[nodeKey(q.Nodes[1])] - dv[nodeKey(q.Nodes[2])]
 	if rth > floatingR {
 		return math.Inf(1), math.NaN()
 	}

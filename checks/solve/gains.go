@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"github.com/biaslint/biaslint/checks/device"
+	"github.com/biaslint/biaslint/netlist"
 )
 
 // SolveGains solves the System at opt (as Solve) and returns, with the
@@ -87,4 +88,37 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 		gains[j] = dP / step
 	}
 	return gains, nil
+}
+
+// SolveResponse solves the System at opt (as Solve) and returns, with the
+// result, the first-order change of every node voltage (by node key, V
+// per A) when currents inject (A, by node name, into the node from
+// ground) are added: Δx = J⁻¹·Δb with J the Jacobian at the solution, one
+// triangular solve on its factorisation. It is the small-signal response
+// (a Thevenin resistance is the response at the node to 1 A into it).
+func (s *System) SolveResponse(opt Options, inject map[string]float64) (*Result, map[string]float64, error) {
+	r, w, x, err := s.solve(opt)
+	if err != nil {
+		return nil, nil, err
+	}
+	w.evaluate(x, true, false)
+	if err := w.assemble(); err != nil {
+		return nil, nil, err
+	}
+	b := make([]float64, s.n)
+	for name, v := range inject {
+		if i, ok := s.nodeIdx[netlist.Key(name)]; ok && !isGround(name) {
+			b[i] += v
+		}
+	}
+	dx := make([]float64, s.n)
+	if err := w.lin.Solve(dx, b); err != nil {
+		return nil, nil, err
+	}
+	out := make(map[string]float64, s.nExt+2)
+	out[netlist.Ground], out["gnd"] = 0, 0
+	for i, nm := range s.nodeNames {
+		out[netlist.Key(nm)] = dx[i]
+	}
+	return r, out, nil
 }

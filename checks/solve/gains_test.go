@@ -52,3 +52,32 @@ func TestSolveGainsMatchResolving(t *testing.T) {
 		}
 	}
 }
+
+// The response of a divider's midpoint to a current into it is the
+// parallel resistance R1·R2/(R1 + R2) (Thevenin's theorem): 8245.6 Ohm
+// for 47 kOhm and 10 kOhm, with a transistor removed from the node.
+func TestSolveResponseIsTheveninResistance(t *testing.T) {
+	b := newBuilder()
+	npnModel(b, nil)
+	b.V("VCC", "vcc", "0", 12)
+	b.R("R1", "vcc", "b", 47e3)
+	b.R("R2", "b", "0", 10e3)
+	b.R("RC", "vcc", "c", 4.7e3)
+	b.Q("Q1", "c", "b", "0", "qn")
+	s, err := Prepare(b.c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, dv, err := s.SolveResponse(Options{Remove: []string{"Q1"}}, map[string]float64{"b": 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The leak LeakR to ground at the base is in parallel too.
+	want := 1 / (1/47e3 + 1/10e3 + 1/LeakR)
+	if math.Abs(dv["b"]-want) > 1e-9*want {
+		t.Errorf("response %.6f Ohm, want %.6f", dv["b"], want)
+	}
+	if v := r.Voltage["b"]; math.Abs(v-12*10e3/57e3) > 1e-6 {
+		t.Errorf("V(b) = %g, want the divider's 2.105 V", v)
+	}
+}
