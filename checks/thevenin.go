@@ -11,7 +11,6 @@ import (
 // having no DC source at all (it is held only by the leaks).
 const floatingR = 1e10
 
-
 // emitterResistance is the DC resistance from the emitter to its rail, Ohm:
 // with every voltage source and inductor shorted (an ideal source holds its
 // net still) and every current source, capacitor, diode and other
