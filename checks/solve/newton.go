@@ -209,7 +209,7 @@ func (s *System) newWork(opt Options) (*work, error) {
 	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1}
 	if w.lin == nil {
 		if s.lin == nil {
-			s.lin = NewLU()
+			s.lin = NewSparseLU()
 		}
 		w.lin = s.lin
 	}

@@ -46,8 +46,10 @@ type Options struct {
 	// Without it every solve starts from zero with the junctions at their
 	// critical voltages, so the same input always gives the same bits.
 	Guess *Result
-	// Linear is the linear solver; nil means the System's own (an LU,
-	// kept from solve to solve so its ordering is reused).
+	// Linear is the linear solver; nil means the System's own SparseLU,
+	// kept from solve to solve so its pattern and ordering are reused
+	// (BenchmarkLinear: faster than DenseLU from 5 unknowns up, since the
+	// dense one estimates the condition at every factorisation).
 	Linear LinearSolver
 
 	// The variants below change the circuit for one solve without

@@ -53,7 +53,7 @@ type System struct {
 	n      int // all unknowns
 	// lin is the System's own linear solver, used when Options.Linear is
 	// nil: its pattern and ordering are the System's, whatever else ran.
-	lin *LU
+	lin *SparseLU
 }
 
 // Solve prepares c and solves it once; see Prepare and System.Solve.
