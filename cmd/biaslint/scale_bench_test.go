@@ -13,7 +13,7 @@ import (
 // stagesNetlist writes a board of n divider-biased common-emitter stages
 // on one 12 V supply (R1 47k, R2 10k, RC 4.7k, RE 1k, one NPN each), the
 // scale scenario of issue 9; invented for benchmarks.
-func stagesNetlist(b *testing.B, dir string, n int) string {
+func stagesNetlist(b testing.TB, dir string, n int) string {
 	var s strings.Builder
 	fmt.Fprintf(&s, "%d common-emitter stages (benchmark board)\nVCC vcc 0 DC 12\n", n)
 	s.WriteString(".model SNPN NPN(IS=5f BF=180 VAF=80)\n*@part SNPN vceo=40 vcbo=60 vebo=6 icmax=200m pd=625m tjmax=150 rthja=200 hfemin=100 hfemax=300\n")
