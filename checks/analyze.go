@@ -117,8 +117,10 @@ type analyzer struct {
 	// min" and "hfe max" corners (0 where the corner does not apply).
 	hfeFactor [][2]float64
 	pool      *pool
-	// enet is the resistor network of the emitter resistances.
+	// enet is the resistor network of the emitter resistances, rnet the
+	// nets held by ideal sources.
 	enet *emitterNetwork
+	rnet *railNets
 	// sys is the nominal circuit prepared once (structure checked).
 	sys *solve.System
 }

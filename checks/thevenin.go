@@ -143,19 +143,26 @@ func (a *analyzer) emitterNet() *emitterNetwork {
 // gives rth = +Inf and vth = NaN; a circuit that cannot be solved without
 // the transistor gives NaN for both.
 func (w *worker) thevenin(j int, open []string, temp float64, guess *solve.Result) (rth, vth float64) {
-	q := w.a.bjts[j]
-	if w.err != nil || len(q.Nodes) < 3 {
+	if w.err != nil {
+		return math.NaN(), math.NaN()
+	}
+	return theveninOn(w.sys, w.a.bjts[j], w.a.tmpl[j].Polarity, open, temp, guess)
+}
+
+// theveninOn is thevenin on System sys, for transistor q of polarity pol.
+func theveninOn(sys *solve.System, q *netlist.Element, pol string, open []string, temp float64, guess *solve.Result) (rth, vth float64) {
+	if len(q.Nodes) < 3 {
 		return math.NaN(), math.NaN()
 	}
 	sign := 1.0
-	if w.a.tmpl[j].Polarity == "pnp" {
+	if pol == "pnp" {
 		sign = -1
 	}
 	o := tightOptions(solve.Options{Temp: solve.Temp(temp), Remove: []string{q.Name}, Open: open, Guess: guess})
 	vbe := func(r *solve.Result) float64 {
 		return r.Voltage[nodeKey(q.Nodes[1])] - r.Voltage[nodeKey(q.Nodes[2])]
 	}
-	r0, dv, err := w.sys.SolveResponse(o, map[string]float64{q.Nodes[1]: 1})
+	r0, dv, err := sys.SolveResponse(o, map[string]float64{q.Nodes[1]: 1})
 	if err != nil {
 		return math.NaN(), math.NaN()
 	}
@@ -169,14 +176,26 @@ func (w *worker) thevenin(j int, open []string, temp float64, guess *solve.Resul
 
 // theveninAll computes every transistor's base Thevenin source on the
 // nominal circuit, starting from the nominal solution, on the workers.
+// Where the part of the board that removing the transistor can change is
+// small (localCircuit: up to the rails), only that part is solved, so
+// the facts of a board of many stages cost in proportion to the board,
+// not to its square.
 func (a *analyzer) theveninAll(nominal *solve.Result) {
+	a.rails() // built once, before the workers read it
 	a.pool.each(len(a.bjts), func(w *worker, j int) {
+		t := &a.tmpl[j]
+		if lc := a.localCircuit(a.bjts[j], nominal); lc != nil {
+			if sys, err := solve.Prepare(lc); err == nil {
+				t.BaseRth, t.BaseVth = theveninOn(sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
+				return
+			}
+		}
 		w.setHFE(0)
-		if err := w.apply(w.sys, &w.dirty, nil); err != nil {
-			a.tmpl[j].BaseRth, a.tmpl[j].BaseVth = math.NaN(), math.NaN()
+		if err := w.apply(w.sys, &w.dirty, nil); err != nil || w.err != nil {
+			t.BaseRth, t.BaseVth = math.NaN(), math.NaN()
 			return
 		}
-		a.tmpl[j].BaseRth, a.tmpl[j].BaseVth = w.thevenin(j, nil, a.temp, nominal)
+		t.BaseRth, t.BaseVth = theveninOn(w.sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
 	})
 }
 
@@ -192,3 +211,122 @@ func findRoot(parent map[string]string, x string) string {
 	}
 	return x
 }
+
+// railNets are the nets an ideal source holds: ground and every net tied
+// to it through voltage sources, inductors and zero-ohm resistors. A
+// change elsewhere in the circuit cannot move them.
+type railNets struct {
+	parent map[string]string
+	// at lists the elements on each net (by key), for the searches.
+	at map[string][]*netlist.Element
+	// controlled is set when the circuit has E, F, G or H sources, whose
+	// controls can couple nets that share no element.
+	controlled bool
+}
+
+// rails builds railNets once per analysis.
+func (a *analyzer) rails() *railNets {
+	if a.rnet != nil {
+		return a.rnet
+	}
+	r := &railNets{parent: map[string]string{}, at: map[string][]*netlist.Element{}}
+	find := func(x string) string { return findRoot(r.parent, x) }
+	for _, e := range a.c.Elements {
+		switch e.Kind {
+		case 'E', 'F', 'G', 'H':
+			r.controlled = true
+		}
+		hold := e.Kind == 'V' || e.Kind == 'L' || (e.Kind == 'R' && e.Value == 0)
+		if hold && len(e.Nodes) >= 2 {
+			ra, rb := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
+			if ra != rb {
+				if rb == find(netlist.Ground) {
+					ra, rb = rb, ra
+				}
+				r.parent[rb] = ra
+			}
+		}
+		for _, n := range e.Nodes {
+			k := nodeKey(n)
+			if l := r.at[k]; len(l) == 0 || l[len(l)-1] != e {
+				r.at[k] = append(r.at[k], e)
+			}
+		}
+	}
+	for k := range r.parent {
+		r.parent[k] = find(k)
+	}
+	a.rnet = r
+	return r
+}
+
+// isRail reports whether net key k is held by an ideal source.
+func (r *railNets) isRail(k string) bool {
+	return findRoot(r.parent, k) == findRoot(r.parent, netlist.Ground)
+}
+
+// localCircuit is the part of the circuit that removing transistor q can
+// change: the elements reached from its terminals without passing through
+// a rail, with every rail net they touch held at its nominal voltage by a
+// source of its own. Solving it gives what solving the whole circuit
+// gives for those nets (the rails do not move), at the cost of the part
+// instead of the board. It returns nil when the circuit has controlled
+// sources (their controls can reach past the search) or the part is most
+// of the board anyway.
+func (a *analyzer) localCircuit(q *netlist.Element, nominal *solve.Result) *netlist.Circuit {
+	r := a.rails()
+	if r.controlled || nominal == nil {
+		return nil
+	}
+	seen := map[string]bool{}
+	inEl := map[*netlist.Element]bool{}
+	var els []*netlist.Element
+	var queue []string
+	for _, n := range q.Nodes[:3] {
+		if k := nodeKey(n); !r.isRail(k) && !seen[k] {
+			seen[k] = true
+			queue = append(queue, k)
+		}
+	}
+	for len(queue) > 0 {
+		k := queue[0]
+		queue = queue[1:]
+		for _, e := range r.at[k] {
+			if inEl[e] {
+				continue
+			}
+			inEl[e] = true
+			els = append(els, e)
+			for _, n := range e.Nodes {
+				if m := nodeKey(n); !r.isRail(m) && !seen[m] {
+					seen[m] = true
+					queue = append(queue, m)
+				}
+			}
+		}
+		if 2*len(els) > len(a.c.Elements) {
+			return nil
+		}
+	}
+	tc := *a.c
+	tc.Elements = make([]*netlist.Element, 0, len(els)+8)
+	held := map[string]bool{}
+	for _, e := range a.c.Elements { // in netlist order
+		if !inEl[e] {
+			continue
+		}
+		tc.Elements = append(tc.Elements, e)
+		for _, n := range e.Nodes {
+			k := nodeKey(n)
+			if r.isRail(k) && !isGroundKey(k) && !held[k] {
+				held[k] = true
+				tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'V', Name: "V#rail:" + k, Nodes: []string{n, netlist.Ground},
+					Source: &netlist.Source{DC: nominal.Voltage[k], HasDC: true}, Pos: e.Pos})
+			}
+		}
+	}
+	return &tc
+}
+
+// isGroundKey reports whether a net key is ground.
+func isGroundKey(k string) bool { return k == netlist.Ground || k == "gnd" }
