@@ -19,6 +19,7 @@ func demo(b *testing.B) *netlist.Circuit {
 func benchAnalyze(b *testing.B, opt checks.Options) {
 	c := demo(b)
 	b.ResetTimer()
+	cpu0 := cpuTime()
 	for i := 0; i < b.N; i++ {
 		a, err := checks.Analyze(c, opt)
 		if err != nil {
@@ -26,6 +27,7 @@ func benchAnalyze(b *testing.B, opt checks.Options) {
 		}
 		b.ReportMetric(float64(len(a.Cases)), "cases")
 	}
+	b.ReportMetric((cpuTime()-cpu0).Seconds()*1e3/float64(b.N), "cpu-ms/op")
 }
 
 // BenchmarkNominal is the demo board's nominal case, as before corners.

@@ -4,7 +4,9 @@ import (
 	"fmt"
 	"runtime"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
@@ -37,6 +39,7 @@ func benchStages(b *testing.B, n int, opt checks.Options) {
 	c := stages(b, n)
 	b.ReportAllocs()
 	b.ResetTimer()
+	cpu0 := cpuTime()
 	for i := 0; i < b.N; i++ {
 		a, err := checks.Analyze(c, opt)
 		if err != nil {
@@ -44,6 +47,18 @@ func benchStages(b *testing.B, n int, opt checks.Options) {
 		}
 		b.ReportMetric(float64(len(a.Cases)), "cases")
 	}
+	// CPU time (user + system) per run: on a machine shared with other
+	// jobs it is steadier than the wall time for the cost exponent.
+	b.ReportMetric((cpuTime()-cpu0).Seconds()*1e3/float64(b.N), "cpu-ms/op")
+}
+
+// cpuTime is the process's user plus system time so far.
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
 // BenchmarkStagesCorners is a full check (scenarios, corners, thermal) of
