@@ -35,22 +35,7 @@ func stages(b testing.TB, n int) *netlist.Circuit {
 	return c
 }
 
-func benchStages(b *testing.B, n int, opt checks.Options) {
-	c := stages(b, n)
-	b.ReportAllocs()
-	b.ResetTimer()
-	cpu0 := cpuTime()
-	for i := 0; i < b.N; i++ {
-		a, err := checks.Analyze(c, opt)
-		if err != nil {
-			b.Fatal(err)
-		}
-		b.ReportMetric(float64(len(a.Cases)), "cases")
-	}
-	// CPU time (user + system) per run: on a machine shared with other
-	// jobs it is steadier than the wall time for the cost exponent.
-	b.ReportMetric((cpuTime()-cpu0).Seconds()*1e3/float64(b.N), "cpu-ms/op")
-}
+func benchStages(b *testing.B, n int, opt checks.Options) { benchCircuit(b, stages(b, n), opt) }
 
 // cpuTime is the process's user plus system time so far.
 func cpuTime() time.Duration {
