@@ -21,6 +21,17 @@ import (
 // DefaultAmbient is the ambient temperature when nothing sets one, C.
 const DefaultAmbient = 25
 
+// Where the circuit temperature of the nominal case came from
+// (Analysis.TempFrom). The convention, the same for check and op: Temp
+// (--temp) when given, else the netlist's .temp or .options temp=, else
+// the ambient. The models' TNOM (27 C unless a card sets it) is only the
+// temperature their parameters were written for.
+const (
+	TempFromOption  = "--temp"
+	TempFromNetlist = ".temp"
+	TempFromAmbient = "ambient"
+)
+
 // DefaultResistorPower is the power rating assumed for a resistor with none
 // given, W: the common 1/4 W through-hole and 1206 class (common practice).
 const DefaultResistorPower = 0.25
@@ -89,15 +100,15 @@ var DefaultAmbientRange = [2]float64{0, 70}
 
 // analyzer carries the state of one Analyze call.
 type analyzer struct {
-	c       *netlist.Circuit
-	opt     Options
-	board   *board.Settings
-	parts   *rulesets.Library
-	g       *graph
-	ambient float64
-	temp    float64
-	notes   netlist.ErrorList
-	roles   map[string][2]string
+	c        *netlist.Circuit
+	opt      Options
+	board    *board.Settings
+	parts    *rulesets.Library
+	g        *graph
+	ambient  float64
+	temp     float64
+	tempFrom string
+	notes    netlist.ErrorList
 
 	// bjts are the circuit's transistors in netlist order and tmpl their
 	// facts that do not depend on the case (computed once).
@@ -123,6 +134,9 @@ type analyzer struct {
 	rnet *railNets
 	// sys is the nominal circuit prepared once (structure checked).
 	sys *solve.System
+	// ratingNoted marks the models (by key) whose combined ratings have
+	// been noted.
+	ratingNoted map[string]bool
 }
 
 // Analyze solves c and computes every fact of its nominal case, then of
@@ -144,6 +158,7 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 		return nil, err
 	}
 	an.Board = a.board
+	an.Temp, an.TempFrom = a.temp, a.tempFrom
 	a.notes.Sort()
 	an.Notes = a.notes.List
 	return an, nil
@@ -158,7 +173,7 @@ func newAnalyzer(c *netlist.Circuit, opt Options) (*analyzer, error) {
 	}
 	b, errs := board.FromCircuit(c)
 	b.Merge(opt.Board, errs)
-	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts, roles: map[string][2]string{}}
+	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts}
 	a.notes.Merge(errs)
 	if a.parts == nil {
 		lib, err := rulesets.Parts()
@@ -174,12 +189,12 @@ func newAnalyzer(c *netlist.Circuit, opt Options) (*analyzer, error) {
 	if opt.Ambient != nil {
 		a.ambient = *opt.Ambient
 	}
-	a.temp = a.ambient
+	a.temp, a.tempFrom = a.ambient, TempFromAmbient
 	if c.Options.TempSet {
-		a.temp = c.Options.Temp
+		a.temp, a.tempFrom = c.Options.Temp, TempFromNetlist
 	}
 	if opt.Temp != nil {
-		a.temp = *opt.Temp
+		a.temp, a.tempFrom = *opt.Temp, TempFromOption
 	}
 	if opt.MonteCarlo < 0 || opt.MonteCarlo > MaxMonteCarlo {
 		return nil, fmt.Errorf("Monte Carlo runs %d: want 0 to %d", opt.MonteCarlo, MaxMonteCarlo)
@@ -192,20 +207,35 @@ func newAnalyzer(c *netlist.Circuit, opt Options) (*analyzer, error) {
 	if err != nil {
 		return nil, err
 	}
+	for _, n := range sys.Notes() {
+		a.notes.Notef(n.Pos, "%s", n.Msg)
+	}
 	a.sys = sys
 	a.prepare()
 	return a, nil
 }
 
+// OpPoint is the nominal operating point of a circuit, as op prints it.
+type OpPoint struct {
+	// Solution is the nominal case's solution.
+	Solution *solve.Result
+	// Tj is each transistor's junction temperature Ta + P·RthJA by flat
+	// name, C (NaN where RthJA is not known).
+	Tj map[string]float64
+	// Temp and TempFrom are the circuit temperature, C, and where it came
+	// from (as Analysis.Temp, Analysis.TempFrom).
+	Temp     float64
+	TempFrom string
+}
+
 // OperatingPoint solves only the nominal case of c, as Analyze would
-// (opt.Thermal: each transistor at its junction temperature), and returns
-// its solution and each transistor's junction temperature Ta + P·RthJA by
-// flat name, C (NaN where RthJA is not known). It computes no topology,
-// role or Thevenin facts and no other case: what the op command prints.
-func OperatingPoint(c *netlist.Circuit, opt Options) (*solve.Result, map[string]float64, error) {
+// (opt.Thermal: each transistor at its junction temperature). It computes
+// no topology, role or Thevenin facts and no other case: what the op
+// command prints.
+func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 	a, err := newAnalyzer(c, opt)
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	a.tmpl = make([]Transistor, len(a.bjts))
 	for i, el := range a.bjts {
@@ -215,7 +245,7 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*solve.Result, map[string]
 	sp := caseSpec{scenario: "nominal", kind: KindNominal, ambient: a.ambient, temp: a.temp, thermal: opt.Thermal, guess: -1}
 	res, th, err := a.solveThermal(a.sys, &sp, nil)
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	tj := map[string]float64{}
 	for _, op := range res.BJTs {
@@ -230,7 +260,7 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*solve.Result, map[string]
 		}
 		tj[op.Name] = t
 	}
-	return res, tj, nil
+	return &OpPoint{Solution: res, Tj: tj, Temp: a.temp, TempFrom: a.tempFrom}, nil
 }
 
 // prepare records the nominal values and the nets' first positions.
@@ -286,15 +316,11 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 		t.Model = m.Name
 		if p, err := device.BJTParamsOf(m, a.c.Options.TNom); err == nil {
 			t.GP = ModelFacts{IS: p.IS, BF: p.BF, NF: p.NF, VAF: p.VAF, IKF: p.IKF, ISE: p.ISE, NE: p.NE,
-				BR: p.BR, NR: p.NR, VAR: p.VAR, IKR: p.IKR, ISC: p.ISC, NC: p.NC, RB: p.RB, RE: p.RE, RC: p.RC,
+				BR: p.BR, NR: p.NR, VAR: p.VAR, IKR: p.IKR, ISC: p.ISC, NC: p.NC, RB: p.RB, RBM: p.RBM, IRB: p.IRB, RE: p.RE, RC: p.RC,
 				EG: p.EG, XTI: p.XTI, XTB: p.XTB}
 		}
 	}
 	t.Rating = a.ratings(el, t.Model, t.Polarity)
-	t.Role, t.RoleFrom = a.roleOf(el, 0)
-	if t.RoleFrom == "default" {
-		a.notes.Notef(el.Pos, "%s: role taken as linear (no annotation and no PULSE, PWL or SIN drive found); write *@device %s role=switch if it switches", el.Name, el.Name)
-	}
 	t.Bleed = a.g.bleed(el)
 	t.StiffDrive = a.g.stiff(el)
 	for _, d := range a.g.drives(el).sources {
@@ -370,36 +396,24 @@ func DeratedPower(r Ratings, ta float64) float64 {
 }
 
 // ratings merges a device's ratings: the library class its model matches
-// (else the generic class, with a note), overlaid by *@part values.
+// (else the generic class, with a note), overlaid by *@part values (see
+// combineRatings, which also notes, once per model, which values came from
+// where when the user gave only some).
 func (a *analyzer) ratings(el *netlist.Element, model, polarity string) Ratings {
 	lib, ok := a.parts.Lookup(model, polarity)
 	part := a.board.Part(model)
 	if !ok {
 		lib, _ = a.parts.Generic()
 	}
-	r := Ratings{Part: lib.Class, Origin: "parts library: " + lib.Origin,
-		VCEO: lib.VCEO, VCBO: lib.VCBO, VEBO: lib.VEBO, ICMax: lib.ICMax, Pd: lib.Pd,
-		TjMax: lib.TjMax, RthJA: lib.RthJA, HFEMin: lib.HFEMin, HFEMax: lib.HFEMax}
-	if lib.Class == "" {
-		n := math.NaN()
-		r = Ratings{VCEO: n, VCBO: n, VEBO: n, ICMax: n, Pd: n, TjMax: n, RthJA: n, HFEMin: n, HFEMax: n}
-	}
+	r, note := combineRatings(lib, part)
 	if part != nil {
-		r.Part, r.Origin = part.Model, "annotation at "+part.Pos.String()
-		over := func(dst *float64, v float64) {
-			if !math.IsNaN(v) {
-				*dst = v
+		if note != "" && !a.ratingNoted[netlist.Key(model)] {
+			if a.ratingNoted == nil {
+				a.ratingNoted = map[string]bool{}
 			}
+			a.ratingNoted[netlist.Key(model)] = true
+			a.notes.Warnf(part.Pos, "%s", note)
 		}
-		over(&r.VCEO, part.VCEO)
-		over(&r.VCBO, part.VCBO)
-		over(&r.VEBO, part.VEBO)
-		over(&r.ICMax, part.ICMax)
-		over(&r.Pd, part.Pd)
-		over(&r.TjMax, part.TjMax)
-		over(&r.RthJA, part.RthJA)
-		over(&r.HFEMin, part.HFEMin)
-		over(&r.HFEMax, part.HFEMax)
 		return r
 	}
 	if !ok {

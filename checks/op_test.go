@@ -22,9 +22,13 @@ func TestOperatingPointMatchesAnalyze(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		res, tj, err := checks.OperatingPoint(c, opt)
+		op, err := checks.OperatingPoint(c, opt)
 		if err != nil {
 			t.Fatal(err)
+		}
+		res, tj := op.Solution, op.Tj
+		if op.TempFrom != an.TempFrom || op.Temp != an.Temp {
+			t.Errorf("temperature %g (%s), Analyze %g (%s)", op.Temp, op.TempFrom, an.Temp, an.TempFrom)
 		}
 		want := an.Cases[0].Solution
 		for k, v := range want.Voltage {

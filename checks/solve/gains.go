@@ -40,7 +40,7 @@ func (s *System) SolveGains(opt Options, step float64) (*Result, []float64, erro
 // powerGains computes SolveGains's gains at the converged x of w.
 func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, error) {
 	w.evaluate(x, true, false)
-	if err := w.assemble(); err != nil {
+	if err := w.assemble(x); err != nil {
 		return nil, err
 	}
 	dopt := device.Options{TNom: s.circuit.Options.TNom, GMin: w.st.gmin}
@@ -102,7 +102,7 @@ func (s *System) SolveResponse(opt Options, inject map[string]float64) (*Result,
 		return nil, nil, err
 	}
 	w.evaluate(x, true, false)
-	if err := w.assemble(); err != nil {
+	if err := w.assemble(x); err != nil {
 		return nil, nil, err
 	}
 	b := make([]float64, s.n)

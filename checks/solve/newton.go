@@ -56,11 +56,15 @@ type ConvergenceError struct {
 }
 
 func (e *ConvergenceError) Error() string {
-	var b strings.Builder
 	if e.Pos.IsValid() || e.Pos.File != "" {
-		b.WriteString(e.Pos.String())
-		b.WriteString(": ")
+		return e.Pos.String() + ": error: " + e.Detail()
 	}
+	return e.Detail()
+}
+
+// Detail is the message of Error without the position.
+func (e *ConvergenceError) Detail() string {
+	var b strings.Builder
 	b.WriteString("no DC operating point found: ")
 	if e.Cause != nil {
 		b.WriteString(e.Cause.Error())
@@ -249,21 +253,21 @@ func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 	x := append([]float64(nil), x0...)
 	var tried []string
 	if w.newton(x, !warm, st.maxIter) {
-		return s.result(w, x, MethodNewton), w, x, nil
+		return s.verified(w, x, MethodNewton), w, x, nil
 	}
 	tried = append(tried, fmt.Sprintf("newton (%d iterations)", w.iters))
 
 	copy(x, x0)
 	ok, msg := w.gminStepping(x, !warm)
 	if ok {
-		return s.result(w, x, MethodGminStepping), w, x, nil
+		return s.verified(w, x, MethodGminStepping), w, x, nil
 	}
 	tried = append(tried, msg)
 
 	copy(x, x0)
 	ok, msg = w.sourceStepping(x)
 	if ok {
-		return s.result(w, x, MethodSourceStepping), w, x, nil
+		return s.verified(w, x, MethodSourceStepping), w, x, nil
 	}
 	tried = append(tried, msg)
 
@@ -289,6 +293,15 @@ func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 	}
 	ce.Pos = s.firstInvolved(involved, w.bad)
 	return nil, nil, nil, ce
+}
+
+// verified builds the result of a converged x and checks it against the
+// device equations as they are (verify.go): a point that satisfies only
+// the continued exponentials is returned marked not physical.
+func (s *System) verified(w *work, x []float64, m Method) *Result {
+	r := s.result(w, x, m)
+	s.verify(w, x, r)
+	return r
 }
 
 // deviceElem returns device d of the work's device list: the transistors,
@@ -437,7 +450,7 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 			return false
 		}
 		w.iters++
-		if err := w.assemble(); err != nil {
+		if err := w.assemble(x); err != nil {
 			var se *SingularError
 			if errors.As(err, &se) && w.singular == nil {
 				w.singular = se
@@ -459,16 +472,17 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 	}
 }
 
-// assemble stamps the system linearised at the last evaluation into the
-// linear solver and w.rhs, and factors it.
-func (w *work) assemble() error {
+// assemble stamps the system linearised at the last evaluation (at x)
+// into the linear solver and w.rhs, and factors it.
+func (w *work) assemble(x []float64) error {
 	w.lin.Clear(w.s.n)
 	for i := range w.rhs {
 		w.rhs[i] = 0
 	}
 	m := &matrixSink{lin: w.lin, rhs: w.rhs}
 	w.stampLinear(m)
-	w.stampDevices(m, nil, true)
+	w.stampDevices(m, x, true)
+	w.stampPoly(m, x, true)
 	return w.lin.Factor()
 }
 
@@ -501,6 +515,7 @@ func (w *work) residualOK(x []float64) bool {
 	r := &residualSink{x: x, r: w.res, m: w.mag}
 	w.stampLinear(r)
 	w.stampDevices(r, x, false)
+	w.stampPoly(r, x, false)
 	w.bad = w.bad[:0]
 	const floor = 64 * 0x1p-52
 	for i, v := range w.res {

@@ -22,9 +22,6 @@ import (
 	"github.com/biaslint/biaslint/rulesets"
 )
 
-// version is the tool version written into SARIF reports.
-const version = "0.1.0"
-
 var (
 	rulesetFlag = &cli.StringSliceFlag{
 		Name:  "ruleset",
@@ -62,7 +59,7 @@ func checkCommand() *cli.Command {
 			rulesetFlag, setFlag,
 			&cli.StringSliceFlag{Name: "only", Usage: "judge only these rule `IDS` (comma-separated or repeated)"},
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
-			partsFlag, boardFlag, ambientFlag, tempFlag,
+			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
 			colorFlag, outputFlag, demoFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
@@ -72,7 +69,9 @@ func checkCommand() *cli.Command {
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
 			shardFlag,
+			configFlag, noConfigFlag,
 		},
+		Before: applyProjectFile,
 		Action: runCheck,
 	}
 }
@@ -153,7 +152,7 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 	}
 	src, err := os.ReadFile(path)
 	if err != nil {
-		return nil, badInput(fmt.Errorf("%s: cannot read parts library: %v", path, err))
+		return nil, badInput(fmt.Errorf("%s: error: cannot read parts library: %v", path, err))
 	}
 	user, err := rulesets.LoadParts(path, src)
 	if err != nil {
@@ -202,7 +201,7 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 			return nil, badInput(err)
 		}
 	}
-	run.report.Version = version
+	run.report.Version = toolVersion()
 	run.report.RuleSet = set
 	opt, err := worstCaseOptions(c, set)
 	if err != nil {
@@ -220,23 +219,45 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 		defer bar.finish()
 		opt.Progress = bar.update
 	}
-	var problems []string
-	run.report.Files, problems = run.all(c, inputs, opt) // batch.go: in parallel, in input order
-	if len(problems) > 0 {
-		return nil, badInput(fmt.Errorf("%s", strings.Join(problems, "\n")))
+	var single error
+	run.report.Files, single = run.all(c, inputs, opt) // batch.go: in parallel, in input order
+	if single != nil {
+		// One netlist named, and it cannot be judged: nothing to report.
+		return nil, badInput(single)
 	}
-	if len(run.report.Files) > 0 && run.report.Files[0].Analysis != nil && len(run.report.Files[0].Analysis.Cases) > 0 {
-		run.report.Ambient = run.report.Files[0].Analysis.Cases[0].Ambient
+	for _, f := range run.report.Files {
+		if f.Analysis != nil && len(f.Analysis.Cases) > 0 {
+			run.report.Ambient = f.Analysis.Cases[0].Ambient
+			break
+		}
 	}
 	return run, nil
 }
 
-// one checks a single netlist.
-func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.File, error) {
-	circ, err := in.read()
-	if err != nil {
-		return report.File{}, err
+// finish ends a check or report run whose report has been written: when
+// some file could not be judged its located errors also go to stderr
+// (unless the text report on stdout already shows them) and the result is
+// exit status 2, else nil.
+func (run *checkRun) finish(c *cli.Context, shown bool) error {
+	failed := run.report.Failed()
+	if len(failed) == 0 {
+		return nil
 	}
+	w := c.App.ErrWriter
+	if shown {
+		fmt.Fprintf(w, "biaslint: %d of %d files could not be checked; their errors are in the report\n", len(failed), len(run.report.Files))
+	} else {
+		for _, f := range failed {
+			for _, e := range f.Errors {
+				fmt.Fprintln(w, e.Error())
+			}
+		}
+	}
+	return &statusError{code: exitBadInput}
+}
+
+// one checks a single netlist read by read (see batch.go).
+func (run *checkRun) one(c *cli.Context, circ *netlist.Circuit, opt checks.Options) (report.File, error) {
 	if run.boardPath != "" {
 		b, err := board.Parse(run.boardPath, run.board, circ)
 		if err != nil {
@@ -254,7 +275,7 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 	}
 	var waivers []rules.Waiver
 	for _, w := range an.Board.Waivers {
-		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
+		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos, External: w.External})
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
@@ -283,6 +304,12 @@ func runCheck(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	switch {
+	case len(run.report.Failed()) > 0:
+		run.report.ExitCode = exitBadInput // a file could not be judged
+	case run.report.AtOrAbove(failOn):
+		run.report.ExitCode = exitFindings
+	}
 	var out bytes.Buffer
 	switch format {
 	case "json":
@@ -304,8 +331,9 @@ func runCheck(c *cli.Context) error {
 	if err := emit(c, &out); err != nil {
 		return err
 	}
-	if run.report.AtOrAbove(failOn) {
-		return &statusError{code: exitFindings}
+	_ = run.finish(c, format == "text" && c.String("output") == "" && c.String("summary") != "csv")
+	if run.report.ExitCode != exitOK {
+		return &statusError{code: run.report.ExitCode}
 	}
 	return nil
 }

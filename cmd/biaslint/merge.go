@@ -79,7 +79,7 @@ func (o *object) MarshalJSON() ([]byte, error) {
 		if i > 0 {
 			b.WriteByte(',')
 		}
-		kb, err := json.Marshal(k)
+		kb, err := marshal(k)
 		if err != nil {
 			return nil, err
 		}
@@ -93,9 +93,20 @@ func (o *object) MarshalJSON() ([]byte, error) {
 	return b.Bytes(), nil
 }
 
+// marshal encodes v as the reports are encoded: without HTML escaping.
+func marshal(v any) ([]byte, error) {
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return bytes.TrimSuffix(b.Bytes(), []byte("\n")), nil
+}
+
 // set replaces (or appends) key k.
 func (o *object) set(k string, v any) error {
-	raw, err := json.Marshal(v)
+	raw, err := marshal(v)
 	if err != nil {
 		return err
 	}
@@ -132,10 +143,11 @@ func str(raw json.RawMessage, path ...string) string {
 }
 
 // writeIndented writes v as check's reports are written: json.Encoder
-// with two-space indentation and a final newline.
+// with two-space indentation, no HTML escaping and a final newline.
 func writeIndented(w io.Writer, v any) error {
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	return enc.Encode(v)
 }
 

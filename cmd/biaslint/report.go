@@ -34,6 +34,7 @@ func reportCommand() *cli.Command {
 		ArgsUsage: "FILE...",
 		Flags: append(analysisFlags(),
 			&cli.StringFlag{Name: "title", Usage: "heading of the page (default \"biaslint review\")"}),
+		Before: applyProjectFile,
 		Action: runReport,
 	}
 }
@@ -52,5 +53,8 @@ func runReport(c *cli.Context) error {
 	if err := report.HTML(&out, &run.report, report.HTMLOptions{Planes: planes, Title: c.String("title")}); err != nil {
 		return badInput(err)
 	}
-	return emit(c, &out)
+	if err := emit(c, &out); err != nil {
+		return err
+	}
+	return run.finish(c, false)
 }
