@@ -47,6 +47,7 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 	gains := make([]float64, len(s.bjts))
 	dx := make([]float64, s.n)
 	b := make([]float64, s.n)
+	var rows, set []int
 	for j, el := range s.bjts {
 		if w.offB != nil && w.offB[j] {
 			continue
@@ -58,21 +59,20 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 		vbe, vbc := w.jb[j][0], w.jb[j][1]
 		ev0, ev1 := w.evB[j], hot.Eval(vbe, vbc)
 		dic, dib := ev1.IC-ev0.IC, ev1.IB-ev0.IB
-		for i := range b {
-			b[i] = 0
-		}
 		// The device currents enter the KCL rows as +IC (c), +IB (b) and
 		// −(IC + IB) (e); the step moves them by Δf, so J·Δx = −Δf.
 		c, bb, e := el.inner[0], el.inner[1], el.inner[2]
+		rows := rows[:0]
 		add := func(i int, v float64) {
 			if i >= 0 {
 				b[i] += v
+				rows = append(rows, i)
 			}
 		}
 		add(c, -dic)
 		add(bb, -dib)
 		add(e, dic+dib)
-		if err := w.lin.Solve(dx, b); err != nil {
+		if err := solveFew(w.lin, dx, b, rows, &set); err != nil {
 			return nil, err
 		}
 		// ΔP to first order: the currents move by their temperature
@@ -86,6 +86,9 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 		dVC, dVB, dVE := dv(el.nodes[0]), dv(el.nodes[1]), dv(el.nodes[2])
 		dP := (dVC-dVE)*ev0.IC + (vc-ve)*dIC + (dVB-dVE)*ev0.IB + (vb-ve)*dIB
 		gains[j] = dP / step
+		for _, i := range set {
+			dx[i] = 0
+		}
 	}
 	return gains, nil
 }
@@ -121,4 +124,27 @@ func (s *System) SolveResponse(opt Options, inject map[string]float64) (*Result,
 		out[netlist.Key(nm)] = dx[i]
 	}
 	return r, out, nil
+}
+
+// solveFew solves A·x = b for a right-hand side that is zero but at rows,
+// with a sparse triangular solve when lin is a SparseLU, else a full one.
+// It leaves b zero and lists in *set the unknowns of x it set (the caller
+// zeroes them before the next call).
+func solveFew(lin LinearSolver, x, b []float64, rows []int, set *[]int) error {
+	if sp, ok := lin.(*SparseLU); ok {
+		got, err := sp.SolveSparse(x, b, rows)
+		*set = got
+		return err
+	}
+	if err := lin.Solve(x, b); err != nil {
+		return err
+	}
+	for _, i := range rows {
+		b[i] = 0
+	}
+	*set = (*set)[:0]
+	for i := range x {
+		*set = append(*set, i)
+	}
+	return nil
 }
