@@ -87,8 +87,8 @@ type SparseLU struct {
 	rowm         []float64
 	inq          []bool    // SolveSparse: step queued
 	ys, ws       []float64 // SolveSparse's work, all zero between calls
-	factorsFresh int // factorisations with fresh pivoting (statistics)
-	refactors    int // value-only refactorisations (statistics)
+	factorsFresh int       // factorisations with fresh pivoting (statistics)
+	refactors    int       // value-only refactorisations (statistics)
 }
 
 // Threshold partial pivoting: a fresh factorisation takes the diagonal
