@@ -218,7 +218,10 @@ func SARIF(w io.Writer, r *Report) error {
 			loc.LogicalLocations = []sarifLogical{{Name: x.Device, Kind: "element"}}
 			res.Locations = []sarifLocation{loc}
 			res.PartialFingerprints = map[string]string{FingerprintKey: Fingerprint(x)}
-			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner)}
+			// netlist names the checked file the result came from (its
+			// location may be an included file or the board file), so that
+			// reports of several runs can be merged in file order.
+			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner), "netlist": f.Path}
 			if x.HasLimit {
 				props["value"], props["limit"], props["unit"] = x.Value, x.Limit, x.Unit
 			}
