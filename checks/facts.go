@@ -277,4 +277,8 @@ type Analysis struct {
 	// Notes are located notes and warnings about the analysis (e.g. a
 	// device checked against generic ratings).
 	Notes []*netlist.Error
+	// States is not nil when the first DC solution found was unstable (a
+	// circuit with positive feedback): it lists the stable states and the
+	// cases that hold them (see states.go).
+	States *States
 }

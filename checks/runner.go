@@ -62,6 +62,9 @@ type caseSpec struct {
 	// (-1 for a cold start); group the index of the drive-level scenario's
 	// nominal-corner case this case belongs to (-1 for none).
 	guess, group int
+	// start, when not nil, warm-starts the case instead of guess (a
+	// stable state found after the nominal solve, see states.go).
+	start *solve.Result
 	// swing is the swept source and level its deviation (swing cases).
 	swing *swingSource
 	level float64
@@ -345,7 +348,9 @@ func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error
 	a.pool.each(len(idx), func(w *worker, k int) {
 		i := idx[k]
 		var g *solve.Result
-		if sp := &specs[i]; sp.guess >= 0 && sp.guess < len(outs) {
+		if sp := &specs[i]; sp.start != nil {
+			g = sp.start
+		} else if sp.guess >= 0 && sp.guess < len(outs) {
 			g = outs[sp.guess].res
 		}
 		outs[i] = w.solveCase(&specs[i], g)
@@ -397,6 +402,27 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 		return nil, err
 	}
+	var multi *States
+	if states, unstable, err := a.stableStates(&specs[0], &outs[0]); err != nil {
+		return nil, err
+	} else if unstable != nil {
+		multi = &States{Unstable: unstable, Cases: []int{0}}
+		multi.Message = a.statesNote(unstable, states)
+		if len(states) > 0 {
+			// The nominal case from the first stable state, the others
+			// as cases of their own.
+			specs[0].start = states[0]
+			for i, st := range states[1:] {
+				multi.Cases = append(multi.Cases, len(specs))
+				specs = append(specs, caseSpec{scenario: stateName(i + 1), kind: KindState, ambient: a.ambient,
+					temp: a.temp, thermal: o.Thermal, guess: -1, group: -1, start: st})
+				outs = append(outs, caseOut{})
+			}
+			if err := a.solveSpecs(specs, outs, span(0, len(specs))); err != nil {
+				return nil, err
+			}
+		}
+	}
 	groups := []int{0}
 	if o.Scenarios || o.Corners {
 		levels := a.levelScenarios()
@@ -441,7 +467,7 @@ func (a *analyzer) run() (*Analysis, error) {
 			return nil, err
 		}
 	}
-	an := &Analysis{Circuit: a.c}
+	an := &Analysis{Circuit: a.c, States: multi}
 	for i := range specs {
 		an.Cases = append(an.Cases, a.caseFacts(&specs[i], &outs[i]))
 		if outs[i].th.unsettled {

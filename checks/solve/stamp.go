@@ -141,6 +141,11 @@ func (w *work) stampLinear(k sink) {
 	if w.gshunt > 0 {
 		for i := 0; i < w.s.nNodes; i++ {
 			k.a(i, i, w.gshunt)
+			if w.pull != nil {
+				// A pseudo-transient step: the shunt pulls towards the
+				// previous state (see stability.go).
+				k.b(i, w.gshunt*w.pull[i])
+			}
 		}
 	}
 }

@@ -42,6 +42,11 @@ type opFile struct {
 	Nodes       map[string]float64 `json:"nodes"`
 	Sources     map[string]float64 `json:"sources"`
 	BJTs        []opBJT            `json:"bjts"`
+	// StableStates and States describe a circuit whose first DC solution
+	// was unstable: how many stable states were found (the one shown is
+	// the first) and what they are.
+	StableStates int    `json:"stable_states,omitempty"`
+	States       string `json:"states,omitempty"`
 
 	nodeOrder []string
 }
@@ -140,6 +145,9 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 		Sources:     map[string]float64{},
 		BJTs:        []opBJT{},
 	}
+	if st := an.States; st != nil {
+		f.StableStates, f.States = len(st.Cases), st.Message
+	}
 	for _, n := range res.Nodes {
 		f.Nodes[n.Name] = n.V
 		f.nodeOrder = append(f.nodeOrder, n.Name)
@@ -173,7 +181,11 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			head += "  " + p.dim(r.Title)
 		}
 		fmt.Fprintln(w, p.bold(head))
-		fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", units.Format(r.Temperature, "C"), r.Method, r.Iterations)
+		fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n", units.Format(r.Temperature, "C"), r.Method, r.Iterations)
+		if r.States != "" {
+			fmt.Fprintf(w, "  %s: %s; shown: stable state 1\n", p.amber("several DC solutions"), r.States)
+		}
+		w.WriteString("\n")
 		if len(r.BJTs) == 0 {
 			fmt.Fprintln(w, "  no bipolar transistors")
 		} else {

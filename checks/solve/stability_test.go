@@ -1,0 +1,93 @@
+package solve
+
+import (
+	"math"
+	"testing"
+
+	"github.com/biaslint/biaslint/checks/device"
+)
+
+// latch is a cross-coupled pair of our own: each collector (1 kOhm to
+// 5 V) drives the other base through 10 kOhm.
+func latch() *builder {
+	b := newBuilder()
+	npnModel(b, nil) // IS 1e-14, BF 100
+	b.V("VCC", "vcc", "0", 5)
+	b.R("RC1", "vcc", "c1", 1e3)
+	b.R("RC2", "vcc", "c2", 1e3)
+	b.R("RB1", "c2", "b1", 10e3)
+	b.R("RB2", "c1", "b2", 10e3)
+	b.Q("Q1", "c1", "b1", "0", "qn")
+	b.Q("Q2", "c2", "b2", "0", "qn")
+	return b
+}
+
+// The symmetric latch solves to its balanced point, both transistors
+// active: by hand, with VBE about 0.65 V and IB = (Vc - 0.65)/10k, Vc = 5 -
+// 1k*(BF + 1)*IB gives Vc = (5 + 10.1*0.65)/11.1 = 1.04 V. That point is
+// unstable; the two stable states have one transistor saturated, IC about
+// (5 - 0.1)/1k = 4.9 mA, with the other's collector at 5 - 1k*(5 -
+// 0.7)/11k = 4.61 V (hand estimates, Ohm's and Kirchhoff's laws).
+func TestLatchStability(t *testing.T) {
+	b := latch()
+	s, err := Prepare(b.c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := s.Solve(Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if vc := r.Voltage["c1"]; math.Abs(vc-1.04) > 0.05 || math.Abs(r.Voltage["c2"]-vc) > 1e-6 {
+		t.Fatalf("balanced point: V(c1) %g V(c2) %g, want both about 1.04 V", vc, r.Voltage["c2"])
+	}
+	st, err := s.Stability(Options{}, r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !st.Tested || !st.Unstable || !(st.Rate > 0) {
+		t.Fatalf("balanced latch: %+v, want unstable", st)
+	}
+	states, err := s.StableStates(Options{}, st)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(states) != 2 {
+		t.Fatalf("%d stable states, want 2", len(states))
+	}
+	for _, x := range states {
+		on, off := x.BJTs[0], x.BJTs[1]
+		if on.Region != device.Saturation {
+			on, off = off, on
+		}
+		if on.Region != device.Saturation || off.Region != device.Cutoff {
+			t.Errorf("state %v: regions %s and %s, want saturation and cutoff", x.Voltage, on.Region, off.Region)
+		}
+		if math.Abs(on.IC-4.9e-3) > 0.1e-3 || math.Abs(off.VCE-4.61) > 0.05 {
+			t.Errorf("state: IC(on) %g (hand 4.9 mA), VCE(off) %g (hand 4.61 V)", on.IC, off.VCE)
+		}
+		st2, err := s.Stability(Options{}, x)
+		if err != nil || st2.Unstable {
+			t.Errorf("state %v not stable: %+v %v", x.Voltage, st2, err)
+		}
+	}
+	if states[0].BJTs[0].Region == states[1].BJTs[0].Region {
+		t.Errorf("both states have Q1 %s", states[0].BJTs[0].Region)
+	}
+}
+
+func TestStableCircuitsAreStable(t *testing.T) {
+	// A degenerated common-emitter stage and the two-stage amplifier have
+	// no positive feedback: their only solution is stable.
+	for _, c := range []*builder{func() *builder { b := newBuilder(); b.c = twoStage(); return b }()} {
+		s, err := Prepare(c.c)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r := mustSolve(t, c.c, Options{})
+		st, err := s.Stability(Options{}, r)
+		if err != nil || !st.Tested || st.Unstable {
+			t.Errorf("two-stage amplifier: %+v %v, want tested and stable", st, err)
+		}
+	}
+}

@@ -1,0 +1,111 @@
+package checks
+
+// This file handles circuits with more than one DC solution. Positive
+// feedback (a latch, a Schmitt trigger, a thyristor pair) gives a circuit
+// several DC solutions, and Newton may land on the unstable balance point
+// between its stable states. After the nominal solve the operating point
+// is tested for stability (solve.System.Stability: the determinant test
+// with a capacitance on every node); when it is unstable, the stable states
+// on either side are found (solve.System.StableStates), the nominal case is
+// solved again from the first of them, and each further state becomes a
+// case of its own (kind KindState), so every rule is judged in every stable
+// state. The unstable point is never reported as the operating point.
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/biaslint/biaslint/checks/solve"
+	"github.com/biaslint/biaslint/netlist"
+	"github.com/biaslint/biaslint/netlist/units"
+)
+
+// KindState is the kind of a case that is a further stable state of a
+// circuit with several (Case.Kind).
+const KindState = "stable state"
+
+// States describes a circuit whose DC equations have an unstable solution
+// between stable states.
+type States struct {
+	// Unstable is the unstable operating point the solver found first.
+	Unstable *solve.Result
+	// Cases are the indices in Analysis.Cases of the stable states found:
+	// the nominal case (0) first.
+	Cases []int
+	// Message describes the states, as the note on the circuit says.
+	Message string
+}
+
+// stableStates tests the nominal solution for stability and returns the
+// stable states to use instead (nil when it is stable or cannot be
+// tested), with the unstable point.
+func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *solve.Result, error) {
+	sys, err := solve.Prepare(a.c)
+	if err != nil {
+		return nil, nil, err
+	}
+	temps := map[string]float64{}
+	for _, op := range out.res.BJTs {
+		temps[netlist.Key(op.Name)] = op.Temp
+	}
+	opt := solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: temps}
+	st, err := sys.Stability(opt, out.res)
+	if err != nil || !st.Unstable {
+		return nil, nil, nil // a point that cannot be tested is kept
+	}
+	states, err := sys.StableStates(opt, st)
+	if err != nil {
+		return nil, nil, err
+	}
+	return states, out.res, nil
+}
+
+// describeState lists the transistors' regions and collector currents.
+func describeState(r *solve.Result) string {
+	var parts []string
+	for i, op := range r.BJTs {
+		if i == 8 {
+			parts = append(parts, fmt.Sprintf("%d more", len(r.BJTs)-8))
+			break
+		}
+		parts = append(parts, fmt.Sprintf("%s %s IC %s", op.Name, op.Region, units.Format(op.IC, "A")))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// statesNote notes the states on the circuit and returns the message.
+func (a *analyzer) statesNote(unstable *solve.Result, states []*solve.Result) string {
+	var b strings.Builder
+	switch len(states) {
+	case 0:
+		fmt.Fprintf(&b, "the DC solution found (%s) is unstable: positive feedback tips it over, and no stable state was found from it; the operating point shown is that unstable balance", describeState(unstable))
+	case 1:
+		fmt.Fprintf(&b, "the DC solution first found (%s) is unstable (positive feedback tips it over); the circuit settles in the stable state %s, used as the nominal case; it may have other stable states that were not found", describeState(unstable), describeState(states[0]))
+	default:
+		word := "bistable"
+		if len(states) > 2 {
+			word = "multistable"
+		}
+		fmt.Fprintf(&b, "the circuit is %s (positive feedback): the DC solution first found (%s) is unstable; ", word, describeState(unstable))
+		for i, s := range states {
+			if i > 0 {
+				b.WriteString("; ")
+			}
+			where := "the nominal case"
+			if i > 0 {
+				where = fmt.Sprintf("case %q", stateName(i))
+			}
+			fmt.Fprintf(&b, "stable state %d (%s): %s", i+1, where, describeState(s))
+		}
+		b.WriteString("; every rule is judged in each stable state")
+	}
+	pos := netlist.Pos{File: a.c.File, Line: 1, Col: 1}
+	if len(a.bjts) > 0 {
+		pos = a.bjts[0].Pos
+	}
+	a.notes.Warnf(pos, "%s", b.String())
+	return b.String()
+}
+
+// stateName names the case of stable state i+1 (i ≥ 1).
+func stateName(i int) string { return fmt.Sprintf("stable state %d", i+1) }
