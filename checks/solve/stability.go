@@ -27,8 +27,12 @@ package solve
 // J + λ·C, by inverse iteration), with backward-Euler steps (a pseudo-
 // transient: each step is a solve with every node pulled towards its
 // previous voltage through C/h), the step h growing once the state has
-// left the unstable point, then a plain solve from where it settled. Every
-// loop is bounded.
+// left the unstable point, then a plain solve from where it settled. When
+// the steps cannot follow (a regenerative pair whose currents explode with
+// the same capacitance on every node), every node is pulled through a
+// shunt towards a point further out along the mode and the shunt is
+// stepped down to zero (GMIN stepping towards that point). Every loop is
+// bounded.
 
 import (
 	"errors"
@@ -242,7 +246,7 @@ func (w *work) follow(x, x0, mode []float64, rate float64) bool {
 		if !w.newton(xn, false, stepIter) {
 			h /= 4
 			if h*rate < 1e-15 {
-				return false
+				break
 			}
 			continue
 		}
@@ -259,15 +263,29 @@ func (w *work) follow(x, x0, mode []float64, rate float64) bool {
 		}
 	}
 	// The dynamics ran into currents the steps cannot follow (a
-	// regenerative switch with no node capacitance to slow it): solve
-	// from points further out along the mode instead.
-	for _, kick := range []float64{0.1, 0.3, 1, 3} {
-		copy(xn, x0)
-		for i := range xn {
-			xn[i] += kick * sideOf(side, x0, mode) * mode[i]
+	// regenerative switch with the same capacitance on every node): pull
+	// every node towards a point further out along the mode through a
+	// shunt that is stepped down to zero (GMIN stepping towards that point
+	// rather than towards ground), for a few distances.
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for i := 0; i < w.s.nNodes; i++ {
+		lo, hi = math.Min(lo, x0[i]), math.Max(hi, x0[i])
+	}
+	lo, hi = math.Min(lo, 0), math.Max(hi, 0)
+	sg := sideOf(side, x0, mode)
+	target := make([]float64, len(x))
+	for _, dist := range []float64{0.3, 1, 3, 10} {
+		for i := range target {
+			target[i] = x0[i] + sg*dist*mode[i]
+			if i < w.s.nNodes {
+				target[i] = math.Max(lo, math.Min(hi, target[i]))
+			}
 		}
-		w.gshunt, w.pull = 0, nil
-		if w.newton(xn, false, w.st.maxIter) && far(xn, x0, w.s.nNodes) > stateKick && w.stable(xn) {
+		copy(xn, target)
+		w.gshunt, w.pull = 0, target
+		ok, _ := w.gminStepping(xn, false)
+		w.pull = nil
+		if ok && far(xn, x0, w.s.nNodes) > stateKick && w.stable(xn) {
 			copy(x, xn)
 			return true
 		}

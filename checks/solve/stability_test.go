@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"github.com/biaslint/biaslint/checks/device"
+	"github.com/biaslint/biaslint/netlist"
 )
 
 // latch is a cross-coupled pair of our own: each collector (1 kOhm to
@@ -77,17 +78,63 @@ func TestLatchStability(t *testing.T) {
 }
 
 func TestStableCircuitsAreStable(t *testing.T) {
-	// A degenerated common-emitter stage and the two-stage amplifier have
-	// no positive feedback: their only solution is stable.
-	for _, c := range []*builder{func() *builder { b := newBuilder(); b.c = twoStage(); return b }()} {
-		s, err := Prepare(c.c)
-		if err != nil {
-			t.Fatal(err)
+	// The two-stage amplifier has no positive feedback: its only solution
+	// is stable.
+	c := twoStage()
+	s, err := Prepare(c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, err := s.Stability(Options{}, mustSolve(t, c, Options{}))
+	if err != nil || !st.Tested || st.Unstable {
+		t.Errorf("two-stage amplifier: %+v %v, want tested and stable", st, err)
+	}
+}
+
+// A PNP-NPN thyristor pair of our own (the NPN collector drives the PNP
+// base, the PNP collector the NPN base) from 12 V through 1 kOhm: its DC
+// solutions are off (the anode node at 12 V), latched on (both saturated:
+// the anode about VEB + VCE(sat) = 0.7 + 0.1 V above ground, so the current
+// is about (12 - 0.8)/1k = 11.2 mA; common-practice junction voltages,
+// Ohm's law), and an unstable one between, which Newton finds first.
+func TestThyristorPairStates(t *testing.T) {
+	b := newBuilder()
+	npnModel(b, nil)
+	b.model("qp", netlist.PNP, map[string]float64{"IS": 1e-14, "BF": 50})
+	b.V("VCC", "vcc", "0", 12)
+	b.R("RA", "vcc", "a", 1e3)
+	b.Q("QP", "g", "n", "a", "qp")
+	b.Q("QN", "n", "g", "0", "qn")
+	b.R("RG", "g", "0", 2.2e3)
+	b.R("RN", "a", "n", 4.7e3)
+	s, err := Prepare(b.c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := mustSolve(t, b.c, Options{})
+	st, err := s.Stability(Options{}, r)
+	if err != nil || !st.Unstable {
+		t.Fatalf("first solution %v (%s, %s): %+v %v; want unstable", r.Voltage, r.BJTs[0].Region, r.BJTs[1].Region, st, err)
+	}
+	states, err := s.StableStates(Options{}, st)
+	if err != nil || len(states) != 2 {
+		t.Fatalf("%d states (%v), want 2", len(states), err)
+	}
+	var on, off *Result
+	for _, x := range states {
+		if x.Voltage["a"] < 6 {
+			on = x
+		} else {
+			off = x
 		}
-		r := mustSolve(t, c.c, Options{})
-		st, err := s.Stability(Options{}, r)
-		if err != nil || !st.Tested || st.Unstable {
-			t.Errorf("two-stage amplifier: %+v %v, want tested and stable", st, err)
-		}
+	}
+	if on == nil || off == nil {
+		t.Fatalf("states %v %v: want one on, one off", states[0].Voltage, states[1].Voltage)
+	}
+	if i := (12 - on.Voltage["a"]) / 1e3; math.Abs(i-11.2e-3) > 0.3e-3 || on.BJTs[0].Region != device.Saturation || on.BJTs[1].Region != device.Saturation {
+		t.Errorf("on state: %g A (hand 11.2 mA), %s %s", i, on.BJTs[0].Region, on.BJTs[1].Region)
+	}
+	if off.Voltage["a"] < 11.99 || off.BJTs[0].Region != device.Cutoff || off.BJTs[1].Region != device.Cutoff {
+		t.Errorf("off state: V(a) %g, %s %s", off.Voltage["a"], off.BJTs[0].Region, off.BJTs[1].Region)
 	}
 }
