@@ -295,7 +295,7 @@ func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
 }
 
 // opened returns the worker's circuit with voltage source src replaced by
-// a leak resistor (solve.LeakR, the conductance SPICE places across junctions):
+// a leak resistor (solve.LeakR, 1 pS, the size of SPICE's default GMIN):
 // the source lets go of its net, and no net is left without a DC path.
 func (w *worker) opened(src *netlist.Element) *netlist.Circuit {
 	c := *w.circ
