@@ -50,6 +50,11 @@ func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *s
 	}
 	opt := solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: temps}
 	st, err := sys.Stability(opt, out.res)
+	if err == nil && !st.Tested && len(a.bjts) > 1 {
+		a.notes.Notef(netlist.Pos{File: a.c.File, Line: 1, Col: 1},
+			"the operating point was not tested for stability: the circuit has %d unknowns, more than the %d the test takes; if it has positive feedback, check that the point is a stable one",
+			sys.Size(), solve.MaxStabilityUnknowns)
+	}
 	if err != nil || !st.Unstable {
 		return nil, nil, nil // a point that cannot be tested is kept
 	}
