@@ -97,7 +97,6 @@ type analyzer struct {
 	ambient float64
 	temp    float64
 	notes   netlist.ErrorList
-	roles   map[string][2]string
 
 	// bjts are the circuit's transistors in netlist order and tmpl their
 	// facts that do not depend on the case (computed once).
@@ -132,7 +131,7 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	}
 	b, errs := board.FromCircuit(c)
 	b.Merge(opt.Board, errs)
-	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts, roles: map[string][2]string{}}
+	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts}
 	a.notes.Merge(errs)
 	if a.parts == nil {
 		lib, err := rulesets.Parts()
@@ -249,10 +248,6 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 		}
 	}
 	t.Rating = a.ratings(el, t.Model, t.Polarity)
-	t.Role, t.RoleFrom = a.roleOf(el, 0)
-	if t.RoleFrom == "default" {
-		a.notes.Notef(el.Pos, "%s: role taken as linear (no annotation and no PULSE, PWL or SIN drive found); write *@device %s role=switch if it switches", el.Name, el.Name)
-	}
 	t.Bleed = a.g.bleed(el)
 	t.StiffDrive = a.g.stiff(el)
 	for _, d := range a.g.drives(el).sources {

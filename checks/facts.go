@@ -18,12 +18,6 @@ import (
 	"github.com/biaslint/biaslint/netlist"
 )
 
-// Role values.
-const (
-	RoleSwitch = "switch"
-	RoleLinear = "linear"
-)
-
 // Ratings are the absolute-maximum and characteristic values of a part, as
 // the parts library or a *@part annotation gives them. Missing values are NaN.
 type Ratings struct {
@@ -92,10 +86,17 @@ type Transistor struct {
 	Base      string `expr:"base"`
 	Emitter   string `expr:"emitter"`
 
-	// Role is RoleSwitch or RoleLinear; RoleFrom says why ("annotation",
-	// "pulse drive", "pwl drive", "sine drive", "ac drive", "default").
-	Role     string `expr:"role"`
-	RoleFrom string `expr:"role_from"`
+	// Role is the transistor's role (RoleSwitch, RoleCommonEmitter, ...,
+	// see roles.go), decided from the topology and the nominal solve;
+	// RoleFrom says how ("annotation", "topology" or "default") and
+	// RoleReason why, in plain words ("emitter at ground, base fed by R3
+	// from V2 (DC 3.3 V), collector load K1"). Linear is true for the
+	// roles that work in forward-active when biased as designed (every
+	// role but switch, push-pull, clamp and diode).
+	Role       string `expr:"role"`
+	RoleFrom   string `expr:"role_from"`
+	RoleReason string `expr:"role_reason"`
+	Linear     bool   `expr:"linear"`
 
 	// Operating point, forward-referenced (see the file comment).
 	VBE float64 `expr:"vbe"`

@@ -162,14 +162,13 @@ type worker struct {
 	hasBF  []bool
 	sys    *solve.System
 	swing  *solve.System
-	lu     *solve.DenseLU
 	// dirty lists the values changed on sys and swing.
 	dirty, swingDirty []string
 	err               error
 }
 
 func newWorker(a *analyzer) *worker {
-	w := &worker{a: a, lu: solve.NewDenseLU()}
+	w := &worker{a: a}
 	c := *a.c
 	c.Models = make(map[string]*netlist.Model, len(a.c.Models)+len(a.bjts))
 	for k, m := range a.c.Models {
@@ -284,7 +283,7 @@ func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
 	} else if err := w.apply(sys, &w.dirty, sp.set); err != nil {
 		return caseOut{err: err}
 	}
-	out.res, out.th, out.err = w.a.solveThermal(sys, w.lu, sp, guess)
+	out.res, out.th, out.err = w.a.solveThermal(sys, sp, guess)
 	if sp.open != nil {
 		if oc == nil {
 			oc = w.circ // a current source opened by setting it to zero
@@ -423,6 +422,7 @@ func (a *analyzer) run() (*Analysis, error) {
 			}
 		}
 	}
+	a.assignRoles(outs[0].res)
 	groups := []int{0}
 	if o.Scenarios || o.Corners {
 		levels := a.levelScenarios()

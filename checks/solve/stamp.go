@@ -94,6 +94,7 @@ func (w *work) stampLinear(k sink) {
 			branch(k, n[0], n[1], el.br)
 		case 'V':
 			branch(k, n[0], n[1], el.br)
+			k.a(el.br, el.br, 0) // the place of an opened source's leak
 			k.b(el.br, w.lambda*el.value)
 		case 'I':
 			// SPICE: the source current flows from n+ through the source to n−.
@@ -138,14 +139,14 @@ func (w *work) stampLinear(k sink) {
 			}
 		}
 	}
-	if w.gshunt > 0 {
-		for i := 0; i < w.s.nNodes; i++ {
-			k.a(i, i, w.gshunt)
-			if w.pull != nil {
-				// A pseudo-transient step: the shunt pulls towards the
-				// previous state (see stability.go).
-				k.b(i, w.gshunt*w.pull[i])
-			}
+	// The shunts are stamped (as zeros) in every solve, so that the
+	// matrix pattern does not depend on whether GMIN stepping ran.
+	for i := 0; i < w.s.nNodes; i++ {
+		k.a(i, i, w.gshunt)
+		if w.pull != nil && w.gshunt > 0 {
+			// A pseudo-transient step: the shunt pulls towards the
+			// previous state (see stability.go).
+			k.b(i, w.gshunt*w.pull[i])
 		}
 	}
 }
