@@ -423,6 +423,9 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 	}
 	a.assignRoles(outs[0].res)
+	if multi != nil {
+		a.stateRoles(outs, multi.Cases)
+	}
 	groups := []int{0}
 	if o.Scenarios || o.Corners {
 		levels := a.levelScenarios()

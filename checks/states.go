@@ -114,3 +114,40 @@ func (a *analyzer) statesNote(unstable *solve.Result, states []*solve.Result) st
 
 // stateName names the case of stable state i+1 (i ≥ 1).
 func stateName(i int) string { return fmt.Sprintf("stable state %d", i+1) }
+
+// stateRoles makes a switch of every transistor that conducts in one
+// stable state and is off in another (the transistors of a latch switch
+// between its states, whatever their topology says), unless an annotation
+// sets its role.
+func (a *analyzer) stateRoles(outs []caseOut, cases []int) {
+	if len(cases) < 2 {
+		return
+	}
+	for j, el := range a.bjts {
+		t := &a.tmpl[j]
+		if t.RoleFrom == "annotation" {
+			continue
+		}
+		on, off := false, false
+		for _, ci := range cases {
+			for _, op := range outs[ci].res.BJTs {
+				if netlist.Key(op.Name) != netlist.Key(el.Name) {
+					continue
+				}
+				s := 1.0
+				if op.Polarity == "pnp" {
+					s = -1
+				}
+				if s*op.IC > conductingIC {
+					on = true
+				} else {
+					off = true
+				}
+			}
+		}
+		if on && off {
+			t.Role, t.RoleFrom, t.Linear = RoleSwitch, "states", false
+			t.RoleReason = "conducts in one stable state of a circuit with several and is off in another"
+		}
+	}
+}

@@ -107,3 +107,20 @@ Q1 c b e N
 		t.Errorf("states %+v on a common-emitter stage", a.States)
 	}
 }
+
+// Without annotations the latch's transistors are switches: each conducts
+// in one stable state and is off in the other.
+func TestBistableRoles(t *testing.T) {
+	src := strings.ReplaceAll(strings.ReplaceAll(latchNetlist, "*@device Q1 role=switch\n", ""), "*@device Q2 role=switch\n", "")
+	a := analyzeWith(t, src, full)
+	for _, name := range []string{"Q1", "Q2"} {
+		if tr := q(&a.Cases[0], name); tr.Role != "switch" || tr.RoleFrom != "states" {
+			t.Errorf("%s: role %s from %s (%s); want a switch from the states", name, tr.Role, tr.RoleFrom, tr.RoleReason)
+		}
+	}
+	for _, rule := range []string{"saturated-linear-stage", "cutoff-linear-stage", "no-emitter-degeneration"} {
+		if fs := findings(t, a, rule); len(fs) != 0 {
+			t.Errorf("%s on a latch: %s", rule, fs[0].Message)
+		}
+	}
+}
