@@ -44,9 +44,10 @@ import (
 )
 
 // MaxStabilityUnknowns bounds the systems whose stability is tested: the
-// test factors dense n×n matrices (a few for a stable point, about a
-// hundred more for an unstable one).
-const MaxStabilityUnknowns = 1000
+// test factors dense n×n matrices (two LU factorisations for a stable
+// point; for an unstable one also an eigendecomposition, a few seconds at
+// this size on the 2-core reference machine).
+const MaxStabilityUnknowns = 600
 
 // MethodTransient names a stable state reached by following the
 // dynamics from an unstable operating point.
