@@ -116,6 +116,9 @@ type analyzer struct {
 	// min" and "hfe max" corners (0 where the corner does not apply).
 	hfeFactor [][2]float64
 	pool      *pool
+	// multistable is set once the nominal solution was found unstable:
+	// later cases are then tested too (see settleCases).
+	multistable bool
 	// ratingNoted marks the models (by key) whose combined ratings have
 	// been noted.
 	ratingNoted map[string]bool

@@ -19,6 +19,7 @@ package checks
 import (
 	"math"
 	"runtime"
+	"strings"
 	"sync"
 
 	"github.com/biaslint/biaslint/checks/solve"
@@ -360,7 +361,22 @@ func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error
 			return caseError(&specs[i], outs[i].err)
 		}
 	}
-	return nil
+	if !a.multistable {
+		return nil
+	}
+	moved, err := a.settleCases(specs, outs, idx)
+	if err != nil || len(moved) == 0 {
+		return err
+	}
+	var names []string
+	for _, i := range moved {
+		names = append(names, rulesCaseName(&specs[i]))
+	}
+	a.notes.Notef(netlist.Pos{File: a.c.File, Line: 1, Col: 1}, "%d cases first solved to an unstable balance and use a stable state instead: %s",
+		len(moved), strings.Join(names, ", "))
+	a.multistable = false // the re-solve is judged as it lands
+	defer func() { a.multistable = true }()
+	return a.solveSpecs(specs, outs, moved)
 }
 
 // caseError names the case an error came from.
@@ -426,6 +442,7 @@ func (a *analyzer) run() (*Analysis, error) {
 	if multi != nil {
 		a.stateRoles(outs, multi.Cases)
 	}
+	a.multistable = multi != nil
 	groups := []int{0}
 	if o.Scenarios || o.Corners {
 		levels := a.levelScenarios()

@@ -44,6 +44,11 @@ func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *s
 	if err != nil {
 		return nil, nil, err
 	}
+	for _, x := range sp.set {
+		if err := sys.SetValue(x.key, x.v); err != nil {
+			return nil, nil, err
+		}
+	}
 	temps := map[string]float64{}
 	for _, op := range out.res.BJTs {
 		temps[netlist.Key(op.Name)] = op.Temp
@@ -150,4 +155,30 @@ func (a *analyzer) stateRoles(outs []caseOut, cases []int) {
 			t.RoleReason = "conducts in one stable state of a circuit with several and is off in another"
 		}
 	}
+}
+
+// settleCases re-solves, from a stable state, every case of idx that
+// landed on an unstable solution, in a circuit already found to have
+// several stable states: a drive level or a corner can tip a latch to a
+// balance of its own. Cases that change the circuit's structure or models
+// (opened drives, swing points, hFE corners) are left as solved. It
+// returns the cases it moved.
+func (a *analyzer) settleCases(specs []caseSpec, outs []caseOut, idx []int) ([]int, error) {
+	var moved []int
+	for _, i := range idx {
+		sp := &specs[i]
+		if outs[i].err != nil || outs[i].res == nil || sp.open != nil || sp.swing != nil || sp.hfe != 0 || sp.kind == KindState || i == 0 {
+			continue
+		}
+		states, unstable, err := a.stableStates(sp, &outs[i])
+		if err != nil {
+			return nil, err
+		}
+		if unstable == nil || len(states) == 0 {
+			continue
+		}
+		sp.start = states[0]
+		moved = append(moved, i)
+	}
+	return moved, nil
 }
