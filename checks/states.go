@@ -135,6 +135,9 @@ func (a *analyzer) stateRoles(outs []caseOut, cases []int) {
 		}
 		on, off := false, false
 		for _, ci := range cases {
+			if outs[ci].res == nil {
+				continue // a state case that did not solve
+			}
 			for _, op := range outs[ci].res.BJTs {
 				if netlist.Key(op.Name) != netlist.Key(el.Name) {
 					continue
