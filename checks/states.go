@@ -40,6 +40,9 @@ type States struct {
 // stable states to use instead (nil when it is stable or cannot be
 // tested), with the unstable point.
 func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *solve.Result, error) {
+	if out.res == nil || !out.res.Physical() {
+		return nil, nil, nil // no dynamics to speak of at a point the equations do not describe
+	}
 	sys, err := solve.Prepare(a.c)
 	if err != nil {
 		return nil, nil, err

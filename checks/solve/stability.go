@@ -211,8 +211,12 @@ func (s *System) StableStates(opt Options, st Stability) ([]*Result, error) {
 			continue
 		}
 		w.evaluate(x, true, false)
+		r := s.verified(w, x, MethodTransient)
+		if !r.Physical() {
+			continue // a state only the continued exponentials allow
+		}
 		xs = append(xs, append([]float64(nil), x...))
-		out = append(out, s.result(w, x, MethodTransient))
+		out = append(out, r)
 	}
 	return out, nil
 }
