@@ -81,7 +81,7 @@ func describeState(r *solve.Result) string {
 			parts = append(parts, fmt.Sprintf("%d more", len(r.BJTs)-8))
 			break
 		}
-		parts = append(parts, fmt.Sprintf("%s %s IC %s", op.Name, op.Region, units.Format(op.IC, "A")))
+		parts = append(parts, fmt.Sprintf("%s %s IC %s VCE %s", op.Name, op.Region, units.Format(op.IC, "A"), units.Format(op.VCE, "V")))
 	}
 	return strings.Join(parts, ", ")
 }
