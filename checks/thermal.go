@@ -133,6 +133,9 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 	// holds their unrelaxed step there.
 	capped := make([]bool, n)
 	d := make([]float64, n)
+	// tAt is the temperature d was taken at; d1, t1 the evaluation before
+	// (for a secant loop gain where the measured one fails).
+	tAt, d1, t1 := make([]float64, n), make([]float64, n), make([]float64, n)
 	settled, stopped := false, false
 	var prevT []float64
 	for it := 0; it < thermalMaxIter && !settled && !stopped; it++ {
@@ -166,7 +169,10 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 			if math.IsNaN(rth[j]) {
 				continue
 			}
-			d[j] = sp.temp + p[j]*rth[j] - T[j]
+			if it > 0 {
+				d1[j], t1[j] = d[j], tAt[j]
+			}
+			d[j], tAt[j] = sp.temp+p[j]*rth[j]-T[j], T[j]
 			dj := d[j]
 			if it > 0 && step[j] != 0 {
 				if dj*step[j] < 0 {
@@ -192,6 +198,11 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 	out.unsettled = !settled && !stopped
 	a.loopGains(sys, base, T, res, rth, out.gain, temps, power)
 	for j := range a.bjts {
+		if math.IsNaN(out.gain[j]) && capped[j] && tAt[j] != t1[j] {
+			// The circuit no longer solves at the last temperatures: the
+			// secant of the last two steps, g = 1 + Δd/ΔT.
+			out.gain[j] = 1 + (d[j]-d1[j])/(tAt[j]-t1[j])
+		}
 		g := out.gain[j]
 		switch {
 		case math.IsNaN(rth[j]) || rth[j] == 0:

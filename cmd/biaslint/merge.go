@@ -484,6 +484,15 @@ func mergeSARIF(w io.Writer, shards []*shardReport) (map[string]int, error) {
 	if err := run.set("results", results); err != nil {
 		return nil, err
 	}
+	if _, ok := run.vals["invocations"]; ok {
+		inv, err := mergeInvocations(shards)
+		if err != nil {
+			return nil, err
+		}
+		if err := run.set("invocations", []*object{inv}); err != nil {
+			return nil, err
+		}
+	}
 	out := &object{keys: append([]string(nil), top.keys...), vals: map[string]json.RawMessage{}}
 	for k, v := range top.vals {
 		out.vals[k] = v
@@ -492,4 +501,79 @@ func mergeSARIF(w io.Writer, shards []*shardReport) (map[string]int, error) {
 		return nil, err
 	}
 	return counts, writeIndented(w, out)
+}
+
+// mergeInvocations joins the shards' invocations into the one an unsharded
+// run writes: successful only when every shard was, the highest exit code
+// (2 input errors, 1 findings at --fail-on, 0 clean), and the
+// tool-execution notifications ordered as one run orders them: every
+// file's input notes in path order, then every file's status.
+func mergeInvocations(shards []*shardReport) (*object, error) {
+	var inv *object
+	success, exit := true, 0
+	type note struct {
+		part, path string
+		raw        json.RawMessage
+	}
+	var notes []note
+	for _, sh := range shards {
+		rs, _ := sh.top.array("runs")
+		r, err := readObject(rs[0])
+		if err != nil {
+			return nil, err
+		}
+		invs, err := r.array("invocations")
+		if err != nil || len(invs) != 1 {
+			return nil, fmt.Errorf("%s: want one invocation", sh.name)
+		}
+		o, err := readObject(invs[0])
+		if err != nil {
+			return nil, err
+		}
+		if inv == nil || sh == first(shards) {
+			inv = o
+		}
+		var ok bool
+		var code int
+		if json.Unmarshal(o.vals["executionSuccessful"], &ok) != nil || json.Unmarshal(o.vals["exitCode"], &code) != nil {
+			return nil, fmt.Errorf("%s: invocation without executionSuccessful or exitCode", sh.name)
+		}
+		success = success && ok
+		exit = max(exit, code)
+		if _, has := o.vals["toolExecutionNotifications"]; has {
+			ns, err := o.array("toolExecutionNotifications")
+			if err != nil {
+				return nil, fmt.Errorf("%s: toolExecutionNotifications: %v", sh.name, err)
+			}
+			for _, n := range ns {
+				notes = append(notes, note{str(n, "properties", "part"), str(n, "properties", "netlist"), n})
+			}
+		}
+	}
+	sort.SliceStable(notes, func(i, j int) bool {
+		if notes[i].part != notes[j].part {
+			return notes[i].part == "input"
+		}
+		return notes[i].path < notes[j].path
+	})
+	out := &object{keys: append([]string(nil), inv.keys...), vals: map[string]json.RawMessage{}}
+	for k, v := range inv.vals {
+		out.vals[k] = v
+	}
+	if err := out.set("executionSuccessful", success); err != nil {
+		return nil, err
+	}
+	if err := out.set("exitCode", exit); err != nil {
+		return nil, err
+	}
+	if len(notes) > 0 {
+		raws := make([]json.RawMessage, len(notes))
+		for i, n := range notes {
+			raws[i] = n.raw
+		}
+		if err := out.set("toolExecutionNotifications", raws); err != nil {
+			return nil, err
+		}
+	}
+	return out, nil
 }
