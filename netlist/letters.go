@@ -108,3 +108,28 @@ func (f *flattener) letters(k Kind, elem string, v Value) {
 	say("%s: the letters %q after %s are not a unit biaslint knows and are ignored: the value is read as %s",
 		elem, r.Unit, num+r.Suffix, units.Format(r.Value, unitSymbols[k]))
 }
+
+// modelUnits are the unit words a model parameter's value may carry after
+// its number and suffix (lower case): amperes, volts, ohms, farads,
+// seconds, electron-volts, kelvin and degrees.
+var modelUnits = map[string]bool{"a": true, "v": true, "ohm": true, "ohms": true, "f": true, "s": true,
+	"ev": true, "k": true, "c": true, "hz": true, "w": true}
+
+// paramLetters alerts when a model parameter's value carries letters that
+// are no unit: "BF=2OO" (letter O for zero) is read as BF = 2.
+func (f *flattener) paramLetters(model, param string, v Value) {
+	t := strings.TrimSpace(v.Text)
+	if v.Braced || !looksNumeric(t) || f.alerted[v.Pos] {
+		return
+	}
+	r, err := units.Read(t)
+	if err != nil || r.RKM || r.Unit == "" || modelUnits[strings.ToLower(r.Unit)] {
+		return
+	}
+	if f.alerted == nil {
+		f.alerted = map[Pos]bool{}
+	}
+	f.alerted[v.Pos] = true
+	f.errs.Alertf(v.Pos, "model %s: %s=%s: the letters %q are not a unit and are ignored: %s is read as %s",
+		model, param, t, r.Unit, param, units.Format(r.Value, ""))
+}
