@@ -11,6 +11,8 @@ import (
 // never in silence: each gets a located alert (a note every report shows).
 //
 //   - M is milli, not mega: "R1 vcc b 1M" is one milliohm; 1MEG is meant.
+//     (A lower-case "10m", as a current-sense shunt may be written on
+//     purpose, is said without assuming the slip.)
 //   - Letters after the number and suffix are ignored as a unit: "4.7x" is
 //     4.7 with the x dropped.
 //   - A unit that belongs to another kind of element: "1F" on a resistor
@@ -77,8 +79,13 @@ func (f *flattener) letters(k Kind, elem string, v Value) {
 	num := t[:len(t)-len(r.Suffix)-len(r.Unit)]
 	suf := strings.ToLower(r.Suffix)
 	switch {
-	case suf == "m" && k == 'R' && r.Unit == "":
+	case r.Suffix == "M" && k == 'R' && r.Unit == "":
 		say("%s: %s is %s milliohm (SPICE reads M as milli); write %sMEG for %s megohm", elem, t, num, num, num)
+		return
+	case suf == "m" && k == 'R' && r.Unit == "":
+		// A lower-case m is also how a current-sense shunt is written on
+		// purpose: said without assuming the slip.
+		say("%s: %s is %s milliohm (SPICE reads m as milli); if a megohm is meant, write %sMEG", elem, t, num, num)
 		return
 	case suf == "f" && r.Unit == "" && k != 'C':
 		say("%s: %s is %s femto%s (F is the femto suffix); farads do not fit a %s", elem, t, num, unit, kindName(k))
