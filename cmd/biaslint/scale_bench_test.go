@@ -6,8 +6,8 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
-	"time"
 	"testing"
+	"time"
 )
 
 // stagesNetlist writes a board of n divider-biased common-emitter stages
