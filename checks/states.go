@@ -36,9 +36,9 @@ type States struct {
 	Message string
 }
 
-// stableStates tests the nominal solution for stability and returns the
-// stable states to use instead (nil when it is stable or cannot be
-// tested), with the unstable point.
+// stableStates tests the solution of case sp for stability and returns the
+// stable states to use instead, with the unstable point (both nil when the
+// point is stable or cannot be tested; states nil when none was found).
 func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *solve.Result, error) {
 	if out.res == nil || !out.res.Physical() {
 		return nil, nil, nil // no dynamics to speak of at a point the equations do not describe
@@ -72,7 +72,7 @@ func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *s
 	}
 	states, err := sys.StableStates(opt, st)
 	if err != nil {
-		return nil, nil, err
+		states = nil // the point is still unstable; the note says no state was found
 	}
 	return states, out.res, nil
 }
