@@ -53,3 +53,39 @@ Q1 c b e N1
 			nom.Unphysical, q.Region, q.IC, len(nom.Resistors))
 	}
 }
+
+// A case without an operating point is kept without subjects and says why;
+// the nominal case and every other case are judged.
+func TestUnjudgedCase(t *testing.T) {
+	c := circuit(t, `pulse typed as 1e15 V
+VCC vcc 0 12
+VDRV drv 0 PULSE(0 1e15 0 1n 1n 1m 2m)
+RX drv x 1e-15
+DX x 0 DX
+RB drv b 10k
+Q1 c b 0 N1
+RC vcc c 1k
+.model DX D (IS=1e-14 N=0.01)
+.model N1 NPN (IS=1e-14 BF=200 VAF=100)
+.end
+`)
+	a, err := Analyze(c, Options{Scenarios: true, Corners: true})
+	if err != nil {
+		t.Fatalf("Analyze: %v", err)
+	}
+	judged, unjudged := 0, 0
+	for _, cs := range a.Cases {
+		switch {
+		case cs.Unjudged != "":
+			unjudged++
+			if len(cs.Transistors) > 0 || cs.Solution != nil || !strings.Contains(cs.Unjudged, "tried") {
+				t.Errorf("case %s/%s: unjudged %q with %d transistors", cs.Scenario, cs.Corner, cs.Unjudged, len(cs.Transistors))
+			}
+		default:
+			judged++
+		}
+	}
+	if a.Cases[0].Unjudged != "" || unjudged == 0 || judged < 2 {
+		t.Errorf("%d cases judged, %d unjudged (nominal %q); want the nominal and others judged, some not", judged, unjudged, a.Cases[0].Unjudged)
+	}
+}
