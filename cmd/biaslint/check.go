@@ -68,6 +68,7 @@ func checkCommand() *cli.Command {
 			&cli.IntFlag{Name: "monte-carlo", Usage: "add `N` Monte Carlo runs drawing every resistor and supply within its tolerance"},
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
+			shardFlag,
 			configFlag, noConfigFlag,
 		},
 		Before: applyProjectFile,
@@ -169,6 +170,8 @@ type checkRun struct {
 	// and parsed against each netlist.
 	boardPath string
 	board     []byte
+	// shardI of shardN is the part of the inputs checked (--shard).
+	shardI, shardN int
 }
 
 func newCheckRun(c *cli.Context) (*checkRun, error) {
@@ -190,6 +193,9 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 		return nil, err
 	}
 	run := &checkRun{set: set}
+	if run.shardI, run.shardN, err = parseShard(c.String("shard")); err != nil {
+		return nil, err
+	}
 	if run.boardPath = c.String("board"); run.boardPath != "" {
 		if run.board, err = board.ReadFile(run.boardPath); err != nil {
 			return nil, badInput(err)
