@@ -19,10 +19,11 @@ import (
 // transistor's terminal currents at fixed junction voltages when it is
 // evaluated at T + step, and ΔIC, ΔIB that change plus the Jacobian's
 // response to Δx: the derivative dP/dT by the direct method of
-// sensitivity analysis (as in SPICE's .sens). All transistors share one
-// factorisation of J, so
-// the cost is one assembly and factorisation plus one pair of triangular
-// solves per transistor, instead of a Newton solve each.
+// sensitivity analysis (differentiating the converged circuit equations).
+// All transistors share one factorisation of J, so the cost is one
+// assembly and factorisation plus one sparse pair of triangular solves per
+// transistor (SparseLU.SolveSparse: only what the change reaches), instead
+// of a Newton solve each.
 //
 // The solution's own work space is used, internal nodes included.
 func (s *System) SolveGains(opt Options, step float64) (*Result, []float64, error) {
@@ -62,7 +63,7 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 		// The device currents enter the KCL rows as +IC (c), +IB (b) and
 		// −(IC + IB) (e); the step moves them by Δf, so J·Δx = −Δf.
 		c, bb, e := el.inner[0], el.inner[1], el.inner[2]
-		rows := rows[:0]
+		rows = rows[:0]
 		add := func(i int, v float64) {
 			if i >= 0 {
 				b[i] += v
