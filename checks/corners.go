@@ -374,15 +374,21 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			active = append(active, gi)
 		}
 	}
-	// Job a*(len(rs)+1)+0 is active group a's tight base solve; +1+i
-	// moves resistor i.
+	// Slot gi*(len(rs)+1)+0 holds group gi's tight base solve, +1+i the
+	// group with resistor i moved by sensitivityStep of its value, to
+	// first order (solve.System.SolveSensitivities: one solve and one
+	// sparse triangular solve pair per resistor, not a Newton solve each).
 	per := len(rs) + 1
 	ic := make([][]float64, len(groups)*per)
 	beta := make([][]float64, len(groups)*per)
 	errs := make([]error, len(groups)*per)
-	a.pool.each(len(active)*per, func(w *worker, k int) {
-		gi, i := active[k/per], k%per-1
-		k = gi*per + i + 1
+	names := make([]string, len(rs))
+	for i, r := range rs {
+		names[i] = r.Name
+	}
+	a.pool.each(len(active), func(w *worker, k int) {
+		gi := active[k]
+		k = gi * per
 		sp := specs[groups[gi]]
 		if w.err != nil {
 			errs[k] = w.err
@@ -393,12 +399,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			return
 		}
 		w.setHFE(0)
-		set := append([]setting(nil), sp.set...)
-		if i >= 0 {
-			key := netlist.Key(rs[i].Name)
-			set = setKey(set, key, rs[i].Value*(1+sensitivityStep))
-		}
-		if err := w.apply(w.sys, &w.dirty, set); err != nil {
+		if err := w.apply(w.sys, &w.dirty, sp.set); err != nil {
 			errs[k] = err
 			return
 		}
@@ -407,20 +408,33 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			held[netlist.Key(op.Name)] = op.Temp
 		}
 		o := tightOptions(solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: held, Guess: outs[groups[gi]].res})
-		r, err := w.sys.Solve(o)
+		r, sens, err := w.sys.SolveSensitivities(o, names)
 		if err != nil {
 			errs[k] = err
 			return
 		}
+		ic0, ib0 := make([]float64, n), make([]float64, n)
+		sg := make([]float64, n)
 		ic[k], beta[k] = make([]float64, n), make([]float64, n)
 		for _, op := range r.BJTs {
 			j := a.bjtIdx[netlist.Key(op.Name)]
-			s := 1.0
+			sg[j] = 1
 			if op.Polarity == "pnp" {
-				s = -1
+				sg[j] = -1
 			}
-			ic[k][j] = s * op.IC
+			ic0[j], ib0[j] = op.IC, op.IB
+			ic[k][j] = sg[j] * op.IC
 			beta[k][j] = op.IC / op.IB
+		}
+		for i := range rs {
+			ic[k+1+i] = append([]float64(nil), ic[k]...)
+			beta[k+1+i] = append([]float64(nil), beta[k]...)
+			for _, d := range sens[i] {
+				j := a.bjtIdx[netlist.Key(r.BJTs[d.BJT].Name)]
+				c, bb := ic0[j]+d.DIC*sensitivityStep, ib0[j]+d.DIB*sensitivityStep
+				ic[k+1+i][j] = sg[j] * c
+				beta[k+1+i][j] = c / bb
+			}
 		}
 	})
 	failed := make([]bool, len(groups))
