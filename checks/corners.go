@@ -17,8 +17,9 @@ package checks
 //     that is not a drive) at its value times 1 -/+ its tolerance.
 //   - "resistors worst Q1 IC-high" and the like: extreme-value analysis.
 //     First-order sensitivities of each transistor's IC (and, for a
-//     switch, its forced beta IC/IB) to each resistor are taken by solving
-//     with the resistor moved by sensitivityStep of its value; each
+//     switch, its forced beta IC/IB) to each resistor are taken by the
+//     direct method on the factorisation of the group's solution (as if
+//     the resistor moved by sensitivityStep of its value); each
 //     resistor then goes to the end of its tolerance that moves the
 //     objective the wrong way, and the corner is solved (the verification
 //     solve). Objectives: IC high for every conducting transistor, IC low
