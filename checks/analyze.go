@@ -134,6 +134,9 @@ type analyzer struct {
 	rnet *Localizer
 	// sys is the nominal circuit prepared once (structure checked).
 	sys *solve.System
+	// multistable is set once the nominal solution was found unstable:
+	// later cases are then tested too (see settleCases).
+	multistable bool
 	// ratingNoted marks the models (by key) whose combined ratings have
 	// been noted.
 	ratingNoted map[string]bool
@@ -226,6 +229,14 @@ type OpPoint struct {
 	// from (as Analysis.Temp, Analysis.TempFrom).
 	Temp     float64
 	TempFrom string
+	// NotPhysical holds the flat names of the transistors whose point is
+	// not physical (every one when the node voltages ran away): their
+	// currents, power and temperature have no meaning.
+	NotPhysical map[string]bool
+	// States is not nil when the first DC solution found was unstable (as
+	// Analysis.States): Solution is then the first stable state, and
+	// States.Cases counts the stable states found.
+	States *States
 }
 
 // OperatingPoint solves only the nominal case of c, as Analyze would
@@ -247,11 +258,32 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 	if err != nil {
 		return nil, err
 	}
-	tj := map[string]float64{}
+	// An unstable root is never the operating point: start again from the
+	// first stable state, as Analyze does.
+	var multi *States
+	if states, unstable, err := a.stableStates(&sp, &caseOut{res: res, th: th}); err != nil {
+		return nil, err
+	} else if unstable != nil {
+		multi = &States{Unstable: unstable, Cases: []int{0}, Message: a.statesNote(unstable, states)}
+		for i := 1; i < len(states); i++ {
+			multi.Cases = append(multi.Cases, i)
+		}
+		if len(states) > 0 {
+			sp.start = states[0]
+			if res, th, err = a.solveThermal(a.sys, &sp, states[0]); err != nil {
+				return nil, err
+			}
+		}
+	}
+	tj, notPhys := map[string]float64{}, map[string]bool{}
+	bad, whole := unphysicalDevices(c, res)
 	for _, op := range res.BJTs {
 		j, ok := a.bjtIdx[netlist.Key(op.Name)]
 		if !ok {
 			continue
+		}
+		if whole || bad[netlist.Key(op.Name)] {
+			notPhys[op.Name] = true
 		}
 		r := a.tmpl[j].Rating
 		t := sp.ambient + op.Power*r.RthJA
@@ -260,7 +292,7 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 		}
 		tj[op.Name] = t
 	}
-	return &OpPoint{Solution: res, Tj: tj, Temp: a.temp, TempFrom: a.tempFrom}, nil
+	return &OpPoint{Solution: res, Tj: tj, Temp: a.temp, TempFrom: a.tempFrom, NotPhysical: notPhys, States: multi}, nil
 }
 
 // prepare records the nominal values and the nets' first positions.

@@ -166,15 +166,17 @@ type Sensitivity struct {
 // J·Δx = −∂F/∂ln R, whose right-hand side is the resistor's current at
 // its two nodes, one sparse triangular solve pair each. Transistors a
 // resistor does not reach are left out (their change is zero to first
-// order). A name that is not a resistor of non-zero value is an error.
-func (s *System) SolveSensitivities(opt Options, names []string) (*Result, [][]Sensitivity, error) {
+// order). dv[i] holds, by node key, the node voltages resistor i moves
+// (V per unit d ln R; the others are unchanged to first order). A name
+// that is not a resistor of non-zero value is an error.
+func (s *System) SolveSensitivities(opt Options, names []string) (r *Result, sens [][]Sensitivity, dv []map[string]float64, err error) {
 	r, w, x, err := s.solve(opt)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
 	w.evaluate(x, true, false)
 	if err := w.assemble(x); err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
 	// The transistors at each unknown (their internal terminals).
 	at := make(map[int][]int, 3*len(s.bjts))
@@ -186,6 +188,7 @@ func (s *System) SolveSensitivities(opt Options, names []string) (*Result, [][]S
 		}
 	}
 	out := make([][]Sensitivity, len(names))
+	dv = make([]map[string]float64, len(names))
 	dx := make([]float64, s.n)
 	b := make([]float64, s.n)
 	seen := make([]int, len(s.bjts))
@@ -193,7 +196,7 @@ func (s *System) SolveSensitivities(opt Options, names []string) (*Result, [][]S
 	for i, name := range names {
 		el := s.byKey[netlist.Key(name)]
 		if el == nil || el.kind != 'R' || el.short {
-			return nil, nil, fmt.Errorf("sensitivities: %s is not a resistor of non-zero value", name)
+			return nil, nil, nil, fmt.Errorf("sensitivities: %s is not a resistor of non-zero value", name)
 		}
 		p, n := el.nodes[0], el.nodes[1]
 		cur := (volt(x, p) - volt(x, n)) / el.value
@@ -207,7 +210,13 @@ func (s *System) SolveSensitivities(opt Options, names []string) (*Result, [][]S
 			rows = append(rows, n)
 		}
 		if err := solveFew(w.lin, dx, b, rows, &set); err != nil {
-			return nil, nil, err
+			return nil, nil, nil, err
+		}
+		dv[i] = map[string]float64{}
+		for _, u := range set {
+			if u < s.nExt && dx[u] != 0 {
+				dv[i][netlist.Key(s.nodeNames[u])] = dx[u]
+			}
 		}
 		for _, u := range set {
 			for _, j := range at[u] {
@@ -228,5 +237,5 @@ func (s *System) SolveSensitivities(opt Options, names []string) (*Result, [][]S
 			dx[u] = 0
 		}
 	}
-	return r, out, nil
+	return r, out, dv, nil
 }

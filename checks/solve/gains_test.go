@@ -104,7 +104,7 @@ func TestSolveSensitivitiesMatchResolving(t *testing.T) {
 			}
 		}
 		o := Options{RelTol: 1e-11, VNTol: 1e-14}
-		r0, sens, err := s.SolveSensitivities(o, names)
+		r0, sens, dv, err := s.SolveSensitivities(o, names)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -123,6 +123,12 @@ func TestSolveSensitivitiesMatchResolving(t *testing.T) {
 			}
 			if err := s.SetValue(name, v); err != nil {
 				t.Fatal(err)
+			}
+			for k, v := range r0.Voltage {
+				fd := (r1.Voltage[k] - v) / 1e-6
+				if d := math.Abs(dv[i][k] - fd); d > 5e-3*math.Abs(fd) && d > 1e-5*math.Abs(v)+1e-9 {
+					t.Errorf("%s, %s: dV(%s)/dlnR %.6g V, re-solving %.6g", f, name, k, dv[i][k], fd)
+				}
 			}
 			got := map[int]Sensitivity{}
 			for _, d := range sens[i] {
