@@ -35,6 +35,7 @@ func (s *System) SolveGains(opt Options, step float64) (*Result, []float64, erro
 		return nil, nil, err
 	}
 	g, err := s.powerGains(w, x, step)
+	s.release(w)
 	return r, g, err
 }
 
@@ -124,6 +125,7 @@ func (s *System) SolveResponse(opt Options, inject map[string]float64) (*Result,
 	for i, nm := range s.nodeNames {
 		out[netlist.Key(nm)] = dx[i]
 	}
+	s.release(w)
 	return r, out, nil
 }
 
@@ -237,5 +239,6 @@ func (s *System) SolveSensitivities(opt Options, names []string) (r *Result, sen
 			dx[u] = 0
 		}
 	}
+	s.release(w)
 	return r, out, dv, nil
 }
