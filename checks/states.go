@@ -43,12 +43,11 @@ func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *s
 	if out.res == nil || !out.res.Physical() {
 		return nil, nil, nil // no dynamics to speak of at a point the equations do not describe
 	}
-	if a.pool != nil && len(a.pool.workers) > 0 && a.pool.workers[0].sys != nil && a.pool.workers[0].sys.Size() > solve.MaxStabilityUnknowns {
-		w := a.pool.workers[0]
+	if a.sys != nil && a.sys.Size() > solve.MaxStabilityUnknowns {
 		if sp.kind == KindNominal && len(a.bjts) > 1 {
 			a.notes.Notef(netlist.Pos{File: a.c.File, Line: 1, Col: 1},
 				"the operating point was not tested for stability: the circuit has %d unknowns, more than the %d the test takes; if it has positive feedback, check that the point is a stable one",
-				w.sys.Size(), solve.MaxStabilityUnknowns)
+				a.sys.Size(), solve.MaxStabilityUnknowns)
 		}
 		return nil, nil, nil
 	}
