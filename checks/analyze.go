@@ -10,6 +10,7 @@ package checks
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/biaslint/biaslint/checks/board"
 	"github.com/biaslint/biaslint/checks/device"
@@ -131,6 +132,9 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	b.Merge(opt.Board, errs)
 	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts, roles: map[string][2]string{}}
 	a.notes.Merge(errs)
+	for _, p := range b.UnmatchedParts(c) {
+		a.notes.Warnf(p.Pos, "ratings for %s match no model in the circuit (%s); they are not used", p.Model, modelList(c))
+	}
 	if a.parts == nil {
 		lib, err := rulesets.Parts()
 		if err != nil {
@@ -176,6 +180,23 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	a.notes.Sort()
 	an.Notes = a.notes.List
 	return an, nil
+}
+
+// modelList names a circuit's BJT models for a message, at most a few.
+func modelList(c *netlist.Circuit) string {
+	var names []string
+	for _, k := range c.SortedModelKeys() {
+		if m := c.Models[k]; m.Type == netlist.NPN || m.Type == netlist.PNP {
+			names = append(names, m.Name)
+		}
+	}
+	switch {
+	case len(names) == 0:
+		return "it has no transistor models"
+	case len(names) > 6:
+		return fmt.Sprintf("its transistor models are %s and %d more", strings.Join(names[:6], ", "), len(names)-6)
+	}
+	return "its transistor models are " + strings.Join(names, ", ")
 }
 
 // prepare records the nominal values and the nets' first positions.
@@ -245,7 +266,7 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 				EG: p.EG, XTI: p.XTI, XTB: p.XTB}
 		}
 	}
-	t.Rating = a.ratings(el, t.Model, t.Polarity)
+	t.Rating = a.ratings(el, m, t.Polarity)
 	t.Role, t.RoleFrom = a.roleOf(el, 0)
 	if t.RoleFrom == "default" {
 		a.notes.Notef(el.Pos, "%s: role taken as linear (no annotation and no PULSE, PWL or SIN drive found); write *@device %s role=switch if it switches", el.Name, el.Name)
@@ -298,15 +319,20 @@ func DeratedPower(r Ratings, ta float64) float64 {
 	return math.Max(0, math.Min(r.Pd, (r.TjMax-ta)/r.RthJA))
 }
 
-// ratings merges a device's ratings: the library class its model matches
-// (else the generic class, with a note), overlaid by *@part values.
-func (a *analyzer) ratings(el *netlist.Element, model, polarity string) Ratings {
-	lib, ok := a.parts.Lookup(model, polarity)
-	part := a.board.Part(model)
+// ratings merges a device's ratings: the library entry its model matches
+// (see partEntry; else the generic class, with a note), overlaid by *@part
+// values.
+func (a *analyzer) ratings(el *netlist.Element, m *netlist.Model, polarity string) Ratings {
+	model := el.Model
+	if m != nil {
+		model = m.Name
+	}
+	lib, ok := a.partEntry(el, m, polarity)
+	part := a.board.PartFor(m)
 	if !ok {
 		lib, _ = a.parts.Generic()
 	}
-	r := Ratings{Part: lib.Class, Origin: "parts library: " + lib.Origin,
+	r := Ratings{Part: lib.Name, Origin: "parts library: " + lib.Origin,
 		VCEO: lib.VCEO, VCBO: lib.VCBO, VEBO: lib.VEBO, ICMax: lib.ICMax, Pd: lib.Pd,
 		TjMax: lib.TjMax, RthJA: lib.RthJA, HFEMin: lib.HFEMin, HFEMax: lib.HFEMax}
 	if lib.Class == "" {
@@ -336,6 +362,25 @@ func (a *analyzer) ratings(el *netlist.Element, model, polarity string) Ratings 
 		a.notes.Notef(el.Pos, "%s: model %s has no ratings in the parts library or a *@part annotation; checked against the conservative %q class", el.Name, model, lib.Class)
 	}
 	return r
+}
+
+// partEntry finds the parts-library entry of a transistor's model: by the
+// model's own name (a model defined inside a subcircuit keeps it), then by
+// its flat name. A model named for a registered type of the other polarity
+// is not given that type's ratings, and a note says so.
+func (a *analyzer) partEntry(el *netlist.Element, m *netlist.Model, polarity string) (rulesets.PartRatings, bool) {
+	if m == nil {
+		return rulesets.PartRatings{}, false
+	}
+	names := []string{m.Local, m.Name}
+	if p, ok := a.parts.Lookup(polarity, names...); ok {
+		return p, true
+	}
+	if p, ok := a.parts.LookupType(names...); ok {
+		a.notes.Notef(el.Pos, "%s: model %s is %s, but %s is an %s type; its ratings are not used", el.Name, m.Name,
+			strings.ToUpper(polarity), p.Name, strings.ToUpper(p.Polarity))
+	}
+	return rulesets.PartRatings{}, false
 }
 
 // resistor computes one resistor's facts with resistance r, Ohm.

@@ -51,6 +51,12 @@ type Element struct {
 	// Control is the flat name of the controlling voltage source of an F or
 	// H element.
 	Control string
+	// ValueText and ValuePos are the main value as written on the element
+	// line and where it starts, when it is a literal number (10k, 4k7,
+	// 2.2e3); ValueText is "" when the value is an expression, a parameter
+	// name or not written.
+	ValueText string
+	ValuePos  Pos
 	// Pos is where the element's line starts in its own file.
 	Pos Pos
 	// Chain lists the instances that placed the element, outermost first;
@@ -110,7 +116,11 @@ const (
 // Model is a .model card. Params holds every parameter given, keyed by the
 // canonical upper-case name (aliases such as VA for VAF already folded).
 type Model struct {
-	Name   string
+	// Name is the model's flat name: its own name, prefixed with the
+	// instance path when it is defined inside a subcircuit (X1.QMOD).
+	Name string
+	// Local is the name as written on the .model card (QMOD).
+	Local  string
 	Type   ModelType
 	Params map[string]float64
 	// Text holds parameters whose values are words rather than numbers

@@ -158,7 +158,11 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 	if err != nil {
 		return nil, badInput(err)
 	}
-	return &rulesets.Library{Entries: append(append([]rulesets.PartRatings(nil), user.Entries...), lib.Entries...)}, nil
+	all, err := rulesets.Combine(user, lib)
+	if err != nil {
+		return nil, badInput(err)
+	}
+	return all, nil
 }
 
 // checkRun is the shared part of check and report: read, analyse and judge

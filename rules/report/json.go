@@ -58,9 +58,14 @@ type jsonFile struct {
 // facts, SI units) and its hottest junction over every case. A value that
 // is not known (a missing rating) is left out.
 type jsonBJT struct {
-	Name      string   `json:"name"`
-	Model     string   `json:"model"`
-	Polarity  string   `json:"polarity"`
+	Name     string `json:"name"`
+	Model    string `json:"model"`
+	Polarity string `json:"polarity"`
+	// Part names the ratings' source (a library type or class, or a
+	// *@part annotation); Generic is true when the device was judged
+	// against the generic class.
+	Part      string   `json:"part"`
+	Generic   bool     `json:"generic,omitempty"`
 	Role      string   `json:"role"`
 	Region    string   `json:"region"`
 	VCE       *float64 `json:"vce,omitempty"`
@@ -88,7 +93,8 @@ func bjtsOf(an *checks.Analysis) []jsonBJT {
 	hottest := map[string]float64{}
 	for i, t := range an.Cases[0].Transistors {
 		at[t.Name] = i
-		out = append(out, jsonBJT{Name: t.Name, Model: t.Model, Polarity: t.Polarity, Role: t.Role, Region: t.Region,
+		out = append(out, jsonBJT{Name: t.Name, Model: t.Model, Polarity: t.Polarity, Part: t.Rating.Part, Generic: t.Rating.Generic,
+			Role: t.Role, Region: t.Region,
 			VCE: finite(t.VCE), IC: finite(t.IC), Power: finite(t.Power), Tj: finite(t.Tj)})
 	}
 	for _, c := range an.Cases {

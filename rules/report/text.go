@@ -120,6 +120,9 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				ew.printf("  %s\n", e.Error())
 			}
 		}
+		if line := genericLine(f); line != "" {
+			ew.printf("\n  %s\n", line)
+		}
 		if opt.Transistors {
 			writeTransistors(ew, f)
 		}
@@ -217,4 +220,51 @@ func writeTransistors(ew *errWriter, f *File) {
 	}
 	tw.Flush()
 	ew.printf("\n%s", b.String())
+}
+
+// maxGenericNamed is how many devices the generic-ratings line names
+// before it counts the rest.
+const maxGenericNamed = 8
+
+// genericLine names, in one line, the transistors of a file that were
+// judged against the generic class because neither the parts library nor
+// an annotation knew their model; "" when there are none.
+func genericLine(f *File) string {
+	if f.Analysis == nil || len(f.Analysis.Cases) == 0 {
+		return ""
+	}
+	var models []string
+	byModel := map[string][]string{}
+	n := 0
+	for _, t := range f.Analysis.Cases[0].Transistors {
+		if !t.Rating.Generic {
+			continue
+		}
+		if _, seen := byModel[t.Model]; !seen {
+			models = append(models, t.Model)
+		}
+		byModel[t.Model] = append(byModel[t.Model], t.Name)
+		n++
+	}
+	if n == 0 {
+		return ""
+	}
+	var parts []string
+	shown := 0
+	for _, m := range models {
+		names := byModel[m]
+		if left := maxGenericNamed - shown; len(names) > left {
+			names = names[:max(left, 0)]
+		}
+		shown += len(names)
+		if len(names) > 0 {
+			parts = append(parts, strings.Join(names, ", ")+" (model "+m+")")
+		}
+	}
+	more := ""
+	if n > shown {
+		more = fmt.Sprintf(" and %d more", n-shown)
+	}
+	return fmt.Sprintf("generic ratings: %s%s judged against the conservative generic class; name a library type or give *@part ratings",
+		strings.Join(parts, ", "), more)
 }
