@@ -118,6 +118,8 @@ type analyzer struct {
 	// min" and "hfe max" corners (0 where the corner does not apply).
 	hfeFactor [][2]float64
 	pool      *pool
+	// near is the adjacency the nearby parts are found from (nearby.go).
+	near *nearbyIndex
 }
 
 // Analyze solves c and computes every fact of its nominal case, then of
@@ -276,6 +278,7 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 	for _, d := range a.g.drives(el).sources {
 		t.Drives = append(t.Drives, d.Name)
 	}
+	t.Nearby = a.nearby(el, t.Drives)
 	t.EmitterR = a.emitterResistance(el)
 	t.BaseRth, t.BaseVth = thevenin(a.c, el.Name, s, a.temp)
 	return t

@@ -200,6 +200,10 @@ type Transistor struct {
 	SwingGain       float64 `expr:"swing_gain"`
 	HeadroomMissing float64 `expr:"headroom_missing"`
 
+	// Nearby are the parts around the transistor that set its bias, by
+	// role (see nearby.go); findings name them as their cause.
+	Nearby []Nearby `expr:"-"`
+
 	// Pos is where the device's line is; Chain the instances that placed it.
 	Pos   netlist.Pos        `expr:"-"`
 	Chain []netlist.Instance `expr:"-"`

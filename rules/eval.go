@@ -58,11 +58,34 @@ type Finding struct {
 	Waived       bool        `json:"waived,omitempty"`
 	WaiverReason string      `json:"waiver_reason,omitempty"`
 	WaiverPos    netlist.Pos `json:"waiver_pos,omitempty"`
+	// Related are the other parts that make the finding happen (a weak
+	// switch's base resistor, the divider of a beta-sensitive stage), and
+	// the places where a missing part belongs, as the rule's related key
+	// asks for them.
+	Related []Related `json:"related,omitempty"`
 	// AlsoIn lists the other cases where the rule is violated on the
 	// device, and UnjudgedIn those where it could not be judged, as
 	// "scenario" or "scenario/corner".
 	AlsoIn     []string `json:"also_in,omitempty"`
 	UnjudgedIn []string `json:"unjudged_in,omitempty"`
+}
+
+// Related is one part that takes part in a finding, or the place where a
+// missing one belongs.
+type Related struct {
+	// Role is what the part does for the finding's device (see
+	// checks.NearbyRoles).
+	Role string `json:"role"`
+	// Name is the flat element name ("" when Missing).
+	Name string `json:"name,omitempty"`
+	// Pos is the element's line; for a missing part, the first line that
+	// names the net it belongs on.
+	Pos     netlist.Pos        `json:"pos"`
+	Chain   []netlist.Instance `json:"chain,omitempty"`
+	Missing bool               `json:"missing,omitempty"`
+	// Message says it in words: "RB (base resistor)", or "no bleed
+	// resistor: one belongs from net b to net 0".
+	Message string `json:"message"`
 }
 
 // CaseName names a case as AlsoIn writes it: "scenario" or "scenario/corner".
@@ -259,6 +282,11 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 	}
 	f := base
 	f.Message, f.Values = render(r.c.message, s.env)
+	if len(r.Related) > 0 {
+		if te, ok := s.env.(transistorEnv); ok {
+			f.Related = relatedOf(r.Related, &te.Transistor, c)
+		}
+	}
 	o = outcome{violated: true, caseIdx: ci}
 	val, vok := runFloat(r.c.value, s.env)
 	lim, lok := runFloat(r.c.limit, s.env)
@@ -370,4 +398,55 @@ func render(ps []piece, env any) (string, []Quantity) {
 		}
 	}
 	return b.String(), qs
+}
+
+// relatedOf lists the parts near t in the given roles, in that order. The
+// first role is the rule's main one: when t has no part in it, the list
+// says where one belongs (a bleed resistor between the base and emitter
+// nets, an emitter resistor in the emitter, a base resistor in series
+// with a base that has no resistor at all), located at the first line
+// that names the base net, or at the transistor.
+func relatedOf(roles []string, t *checks.Transistor, c *checks.Case) []Related {
+	var out []Related
+	has := map[string]bool{}
+	for _, n := range t.Nearby {
+		has[n.Role] = true
+	}
+	for i, role := range roles {
+		for _, n := range t.Nearby {
+			if n.Role == role {
+				out = append(out, Related{Role: role, Name: n.Name, Pos: n.Pos, Chain: n.Chain,
+					Message: n.Name + " (" + role + ")"})
+			}
+		}
+		if has[role] || i > 0 {
+			continue
+		}
+		pos, where := t.Pos, ""
+		switch {
+		case role == checks.NearBleed:
+			pos, where = netPos(c, t.Base, t.Pos), "between "+t.Name+"'s base (net "+t.Base+") and emitter (net "+t.Emitter+")"
+		case role == checks.NearBaseResistor && !has[checks.NearDivider]:
+			pos, where = netPos(c, t.Base, t.Pos), "in series with "+t.Name+"'s base (net "+t.Base+")"
+		case role == checks.NearEmitter:
+			where = "between " + t.Name + "'s emitter and net " + t.Emitter
+		default:
+			// A collector on a rail, no drive, no divider: nothing is
+			// missing.
+			continue
+		}
+		out = append(out, Related{Role: role, Pos: pos, Missing: true, Message: "no " + role + ": one belongs " + where})
+	}
+	return out
+}
+
+// netPos is the first line that names net in case c, else def.
+func netPos(c *checks.Case, net string, def netlist.Pos) netlist.Pos {
+	k := netlist.Key(net)
+	for i := range c.Nodes {
+		if netlist.Key(c.Nodes[i].Name) == k && c.Nodes[i].Pos.IsValid() {
+			return c.Nodes[i].Pos
+		}
+	}
+	return def
 }

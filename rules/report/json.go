@@ -31,10 +31,24 @@ type jsonFinding struct {
 	Fix      string             `json:"fix,omitempty"`
 	Unjudged bool               `json:"unjudged,omitempty"`
 	Missing  []string           `json:"missing,omitempty"`
+	// Related are the parts that make the finding happen, and where a
+	// missing one belongs.
+	Related []jsonRelated `json:"related,omitempty"`
 	// Cases lists every case in which the rule is violated, worst first.
 	Cases     []string `json:"cases"`
 	Reason    string   `json:"reason,omitempty"`
 	WaiverPos string   `json:"waiver_position,omitempty"`
+}
+
+// jsonRelated is one related part of a finding.
+type jsonRelated struct {
+	Role    string `json:"role"`
+	Name    string `json:"name,omitempty"`
+	File    string `json:"file"`
+	Line    int    `json:"line"`
+	Column  int    `json:"column"`
+	Missing bool   `json:"missing,omitempty"`
+	Message string `json:"message"`
 }
 
 type jsonNote struct {
@@ -126,6 +140,10 @@ func toJSON(f rules.Finding) jsonFinding {
 		Message: f.Message, Values: map[string]float64{}, Nets: f.Nets, Fix: f.Fix,
 		Unjudged: f.Unjudged, Missing: f.Missing,
 		Cases: append([]string{rules.CaseName(f.Scenario, f.Corner)}, f.AlsoIn...),
+	}
+	for _, r := range f.Related {
+		j.Related = append(j.Related, jsonRelated{Role: r.Role, Name: r.Name, File: r.Pos.File, Line: r.Pos.Line,
+			Column: r.Pos.Col, Missing: r.Missing, Message: r.Message})
 	}
 	for _, q := range f.Values {
 		j.Values[q.Name] = q.Value

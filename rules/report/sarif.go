@@ -37,6 +37,8 @@ type sarifRegion struct {
 }
 
 type sarifLocation struct {
+	// ID numbers a related location within its result.
+	ID               *int `json:"id,omitempty"`
 	PhysicalLocation struct {
 		ArtifactLocation struct {
 			URI string `json:"uri"`
@@ -44,6 +46,7 @@ type sarifLocation struct {
 		Region *sarifRegion `json:"region,omitempty"`
 	} `json:"physicalLocation"`
 	LogicalLocations []sarifLogical `json:"logicalLocations,omitempty"`
+	Message          *sarifText     `json:"message,omitempty"`
 }
 
 type sarifLogical struct {
@@ -58,13 +61,15 @@ type sarifSuppression struct {
 }
 
 type sarifResult struct {
-	RuleID       string             `json:"ruleId"`
-	RuleIndex    int                `json:"ruleIndex"`
-	Level        string             `json:"level"`
-	Message      sarifText          `json:"message"`
-	Locations    []sarifLocation    `json:"locations"`
-	Suppressions []sarifSuppression `json:"suppressions,omitempty"`
-	Properties   map[string]any     `json:"properties,omitempty"`
+	RuleID    string          `json:"ruleId"`
+	RuleIndex int             `json:"ruleIndex"`
+	Level     string          `json:"level"`
+	Message   sarifText       `json:"message"`
+	Locations []sarifLocation `json:"locations"`
+	// RelatedLocations are the parts that make the finding happen.
+	RelatedLocations []sarifLocation    `json:"relatedLocations,omitempty"`
+	Suppressions     []sarifSuppression `json:"suppressions,omitempty"`
+	Properties       map[string]any     `json:"properties,omitempty"`
 }
 
 type sarifLog struct {
@@ -156,6 +161,9 @@ func SARIF(w io.Writer, r *Report) error {
 			}
 			loc.LogicalLocations = []sarifLogical{{Name: x.Device, Kind: "element"}}
 			res.Locations = []sarifLocation{loc}
+			for i, rel := range x.Related {
+				res.RelatedLocations = append(res.RelatedLocations, relatedLocation(i, rel, f.Path))
+			}
 			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner)}
 			if x.HasLimit {
 				props["value"], props["limit"], props["unit"] = x.Value, x.Limit, x.Unit
@@ -183,4 +191,25 @@ func level(s rules.Severity) string {
 		return "warning"
 	}
 	return "note"
+}
+
+// relatedLocation is one related part of a finding as a SARIF location
+// (a part that is missing is located where it belongs and has no
+// logical location).
+func relatedLocation(id int, r rules.Related, path string) sarifLocation {
+	var loc sarifLocation
+	loc.ID = &id
+	file := r.Pos.File
+	if file == "" {
+		file = path
+	}
+	loc.PhysicalLocation.ArtifactLocation.URI = fileURI(file)
+	if r.Pos.Line > 0 {
+		loc.PhysicalLocation.Region = &sarifRegion{StartLine: r.Pos.Line, StartColumn: r.Pos.Col}
+	}
+	if r.Name != "" {
+		loc.LogicalLocations = []sarifLogical{{Name: r.Name, Kind: "element"}}
+	}
+	loc.Message = &sarifText{r.Message}
+	return loc
 }

@@ -83,6 +83,9 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			if len(x.Nets) > 0 {
 				ew.printf("    nets     %s\n", nets(x))
 			}
+			if len(x.Related) > 0 {
+				ew.printf("    related  %s\n", relatedText(x.Related))
+			}
 			if x.HasLimit {
 				ew.printf("    value    %s against limit %s\n", units.Format(x.Value, x.Unit), units.Format(x.Limit, x.Unit))
 			}
@@ -267,4 +270,19 @@ func genericLine(f *File) string {
 	}
 	return fmt.Sprintf("generic ratings: %s%s judged against the conservative generic class; name a library type or give *@part ratings",
 		strings.Join(parts, ", "), more)
+}
+
+// relatedText lists a finding's related parts on one line: "RB at
+// board.cir:5:1 (base resistor); no bleed resistor: one belongs ...
+// (near board.cir:5:1)".
+func relatedText(rs []rules.Related) string {
+	parts := make([]string, len(rs))
+	for i, r := range rs {
+		if r.Missing {
+			parts[i] = r.Message + " (near " + r.Pos.String() + ")"
+			continue
+		}
+		parts[i] = r.Name + " at " + r.Pos.String() + " (" + r.Role + ")"
+	}
+	return strings.Join(parts, "; ")
 }
