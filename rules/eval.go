@@ -63,6 +63,12 @@ type Finding struct {
 	// the places where a missing part belongs, as the rule's related key
 	// asks for them.
 	Related []Related `json:"related,omitempty"`
+	// Measure is how far the worst case is past the rule's limit, in the
+	// rule's measure (larger is worse); not reported.
+	Measure float64 `json:"-"`
+	// Change is a computed resistor value change that clears the finding
+	// in every case (package rules/fix), or nil.
+	Change *Change `json:"change,omitempty"`
 	// AlsoIn lists the other cases where the rule is violated on the
 	// device, and UnjudgedIn those where it could not be judged, as
 	// "scenario" or "scenario/corner".
@@ -88,6 +94,41 @@ type Related struct {
 	Message string `json:"message"`
 }
 
+// Change is a resistor value change, verified by solving, that clears a
+// finding in every case and corner without raising another.
+type Change struct {
+	// Rule is the id of the finding it was searched for.
+	Rule string `json:"rule"`
+	// Element is the flat name of the resistor (the first, when the value
+	// is written once in a subcircuit used several times).
+	Element string `json:"element"`
+	// Pos is where the value's text starts; Old is that text as written
+	// and New its replacement. OldValue and NewValue are in Ohm.
+	Pos      netlist.Pos `json:"pos"`
+	Old      string      `json:"old"`
+	New      string      `json:"new"`
+	OldValue float64     `json:"old_value"`
+	NewValue float64     `json:"new_value"`
+	// Series is the IEC 60063 series the new value is from, "E12" or "E24".
+	Series string `json:"series"`
+	// Elements counts the flat resistors that share the value text.
+	Elements int `json:"elements"`
+	// Cases is the number of cases the verifying solve judged.
+	Cases int `json:"cases"`
+	// Clears lists every finding the change clears ("rule on device").
+	Clears []string `json:"clears"`
+}
+
+// String says what a change does, for reports: "RB 47k -> 1.2k (E12)
+// clears weak-switch-drive in all 9 cases".
+func (c *Change) String() string {
+	where := ""
+	if c.Elements > 1 {
+		where = fmt.Sprintf(" (the value of %d instances)", c.Elements)
+	}
+	return fmt.Sprintf("%s %s -> %s (%s)%s clears %s in all %d cases", c.Element, c.Old, c.New, c.Series, where, c.Rule, c.Cases)
+}
+
 // CaseName names a case as AlsoIn writes it: "scenario" or "scenario/corner".
 func CaseName(scenario, corner string) string {
 	if corner == "" {
@@ -101,7 +142,14 @@ type EvalOptions struct {
 	// Only keeps just these rule ids; Skip drops these. Unknown ids are an
 	// error (see RuleSet.Select).
 	Only, Skip []string
+	// Applied, when not nil, receives AppliedKey(rule, device) for every
+	// rule whose applies condition held on a subject in some case and
+	// that could be judged there (whether it passed or not).
+	Applied map[string]bool
 }
+
+// AppliedKey is the key of EvalOptions.Applied for a rule on a subject.
+func AppliedKey(rule, subject string) string { return rule + "\x00" + netlist.Key(subject) }
 
 // subjectRef is one subject in one case, ready for the expressions.
 type subjectRef struct {
@@ -153,7 +201,10 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 				if r.Subject != s.kind || r.c == nil {
 					continue
 				}
-				o, ok := judge(r, s, c, ci)
+				o, ok, applied := judge(r, s, c, ci)
+				if applied && opts.Applied != nil {
+					opts.Applied[AppliedKey(r.ID, s.name)] = true
+				}
 				if !ok {
 					continue
 				}
@@ -248,10 +299,10 @@ func subjects(c *checks.Case, params map[string]float64) []subjectRef {
 
 // judge runs one rule on one subject. ok is false when the rule does not
 // apply or passes.
-func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
+func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok, applied bool) {
 	base := Finding{Rule: r.ID, Severity: r.Severity, Subject: s.kind, Device: s.name, Pos: s.pos,
 		Chain: s.chain, Scenario: c.Scenario, Corner: c.Corner, Nets: s.nets, Fix: r.Fix}
-	unjudged := func(p *program, err error) (outcome, bool) {
+	unjudged := func(p *program, err error) (outcome, bool, bool) {
 		f := base
 		f.Severity = r.Unjudged
 		f.Unjudged = true
@@ -262,7 +313,7 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 			}
 		}
 		f.Message = fmt.Sprintf("rule %s could not be judged for %s %s: %s", r.ID, s.kind, s.name, reason)
-		return outcome{unjudged: true, caseIdx: ci, f: f}, true
+		return outcome{unjudged: true, caseIdx: ci, f: f}, true, false
 	}
 	if r.c.applies != nil {
 		v, err := expr.Run(r.c.applies.prog, s.env)
@@ -270,7 +321,7 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 			return unjudged(r.c.applies, err)
 		}
 		if b, _ := v.(bool); !b {
-			return outcome{}, false
+			return outcome{}, false, false
 		}
 	}
 	v, err := expr.Run(r.c.when.prog, s.env)
@@ -278,7 +329,7 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 		return unjudged(r.c.when, err)
 	}
 	if b, _ := v.(bool); !b {
-		return outcome{}, false
+		return outcome{}, false, true
 	}
 	f := base
 	f.Message, f.Values = render(r.c.message, s.env)
@@ -303,8 +354,9 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 	case f.HasLimit:
 		o.measure = val - lim
 	}
+	f.Measure = o.measure
 	o.f = f
-	return o, true
+	return o, true, true
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

@@ -18,6 +18,7 @@ import (
 	"github.com/biaslint/biaslint/checks/board"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/rules"
+	"github.com/biaslint/biaslint/rules/fix"
 	"github.com/biaslint/biaslint/rules/report"
 	"github.com/biaslint/biaslint/rulesets"
 )
@@ -71,6 +72,7 @@ func checkCommand() *cli.Command {
 			&cli.IntFlag{Name: "monte-carlo", Usage: "add `N` Monte Carlo runs drawing every resistor and supply within its tolerance"},
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
+			fixesFlag,
 		},
 		Action: runCheck,
 	}
@@ -174,6 +176,8 @@ type checkRun struct {
 	// and parsed against each netlist.
 	boardPath string
 	board     []byte
+	// fixes asks for the computed fixes (rules/fix) of each file's findings.
+	fixes bool
 }
 
 func newCheckRun(c *cli.Context) (*checkRun, error) {
@@ -194,7 +198,7 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
-	run := &checkRun{set: set}
+	run := &checkRun{set: set, fixes: wantFixes(c)}
 	if run.boardPath = c.String("board"); run.boardPath != "" {
 		if run.board, err = board.ReadFile(run.boardPath); err != nil {
 			return nil, badInput(err)
@@ -255,8 +259,36 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
+	if run.fixes {
+		findings = fix.Search(circ, findings, run.judge(opt), fix.Options{})
+	}
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
 	return report.File{Path: circ.File, Title: circ.Title, Analysis: an, Findings: findings, Notes: notes}, nil
+}
+
+// fixesFlag turns the computed fixes of check on or off.
+var fixesFlag = &cli.BoolFlag{Name: "fixes", Value: true,
+	Usage: "search E12/E24 resistor values that clear findings, verified by solving (--fixes=false: do not)"}
+
+// wantFixes reports whether a check run shows computed fixes: asked for,
+// and a format that shows them (not the CSV tables).
+func wantFixes(c *cli.Context) bool {
+	return c.Bool("fixes") && c.String("format") != "csv" && c.String("summary") != "csv"
+}
+
+// judge returns the fix search's Judge: analyse a changed circuit with
+// the run's options (no progress bar) and evaluate the rule set.
+func (run *checkRun) judge(opt checks.Options) fix.Judge {
+	opt.Progress = nil
+	return func(c *netlist.Circuit) (fix.Verdict, error) {
+		an, err := checks.Analyze(c, opt)
+		if err != nil {
+			return fix.Verdict{}, err
+		}
+		v := fix.Verdict{Applied: map[string]bool{}, Cases: len(an.Cases)}
+		v.Findings, err = rules.Evaluate(run.set, an, rules.EvalOptions{Applied: v.Applied})
+		return v, err
+	}
 }
 
 func runCheck(c *cli.Context) error {

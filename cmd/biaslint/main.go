@@ -125,6 +125,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			reportCommand(),
 			plotCommand(),
 			initCommand(),
+			fixCommand(),
 		},
 		// Usage errors are exit status 2, like bad input.
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {

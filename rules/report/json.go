@@ -34,6 +34,8 @@ type jsonFinding struct {
 	// Related are the parts that make the finding happen, and where a
 	// missing one belongs.
 	Related []jsonRelated `json:"related,omitempty"`
+	// Change is the computed value change that clears the finding.
+	Change *jsonChange `json:"change,omitempty"`
 	// Cases lists every case in which the rule is violated, worst first.
 	Cases     []string `json:"cases"`
 	Reason    string   `json:"reason,omitempty"`
@@ -49,6 +51,23 @@ type jsonRelated struct {
 	Column  int    `json:"column"`
 	Missing bool   `json:"missing,omitempty"`
 	Message string `json:"message"`
+}
+
+// jsonChange is a computed resistor value change (rules.Change).
+type jsonChange struct {
+	Element  string   `json:"element"`
+	File     string   `json:"file"`
+	Line     int      `json:"line"`
+	Column   int      `json:"column"`
+	Old      string   `json:"old"`
+	New      string   `json:"new"`
+	OldValue float64  `json:"old_value"`
+	NewValue float64  `json:"new_value"`
+	Series   string   `json:"series"`
+	Elements int      `json:"elements"`
+	Cases    int      `json:"cases"`
+	Clears   []string `json:"clears"`
+	Text     string   `json:"text"`
 }
 
 type jsonNote struct {
@@ -144,6 +163,11 @@ func toJSON(f rules.Finding) jsonFinding {
 	for _, r := range f.Related {
 		j.Related = append(j.Related, jsonRelated{Role: r.Role, Name: r.Name, File: r.Pos.File, Line: r.Pos.Line,
 			Column: r.Pos.Col, Missing: r.Missing, Message: r.Message})
+	}
+	if c := f.Change; c != nil {
+		j.Change = &jsonChange{Element: c.Element, File: c.Pos.File, Line: c.Pos.Line, Column: c.Pos.Col, Old: c.Old, New: c.New,
+			OldValue: c.OldValue, NewValue: c.NewValue, Series: c.Series, Elements: c.Elements, Cases: c.Cases,
+			Clears: c.Clears, Text: c.String()}
 	}
 	for _, q := range f.Values {
 		j.Values[q.Name] = q.Value

@@ -34,6 +34,26 @@ type sarifConfig struct {
 type sarifRegion struct {
 	StartLine   int `json:"startLine"`
 	StartColumn int `json:"startColumn,omitempty"`
+	EndLine     int `json:"endLine,omitempty"`
+	EndColumn   int `json:"endColumn,omitempty"`
+}
+
+// sarifFix is a proposed fix: one replacement of a value's text.
+type sarifFix struct {
+	Description     sarifText           `json:"description"`
+	ArtifactChanges []sarifArtifactEdit `json:"artifactChanges"`
+}
+
+type sarifArtifactEdit struct {
+	ArtifactLocation struct {
+		URI string `json:"uri"`
+	} `json:"artifactLocation"`
+	Replacements []sarifReplacement `json:"replacements"`
+}
+
+type sarifReplacement struct {
+	DeletedRegion   sarifRegion `json:"deletedRegion"`
+	InsertedContent sarifText   `json:"insertedContent"`
 }
 
 type sarifLocation struct {
@@ -69,6 +89,7 @@ type sarifResult struct {
 	// RelatedLocations are the parts that make the finding happen.
 	RelatedLocations []sarifLocation    `json:"relatedLocations,omitempty"`
 	Suppressions     []sarifSuppression `json:"suppressions,omitempty"`
+	Fixes            []sarifFix         `json:"fixes,omitempty"`
 	Properties       map[string]any     `json:"properties,omitempty"`
 }
 
@@ -172,6 +193,17 @@ func SARIF(w io.Writer, r *Report) error {
 				props["alsoIn"] = x.AlsoIn
 			}
 			res.Properties = props
+			if ch := x.Change; ch != nil {
+				var edit sarifArtifactEdit
+				edit.ArtifactLocation.URI = fileURI(ch.Pos.File)
+				// The region covers the value's text on its line; the end
+				// column is one past its last byte (SARIF 2.1.0, 3.30).
+				edit.Replacements = []sarifReplacement{{
+					DeletedRegion: sarifRegion{StartLine: ch.Pos.Line, StartColumn: ch.Pos.Col,
+						EndLine: ch.Pos.Line, EndColumn: ch.Pos.Col + len(ch.Old)},
+					InsertedContent: sarifText{ch.New}}}
+				res.Fixes = []sarifFix{{Description: sarifText{ch.String()}, ArtifactChanges: []sarifArtifactEdit{edit}}}
+			}
 			if x.Waived {
 				res.Suppressions = []sarifSuppression{{Kind: "inSource", Justification: x.WaiverReason}}
 			}

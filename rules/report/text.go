@@ -96,7 +96,13 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				}
 				ew.printf("\n")
 			}
-			if x.Fix != "" {
+			switch {
+			case x.Change != nil:
+				ew.printf("    fix      %s; 'biaslint fix' applies it\n", x.Change)
+				if x.Fix != "" {
+					ew.printf("             %s\n", x.Fix)
+				}
+			case x.Fix != "":
 				ew.printf("    fix      %s\n", x.Fix)
 			}
 		}
