@@ -259,10 +259,16 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
-	if run.fixes {
-		findings = fix.Search(circ, findings, run.judge(opt), fix.Options{})
-	}
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
+	if run.fixes {
+		var st fix.Stats
+		findings, st = fix.SearchStats(circ, findings, run.judge(opt), fix.Options{MaxWork: checkFixWork(len(an.Cases))})
+		if st.Unsearched > 0 {
+			notes = append(notes, &netlist.Error{Pos: netlist.Pos{File: circ.File, Line: 1, Col: 1}, Severity: netlist.SevNote,
+				Msg: fmt.Sprintf("computed fixes: %d of %d findings searched before the search's budget (%d cases solved) ran out; 'biaslint fix' searches further",
+					st.Searched, st.Searched+st.Unsearched, st.Work)})
+		}
+	}
 	return report.File{Path: circ.File, Title: circ.Title, Analysis: an, Findings: findings, Notes: notes}, nil
 }
 
@@ -276,12 +282,22 @@ func wantFixes(c *cli.Context) bool {
 	return c.Bool("fixes") && c.String("format") != "csv" && c.String("summary") != "csv"
 }
 
+// checkFixWork is the budget of check's fix search for a netlist whose
+// check solved cases cases: about one more check of a large board, and
+// room for a few dozen solves of a small one.
+func checkFixWork(cases int) int { return max(400, cases) }
+
 // judge returns the fix search's Judge: analyse a changed circuit with
-// the run's options (no progress bar) and evaluate the rule set.
+// the run's options (no progress bar; the quick judgement without the
+// corners and Monte Carlo runs) and evaluate the rule set.
 func (run *checkRun) judge(opt checks.Options) fix.Judge {
 	opt.Progress = nil
-	return func(c *netlist.Circuit) (fix.Verdict, error) {
-		an, err := checks.Analyze(c, opt)
+	return func(c *netlist.Circuit, quick bool) (fix.Verdict, error) {
+		o := opt
+		if quick {
+			o.Corners, o.MonteCarlo = false, 0
+		}
+		an, err := checks.Analyze(c, o)
 		if err != nil {
 			return fix.Verdict{}, err
 		}

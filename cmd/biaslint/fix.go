@@ -154,7 +154,7 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 		opt.Board = b
 	}
 	judge := run.judge(opt)
-	first, err := judge(circ)
+	first, err := judge(circ, false)
 	if err != nil {
 		return ff, err
 	}
@@ -173,7 +173,7 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 	for len(ff.changes) < maxChanges {
 		fs := rules.ApplyWaivers(v.Findings, waivers, run.set.RuleIDs())
 		var ch *rules.Change
-		for _, f := range fix.Search(cur, fs, judge, fix.Options{First: true}) {
+		for _, f := range fix.Search(cur, fs, judge, fix.Options{First: true, MaxWork: max(4000, 8*first.Cases)}) {
 			if f.Change != nil {
 				ch = f.Change
 				break
@@ -184,7 +184,7 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 		}
 		ff.changes = append(ff.changes, ch)
 		cur = fix.WithChange(cur, ch)
-		if v, err = judge(cur); err != nil {
+		if v, err = judge(cur, false); err != nil {
 			return ff, err
 		}
 	}
@@ -235,7 +235,7 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 	if err != nil {
 		return ff, fmt.Errorf("%s: the changed netlist does not read back: %v; nothing written", in.name, err)
 	}
-	after, err := judge(changed)
+	after, err := judge(changed, false)
 	if err != nil {
 		return ff, fmt.Errorf("%s: the changed netlist does not solve: %v; nothing written", in.name, err)
 	}

@@ -41,9 +41,11 @@ type Verdict struct {
 	Cases    int
 }
 
-// Judge analyses a circuit in every case and corner and evaluates the
-// rule set on it.
-type Judge func(c *netlist.Circuit) (Verdict, error)
+// Judge analyses a circuit and evaluates the rule set on it: in every
+// case and corner, or, when quick is true, in a cheaper set of cases (the
+// scenarios without corners) that the search uses to narrow the values
+// down before a full judgement verifies one.
+type Judge func(c *netlist.Circuit, quick bool) (Verdict, error)
 
 // Options bound the search.
 type Options struct {
@@ -52,6 +54,10 @@ type Options struct {
 	MaxFindings int
 	// MaxSolves caps the Judge calls for one circuit (0: DefaultMaxSolves).
 	MaxSolves int
+	// MaxWork caps the cases the Judge calls solve in all, summed over
+	// calls (0: no cap beyond MaxSolves), so that a large board's search
+	// costs about as much as a few checks of it.
+	MaxWork int
 	// Decades is how far from the present value the search goes, in
 	// decades each way (0: DefaultDecades).
 	Decades int
@@ -90,12 +96,14 @@ type searcher struct {
 	// measure is how far each finding was past its limit (rules.Finding.Measure).
 	measure map[key]float64
 	solves  int
+	work    int
 	cache   map[probeKey]*probe
 }
 
 type probeKey struct {
-	pos netlist.Pos
-	ohm float64
+	pos   netlist.Pos
+	ohm   float64
+	quick bool
 }
 
 type probe struct {
@@ -111,6 +119,20 @@ type probe struct {
 // modified). before are the circuit's findings as reported (waived ones
 // included, and not searched).
 func Search(c *netlist.Circuit, before []rules.Finding, judge Judge, opt Options) []rules.Finding {
+	out, _ := SearchStats(c, before, judge, opt)
+	return out
+}
+
+// Stats say how far a search went.
+type Stats struct {
+	// Searched is the number of findings searched, Unsearched the number
+	// of searchable findings left when the budget ran out; Solves and
+	// Work the Judge calls made and the cases they solved.
+	Searched, Unsearched, Solves, Work int
+}
+
+// SearchStats is Search that also says how far it went.
+func SearchStats(c *netlist.Circuit, before []rules.Finding, judge Judge, opt Options) ([]rules.Finding, Stats) {
 	if opt.MaxFindings <= 0 {
 		opt.MaxFindings = DefaultMaxFindings
 	}
@@ -129,22 +151,29 @@ func Search(c *netlist.Circuit, before []rules.Finding, judge Judge, opt Options
 		s.measure[keyOf(f)] = f.Measure
 	}
 	out := append([]rules.Finding(nil), before...)
-	tried := 0
+	var st Stats
 	for i := range out {
 		f := &out[i]
 		if f.Waived || f.Unjudged || f.Severity == rules.SeverityNote || len(f.Related) == 0 {
 			continue
 		}
-		if tried >= opt.MaxFindings || s.solves >= opt.MaxSolves {
-			break
+		if st.Searched >= opt.MaxFindings || s.spent() {
+			st.Unsearched++
+			continue
 		}
-		tried++
+		st.Searched++
 		f.Change = s.finding(f)
 		if f.Change != nil && opt.First {
 			break
 		}
 	}
-	return out
+	st.Solves, st.Work = s.solves, s.work
+	return out, st
+}
+
+// spent reports whether the solve budget is used up.
+func (s *searcher) spent() bool {
+	return s.solves >= s.opt.MaxSolves || (s.opt.MaxWork > 0 && s.work >= s.opt.MaxWork)
 }
 
 // candidates are the related resistors of f whose value is a literal,
@@ -172,6 +201,7 @@ func (s *searcher) candidates(f *rules.Finding) []*netlist.Element {
 // finding searches a change that clears f.
 func (s *searcher) finding(f *rules.Finding) *rules.Change {
 	target := keyOf(*f)
+	quick := s.quickSees(target)
 	for _, el := range s.candidates(f) {
 		for _, series := range []struct {
 			name string
@@ -179,7 +209,7 @@ func (s *searcher) finding(f *rules.Finding) *rules.Change {
 		}{{"E12", E12}, {"E24", E24}} {
 			var best *rules.Change
 			for _, dir := range []int{-1, +1} {
-				ch := s.direction(el, target, series.vals, dir)
+				ch := s.direction(el, target, series.vals, dir, quick)
 				if ch == nil {
 					continue
 				}
@@ -224,29 +254,30 @@ func (s *searcher) ladder(v0 float64, series []float64, dir int) []float64 {
 }
 
 // direction finds the nearest value in one direction that clears target
-// and raises nothing new: it solves the farthest value first (a finding
-// that even it does not clear is not cleared in this direction), then
-// bisects for the nearest clearing value, then steps outwards past values
-// that raise another finding, at most a few.
-func (s *searcher) direction(el *netlist.Element, target key, series []float64, dir int) *rules.Change {
+// and raises nothing new. On the quick judgement it solves the farthest
+// value first (a finding that even it does not clear is not cleared in
+// this direction) and bisects for the nearest clearing value; then it
+// judges that value fully, stepping outwards past values that a full
+// judgement shows do not clear or raise another finding, at most a few.
+func (s *searcher) direction(el *netlist.Element, target key, series []float64, dir int, quick bool) *rules.Change {
 	vals := s.ladder(el.Value, series, dir)
 	if len(vals) == 0 {
 		return nil
 	}
 	// A value clears the finding when the rule still applies to the
 	// device (a switch still conducts, say) and is no longer violated.
-	clears := func(i int) (bool, *probe) {
-		p := s.solve(el, vals[i])
+	clears := func(i int, quick bool) (bool, *probe) {
+		p := s.solve(el, vals[i], quick)
 		return p != nil && p.err == nil && !p.present[target] && p.applied[rules.AppliedKey(target.rule, target.device)], p
 	}
 	last := len(vals) - 1
-	if ok, _ := clears(last); !ok {
+	if ok, _ := clears(last, quick); !ok {
 		return nil
 	}
 	lo, hi := -1, last
-	for hi-lo > 1 && s.solves < s.opt.MaxSolves {
+	for hi-lo > 1 && !s.spent() {
 		mid := (lo + hi) / 2
-		if ok, _ := clears(mid); ok {
+		if ok, _ := clears(mid, quick); ok {
 			hi = mid
 		} else {
 			lo = mid
@@ -257,7 +288,7 @@ func (s *searcher) direction(el *netlist.Element, target key, series []float64, 
 	}
 	const maxStepsOut = 3
 	for i := hi; i <= last && i < hi+maxStepsOut; i++ {
-		ok, p := clears(i)
+		ok, p := clears(i, false)
 		if p == nil {
 			return nil
 		}
@@ -276,6 +307,29 @@ func (s *searcher) direction(el *netlist.Element, target key, series []float64, 
 			Clears: s.cleared(p)}
 	}
 	return nil
+}
+
+// quickSees reports whether the quick judgement of the unchanged circuit
+// shows the target finding, so that it can stand in for the full one in
+// the search (a rule judged only across corners, such as the hFE spread,
+// is not seen there and is searched with full judgements).
+func (s *searcher) quickSees(target key) bool {
+	k := probeKey{quick: true}
+	p, ok := s.cache[k]
+	if !ok {
+		if s.spent() {
+			return false
+		}
+		s.solves++
+		v, err := s.judge(s.c, true)
+		s.work += v.Cases
+		p = &probe{present: map[key]bool{}, err: err}
+		for _, f := range v.Findings {
+			p.present[keyOf(f)] = true
+		}
+		s.cache[k] = p
+	}
+	return p.err == nil && p.present[target]
 }
 
 // raises reports whether a solve found something the circuit did not
@@ -330,16 +384,17 @@ func (s *searcher) sharing(pos netlist.Pos) int {
 // solve judges the circuit with every resistor whose value is written at
 // el's value position set to ohm. It returns nil when the solve budget is
 // spent.
-func (s *searcher) solve(el *netlist.Element, ohm float64) *probe {
-	k := probeKey{el.ValuePos, ohm}
+func (s *searcher) solve(el *netlist.Element, ohm float64, quick bool) *probe {
+	k := probeKey{el.ValuePos, ohm, quick}
 	if p, ok := s.cache[k]; ok {
 		return p
 	}
-	if s.solves >= s.opt.MaxSolves {
+	if s.spent() {
 		return nil
 	}
 	s.solves++
-	v, err := s.judge(WithValue(s.c, el.ValuePos, ohm))
+	v, err := s.judge(WithValue(s.c, el.ValuePos, ohm), quick)
+	s.work += v.Cases
 	p := &probe{present: map[key]bool{}, measure: map[key]float64{}, applied: v.Applied, cases: v.Cases, err: err}
 	for _, f := range v.Findings {
 		p.present[keyOf(f)] = true

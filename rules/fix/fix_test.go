@@ -107,7 +107,7 @@ func TestSearchBounded(t *testing.T) {
 	f := rules.Finding{Rule: "weak-switch-drive", Severity: rules.SeverityWarning, Device: "Q1",
 		Related: []rules.Related{{Role: "base resistor", Name: "RB"}}}
 	calls := 0
-	judge := func(*netlist.Circuit) (Verdict, error) {
+	judge := func(*netlist.Circuit, bool) (Verdict, error) {
 		calls++
 		return Verdict{Findings: []rules.Finding{f}, Applied: map[string]bool{rules.AppliedKey(f.Rule, f.Device): true}}, nil
 	}
@@ -117,7 +117,7 @@ func TestSearchBounded(t *testing.T) {
 	}
 	// The judge that clears the finding below 2 kOhm: the nearest E12
 	// value under it is 1.8k.
-	judge = func(cc *netlist.Circuit) (Verdict, error) {
+	judge = func(cc *netlist.Circuit, quick bool) (Verdict, error) {
 		v := Verdict{Applied: map[string]bool{rules.AppliedKey(f.Rule, f.Device): true}}
 		if cc.Elements[0].Value >= 2000 {
 			v.Findings = []rules.Finding{f}
