@@ -1,6 +1,7 @@
 package checks
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 
@@ -128,5 +129,31 @@ Q1 c b 0 2N3904
 	}
 	if !found {
 		t.Errorf("no polarity note: %v", a.Notes)
+	}
+}
+
+// Model names as vendor libraries and schematic editors write them: each
+// takes its registered type's ratings (from memory of the data sheets),
+// the hFE group's range where the name carries one.
+func TestVendorModelNames(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("vendor model names\nVCC vcc 0 12\n")
+	models := []struct{ model, pol, part string }{
+		{"Q2N2222", "NPN", "2N2222"}, {"Q2N3904", "NPN", "2N3904"}, {"BC547B", "NPN", "BC547B"},
+		{"BC557B", "PNP", "BC557B"}, {"BD135", "NPN", "BD135"}, {"Q2N2907A", "PNP", "2N2907A"},
+		{"bc337-40", "NPN", "BC337-40"}, {"TIP31C", "NPN", "TIP31C"}, {"2N3055_ST", "NPN", "2N3055"},
+	}
+	for i, m := range models {
+		fmt.Fprintf(&b, "R%d vcc b%d 100k\nQ%d c%d b%d 0 %s\nRC%d vcc c%d 1k\n.model %s %s (IS=1e-14 BF=200)\n", i, i, i, i, i, m.model, i, i, m.model, m.pol)
+	}
+	a := analyze(t, b.String()+".end\n")
+	for i, m := range models {
+		q := transistor(t, a, fmt.Sprintf("Q%d", i))
+		if q.Rating.Generic || q.Rating.Part != m.part {
+			t.Errorf("%s: part %q generic %v, want %s", m.model, q.Rating.Part, q.Rating.Generic, m.part)
+		}
+	}
+	if q := transistor(t, a, "Q2"); q.Rating.HFEMin != 200 || q.Rating.HFEMax != 450 {
+		t.Errorf("BC547B hFE %g..%g, want group B 200..450 (from memory)", q.Rating.HFEMin, q.Rating.HFEMax)
 	}
 }
