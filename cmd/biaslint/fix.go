@@ -265,7 +265,13 @@ func sortedPaths[V any](m map[string]V) []string { return slices.Sorted(maps.Key
 // writeFixSummary prints one line per change and a closing line per file.
 func writeFixSummary(w *bytes.Buffer, ff fixedFile, preview bool) {
 	for _, ch := range ff.changes {
-		fmt.Fprintf(w, "%s: %s\n", ch.Pos, ch)
+		where := ""
+		if filepath.Clean(ch.Pos.File) != filepath.Clean(ff.path) {
+			// A value in an included file changes every netlist that
+			// includes it: say so.
+			where = " (in an included file)"
+		}
+		fmt.Fprintf(w, "%s: %s%s\n", ch.Pos, ch, where)
 	}
 	verb := "changed"
 	if preview {

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -179,5 +180,84 @@ func TestFixCommand(t *testing.T) {
 	// The built-in demo cannot be written.
 	if _, errs, code := runCLI(t, "fix", "--demo"); code != exitBadInput || !strings.Contains(errs, "--preview") {
 		t.Errorf("fix --demo: exit %d: %s", code, errs)
+	}
+}
+
+// BenchmarkCheckFixes times check on the weak-switch corpus netlist with
+// the computed fix (one finding, searched and verified) and without it.
+func BenchmarkCheckFixes(b *testing.B) {
+	for _, tc := range []struct {
+		name string
+		args []string
+	}{
+		{"with", []string{"biaslint", "check", "testdata/check/weak-switch-drive.bad.cir"}},
+		{"without", []string{"biaslint", "check", "--fixes=false", "testdata/check/weak-switch-drive.bad.cir"}},
+	} {
+		b.Run(tc.name, func(b *testing.B) {
+			for b.Loop() {
+				var out strings.Builder
+				run(tc.args, &out, &out)
+			}
+		})
+	}
+}
+
+// twentyDrivers is a board of twenty relay drivers whose base resistors
+// are all too large (a demo of our own): twenty findings, more than the
+// check's search budget covers.
+func twentyDrivers() string {
+	var b strings.Builder
+	b.WriteString("twenty relay drivers, base resistors too large\nVCC vcc 0 12\n")
+	for i := range 20 {
+		fmt.Fprintf(&b, "VP%d p%d 0 PULSE(0 3.3 0 1u 1u 5m 10m)\nRB%d p%d b%d 47k\nRBE%d b%d 0 100k\nRC%d vcc c%d 120\n*@device RC%d power=2\nQ%d c%d b%d 0 BC337-25\n",
+			i, i, i, i, i, i, i, i, i, i, i, i, i)
+	}
+	b.WriteString(".model BC337-25 NPN (IS=1e-14 BF=250)\n.end\n")
+	return b.String()
+}
+
+// BenchmarkCheckFixesTwenty times check on the twenty-driver board with
+// and without the computed fixes: the search's budget keeps it to about
+// one more check's worth of solving.
+func BenchmarkCheckFixesTwenty(b *testing.B) {
+	path := filepath.Join(b.TempDir(), "twenty.cir")
+	if err := os.WriteFile(path, []byte(twentyDrivers()), 0o644); err != nil {
+		b.Fatal(err)
+	}
+	for _, tc := range []struct {
+		name string
+		args []string
+	}{
+		{"with", []string{"biaslint", "check", path}},
+		{"without", []string{"biaslint", "check", "--fixes=false", path}},
+	} {
+		b.Run(tc.name, func(b *testing.B) {
+			for b.Loop() {
+				var out strings.Builder
+				run(tc.args, &out, &out)
+			}
+		})
+	}
+}
+
+// A value in an included file is changed there, and fix says so.
+func TestFixIncludedFile(t *testing.T) {
+	dir := t.TempDir()
+	main := filepath.Join(dir, "panel.cir")
+	inc := filepath.Join(dir, "driver.inc")
+	if err := os.WriteFile(main, []byte("panel lamp driver\nVCC vcc 0 12\nVA a 0 PULSE(0 3.3 0 1u 1u 5m 10m)\n.include driver.inc\nX1 a vcc drv\n.end\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	lib := ".subckt drv ctl sup\nRB ctl b 47k\nRBE b 0 100k\nRLAMP sup c 120\n*@device RLAMP power=2\nQ1 c b 0 BC337-25\n.model BC337-25 NPN (IS=1e-14 BF=250)\n.ends\n"
+	if err := os.WriteFile(inc, []byte(lib), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, errs, code := runCLI(t, "fix", main)
+	if code != exitOK || !strings.Contains(out, "(in an included file)") {
+		t.Fatalf("fix: exit %d: %s%s", code, out, errs)
+	}
+	got, _ := os.ReadFile(inc)
+	if string(got) == lib || !strings.HasPrefix(string(got), ".subckt drv ctl sup\nRB ctl b ") {
+		t.Errorf("included file:\n%s", got)
 	}
 }
