@@ -37,7 +37,7 @@ var (
 	}
 	partsFlag = &cli.StringFlag{
 		Name:  "parts",
-		Usage: "extra parts library `FILE` (YAML); its entries take precedence over the built-in classes",
+		Usage: "extra parts library `FILE` (YAML); its entries take precedence over the built-in types and classes",
 	}
 	boardFlag = &cli.StringFlag{
 		Name:  "board",

@@ -113,7 +113,8 @@ func runFix(c *cli.Context) error {
 	for _, in := range inputs {
 		ff, err := run.fixOne(in, opt, maxChanges)
 		if err != nil {
-			return badInput(err)
+			// Every file or none: a batch is not left half changed.
+			return badInput(fmt.Errorf("%v\nbiaslint fix: nothing written", err))
 		}
 		done = append(done, ff)
 	}
@@ -233,11 +234,11 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 		return readFile(p)
 	}})
 	if err != nil {
-		return ff, fmt.Errorf("%s: the changed netlist does not read back: %v; nothing written", in.name, err)
+		return ff, fmt.Errorf("%s: the changed netlist does not read back: %v", in.name, err)
 	}
 	after, err := judge(changed, false)
 	if err != nil {
-		return ff, fmt.Errorf("%s: the changed netlist does not solve: %v; nothing written", in.name, err)
+		return ff, fmt.Errorf("%s: the changed netlist does not solve: %v", in.name, err)
 	}
 	was := map[string]bool{}
 	for _, f := range first.Findings {
@@ -245,7 +246,7 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 	}
 	for _, f := range after.Findings {
 		if !was[rules.AppliedKey(f.Rule, f.Device)] {
-			return ff, fmt.Errorf("%s: together the changes raise %s on %s; nothing written", in.name, f.Rule, f.Device)
+			return ff, fmt.Errorf("%s: together the changes raise %s on %s", in.name, f.Rule, f.Device)
 		}
 	}
 	ff.after = countsOf(rules.ApplyWaivers(after.Findings, waivers, run.set.RuleIDs()))
