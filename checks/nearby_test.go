@@ -27,7 +27,7 @@ func TestNearby(t *testing.T) {
 		"Q2":    "base resistor RC1, emitter resistor RE2",
 		"X1.Q1": "base resistor X1.RB, bleed resistor X1.RBE, collector resistor X1.RCOIL, drive VRELAY",
 		"X2.Q1": "base resistor X2.RB, bleed resistor X2.RBE, collector resistor X2.RCOIL, drive VBUZ",
-		"Q5":    "base resistor R5, bleed resistor R6, collector resistor R4",
+		"Q5":    "base resistor R5, bleed resistor R6, collector resistor R4, drive VEN",
 		"Q4":    "base resistor R4, bleed resistor R7, collector resistor RLOAD",
 	}
 	for _, q := range a.Cases[0].Transistors {

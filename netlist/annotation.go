@@ -9,7 +9,8 @@ import "strings"
 // users, not here; only its shape is: a missing kind, a key with no value
 // and a repeated key are warnings (the annotation is dropped when it has no
 // kind).
-func parseAnnotation(s string, pos Pos, errs *ErrorList) *Annotation {
+func parseAnnotation(s string, pos Pos, list *ErrorList) *Annotation {
+	errs := quoted{list}
 	at := func(i int) Pos { return Pos{File: pos.File, Line: pos.Line, Col: pos.Col + i} }
 	i := 2
 	j := i

@@ -160,10 +160,10 @@ func (s *Subckt) lookupSubckt(k string) *Subckt {
 	return nil
 }
 
-// displayName is the subcircuit's name for messages.
-func (s *Subckt) displayName() string {
+// displayName is the subcircuit's name for messages, shortened.
+func (s *Subckt) displayName() verbatim {
 	if s.Name.Text == "" {
 		return "the top level"
 	}
-	return "subcircuit " + s.Name.Text
+	return verbatim("subcircuit " + short(s.Name.Text))
 }

@@ -70,4 +70,15 @@
 // other at most 200 deep. An ErrorList keeps MaxErrors errors and counts the
 // rest. ReadFile in LoadOptions replaces os.ReadFile, so tests and fuzzing
 // can sandbox or disable includes.
+//
+// # Include policy
+//
+// .include and .lib read only files inside the top file's folder and the
+// folders of LoadOptions.IncludeDirs: the path is joined and cleaned (a
+// ".." that leaves the folders is refused), and with the default reader the
+// links of the file and of the folders are resolved and the check made
+// again. Only regular files are opened, non-blocking, so a FIFO, a device,
+// a socket or a folder is a located error and never blocks. A refused
+// include names the path as written and how to allow it
+// (LoadOptions.IncludeHint); nothing of the refused file is read.
 package netlist

@@ -251,7 +251,7 @@ func isIdentText(s string) bool {
 // evaluator evaluates Values in parameter scopes, reporting each problem
 // once per position.
 type evaluator struct {
-	errs  *ErrorList
+	errs  quoted
 	seen  map[string]bool
 	progs map[string]*vm.Program
 	depth int
@@ -259,12 +259,12 @@ type evaluator struct {
 }
 
 func newEvaluator(errs *ErrorList) *evaluator {
-	return &evaluator{errs: errs, seen: map[string]bool{}, progs: map[string]*vm.Program{}}
+	return &evaluator{errs: quoted{errs}, seen: map[string]bool{}, progs: map[string]*vm.Program{}}
 }
 
 // errorf adds an error unless the same one was added at the same position.
 func (ev *evaluator) errorf(pos Pos, format string, args ...any) {
-	msg := fmt.Sprintf(format, args...)
+	msg := sprintf(format, args...)
 	k := pos.String() + "\x00E" + msg
 	if ev.seen[k] {
 		return
@@ -275,13 +275,13 @@ func (ev *evaluator) errorf(pos Pos, format string, args ...any) {
 
 // notef adds a note unless the same one was added at the same position.
 func (ev *evaluator) notef(pos Pos, format string, args ...any) {
-	msg := fmt.Sprintf(format, args...)
+	msg := sprintf(format, args...)
 	k := pos.String() + "\x00N" + msg
 	if ev.seen[k] {
 		return
 	}
 	ev.seen[k] = true
-	ev.errs.Notef(pos, "%s", msg)
+	ev.errs.Notef(pos, "%s", verbatim(msg))
 }
 
 // eval evaluates v in scope e. It reports a problem and returns false when v
@@ -377,7 +377,7 @@ func (ev *evaluator) lookup(name string, e *env, use Pos) (val float64, ok, foun
 			if len(cycle) == 2 {
 				ev.errorf(d.v.Pos, "parameter %s depends on itself", name)
 			} else {
-				ev.errorf(d.v.Pos, "parameters depend on each other in a cycle: %s", strings.Join(cycle, " -> "))
+				ev.errorf(d.v.Pos, "parameters depend on each other in a cycle: %s", joinShort(cycle, " -> "))
 			}
 			d.state = 3
 			return 0, false, true
@@ -462,14 +462,14 @@ func (ev *evaluator) expression(v Value, e *env) (float64, bool) {
 		opts := append([]expr.Option{expr.Env(vars)}, exprOptions...)
 		prog, err = expr.Compile(text, opts...)
 		if err != nil {
-			ev.errorf(v.Pos, "bad expression %s: %s", v.short(), firstLine(err.Error()))
+			ev.errorf(v.Pos, "bad expression %s: %s", v.short(), capped(firstLine(err.Error())))
 			return 0, false
 		}
 		ev.progs[text] = prog
 	}
 	out, err := expr.Run(prog, vars)
 	if err != nil {
-		ev.errorf(v.Pos, "cannot evaluate %s: %s", v.short(), firstLine(err.Error()))
+		ev.errorf(v.Pos, "cannot evaluate %s: %s", v.short(), capped(firstLine(err.Error())))
 		return 0, false
 	}
 	x, ok := toFloat(out)

@@ -59,7 +59,7 @@ func Flatten(d *Deck) (*Circuit, error) {
 	errs.Merge(&d.Diagnostics)
 	f := &flattener{
 		d:       d,
-		errs:    errs,
+		errs:    quoted{errs},
 		ev:      newEvaluator(errs),
 		spell:   map[string]string{},
 		globals: map[string]bool{},
@@ -86,7 +86,7 @@ func Flatten(d *Deck) (*Circuit, error) {
 		if len(d.Top.Subckts) > 0 && len(d.Top.Elements) == 0 {
 			what = "no elements at top level (only subcircuit definitions)"
 		}
-		f.errs.Addf(Pos{File: d.File, Line: 1, Col: 1}, "%s", what)
+		f.errs.Addf(Pos{File: d.File, Line: 1, Col: 1}, "%s", verbatim(what))
 	}
 	f.errs.Sort()
 	f.c.Notes = f.errs.Notes()
@@ -97,7 +97,7 @@ func Flatten(d *Deck) (*Circuit, error) {
 type flattener struct {
 	d       *Deck
 	c       *Circuit
-	errs    *ErrorList
+	errs    quoted
 	ev      *evaluator
 	spell   map[string]string // node key -> first spelling
 	globals map[string]bool
@@ -325,7 +325,7 @@ func (f *flattener) useModel(el *Element, s *ElementStmt, name Word, m *Model, w
 		w = append(w, strings.ToUpper(string(t)))
 	}
 	f.ev.errorf(name.Pos, "%s: model %s has type %s, but a %s needs %s", s.Name.Text, name.Text,
-		strings.ToUpper(string(m.Type)), kindName(s.Kind), strings.Join(w, " or "))
+		strings.ToUpper(string(m.Type)), verbatim(kindName(s.Kind)), verbatim(strings.Join(w, " or ")))
 	return false
 }
 
@@ -499,7 +499,7 @@ func (f *flattener) instance(s *ElementStmt, def *Subckt, e *env, depth int, sta
 				names = append(names, x.Name.Text)
 			}
 			names = append(names, sub.Name.Text)
-			f.ev.errorf(s.Pos, "%s: recursive subcircuit: %s", s.Name.Text, strings.Join(names, " -> "))
+			f.ev.errorf(s.Pos, "%s: recursive subcircuit: %s", s.Name.Text, joinShort(names, " -> "))
 			return
 		}
 	}

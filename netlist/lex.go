@@ -1,9 +1,6 @@
 package netlist
 
-import (
-	"strings"
-	"unicode/utf8"
-)
+import "strings"
 
 // tokKind is the kind of a lexical token of a netlist line.
 type tokKind int
@@ -26,11 +23,7 @@ type token struct {
 
 // String returns the token as it would be written, shortened for messages.
 func (t token) String() string {
-	s := t.text
-	if len(s) > maxShown {
-		s = clip(s)
-		s = s[1 : len(s)-1]
-	}
+	s := short(t.text)
 	switch t.kind {
 	case tExpr:
 		return "{" + s + "}"
@@ -39,9 +32,6 @@ func (t token) String() string {
 	}
 	return s
 }
-
-// maxShown bounds how much of an offending text a message repeats.
-const maxShown = 40
 
 // isSpace reports whether c separates tokens. Commas separate too, so that
 // "SIN(0, 1, 1k)" and "IS=1e-14, BF=200" read as the plain forms.
@@ -67,7 +57,8 @@ func wordEnd(c byte) bool {
 // tokenize splits one physical line (or the part of it after a leading '+')
 // into tokens. col is the 1-based column of s[0]. Inline comments (';' and
 // '$ ') end the line. Problems are reported through errs.
-func tokenize(s string, file string, line, col int, errs *ErrorList) []token {
+func tokenize(s string, file string, line, col int, list *ErrorList) []token {
+	errs := quoted{list}
 	var toks []token
 	at := func(i int) Pos { return Pos{File: file, Line: line, Col: col + i} }
 	i := 0
@@ -144,16 +135,7 @@ func tokenize(s string, file string, line, col int, errs *ErrorList) []token {
 }
 
 // clip shortens s for quoting in a message.
-func clip(s string) string {
-	if len(s) > maxShown {
-		cut := maxShown
-		for cut > 0 && !utf8.RuneStart(s[cut]) {
-			cut--
-		}
-		s = s[:cut] + "..."
-	}
-	return "\"" + s + "\""
-}
+func clip(s string) string { return "\"" + short(s) + "\"" }
 
 // firstWord returns the first blank-separated word of s, lower case.
 func firstWord(s string) string {

@@ -334,6 +334,10 @@ func TestReadSourceNoFiles(t *testing.T) {
 	if err != nil || len(c.Elements) != 2 {
 		t.Fatalf("ReadSource: %v, %d elements", err, len(c.Elements))
 	}
-	_, err = ReadSource("mem.cir", []byte("probe bias\n.include /etc/passwd\nR1 a 0 1k\n"), &LoadOptions{ReadFile: NoFiles})
+	_, err = ReadSource("mem.cir", []byte("probe bias\n.include parts.inc\nR1 a 0 1k\n"), &LoadOptions{ReadFile: NoFiles})
 	mustMention(t, err, "mem.cir:2:10", "includes are disabled")
+	// The include policy holds for any reader: a path outside is refused
+	// before the reader is asked.
+	_, err = ReadSource("mem.cir", []byte("probe bias\n.include /etc/passwd\nR1 a 0 1k\n"), &LoadOptions{ReadFile: NoFiles})
+	mustMention(t, err, "mem.cir:2:10", `"/etc/passwd" is outside the folders`)
 }

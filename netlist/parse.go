@@ -11,9 +11,17 @@ import (
 // see Parse.
 func Load(filename string, opts *LoadOptions) (*Deck, error) {
 	o := opts.withDefaults()
-	src, err := o.ReadFile(filename)
+	read := o.ReadFile
+	if o.ConfineTop {
+		read = newPolicy(filename, &o).confineTop
+	}
+	src, err := read(filename)
 	if err != nil {
 		d := &Deck{File: filename, Top: newSubckt(nil), opts: o}
+		if msg, ok := refused(err, false); ok {
+			d.Diagnostics.Addf(Pos{File: filename, Line: 1, Col: 1}, "netlist %s", msg)
+			return d, d.Diagnostics.Err()
+		}
 		var pe *fs.PathError
 		if errors.As(err, &pe) && pe.Path == filename {
 			err = pe.Err // the position already names the file
@@ -25,7 +33,8 @@ func Load(filename string, opts *LoadOptions) (*Deck, error) {
 }
 
 // Parse parses the netlist src read from filename. Includes are read with
-// opts.ReadFile relative to the including file. The first line is the title,
+// opts.ReadFile relative to the including file, and only inside the folder
+// of filename and opts.IncludeDirs (the include policy, open.go). The first line is the title,
 // unless it starts with '.' (a library file that starts with a statement) or
 // is an annotation.
 //
@@ -35,10 +44,12 @@ func Load(filename string, opts *LoadOptions) (*Deck, error) {
 func Parse(filename string, src []byte, opts *LoadOptions) (*Deck, error) {
 	o := opts.withDefaults()
 	d := &Deck{File: filename, Top: newSubckt(nil), opts: o}
-	r := &reader{opts: o, errs: &d.Diagnostics}
+	ro := o
+	ro.ReadFile = newPolicy(filename, &o).read // every include goes through the policy
+	r := &reader{opts: ro, errs: quoted{&d.Diagnostics}}
 	r.readTop(filename, src)
 	d.Title, d.TitlePos, d.Files = r.title, r.tpos, r.files
-	p := &parser{d: d, errs: &d.Diagnostics, cur: d.Top, max: o.MaxElements}
+	p := &parser{d: d, errs: quoted{&d.Diagnostics}, cur: d.Top, max: o.MaxElements}
 	for i := range r.out {
 		p.logical(&r.out[i])
 	}
@@ -72,7 +83,7 @@ func newSubckt(parent *Subckt) *Subckt {
 // parser builds a Deck from logical lines.
 type parser struct {
 	d      *Deck
-	errs   *ErrorList
+	errs   quoted
 	cur    *Subckt
 	depth  int // nesting of the definition being read
 	skip   int // nesting inside a definition too deep to read
@@ -181,7 +192,7 @@ func (p *parser) value(t token, what string) (Value, bool) {
 	case tExpr:
 		return Value{Text: t.text, Braced: true, Pos: t.pos}, true
 	}
-	p.errs.Addf(t.pos, "%s: expected a value, found %s", what, t)
+	p.errs.Addf(t.pos, "%s: expected a value, found %s", verbatim(what), t)
 	return Value{}, false
 }
 
@@ -471,7 +482,7 @@ func (p *parser) element(toks []token) {
 	default:
 		if len(calls) > 0 {
 			c := calls[0]
-			p.errs.Addf(c.tok.pos, "%s: %s(...) is not supported on a %s element", e.Name.Text, c.tok.text, kindName(e.Kind))
+			p.errs.Addf(c.tok.pos, "%s: %s(...) is not supported on a %s element", e.Name.Text, c.tok.text, verbatim(kindName(e.Kind)))
 			ok = false
 			break
 		}
@@ -564,7 +575,7 @@ func needsValue(k Kind) bool {
 func (p *parser) nodes(e *ElementStmt, its []item, n int, what string) bool {
 	for i := 0; i < n; i++ {
 		if i >= len(its) {
-			p.errs.Addf(e.Name.Pos, "%s needs %s, found %d", e.Name.Text, what, i)
+			p.errs.Addf(e.Name.Pos, "%s needs %s, found %d", e.Name.Text, verbatim(what), i)
 			return false
 		}
 		it := its[i]
@@ -629,13 +640,13 @@ func (p *parser) fixed(e *ElementStmt, pos []item, pairs []item) bool {
 		rest = kept
 	}
 	tooMany := func(it item) bool {
-		p.errs.Addf(it.tok.pos, "%s: unexpected %s; a %s takes %s", e.Name.Text, it.tok, kindName(e.Kind), what)
+		p.errs.Addf(it.tok.pos, "%s: unexpected %s; a %s takes %s", e.Name.Text, it.tok, verbatim(kindName(e.Kind)), verbatim(what))
 		return false
 	}
 	switch e.Kind {
 	case 'R', 'C', 'L', 'E', 'G':
 		if len(rest) == 0 && !hasValuePair && (e.Kind == 'E' || e.Kind == 'G') {
-			p.errs.Addf(e.Name.Pos, "%s needs %s", e.Name.Text, what)
+			p.errs.Addf(e.Name.Pos, "%s needs %s", e.Name.Text, verbatim(what))
 			return false
 		}
 		if len(rest) > 1 {
@@ -652,7 +663,7 @@ func (p *parser) fixed(e *ElementStmt, pos []item, pairs []item) bool {
 		// A name (the controlling source, or the model) and an optional
 		// value (the gain, or the area factor).
 		if len(rest) == 0 || rest[0].tok.kind != tWord {
-			p.errs.Addf(e.Name.Pos, "%s needs %s", e.Name.Text, what)
+			p.errs.Addf(e.Name.Pos, "%s needs %s", e.Name.Text, verbatim(what))
 			return false
 		}
 		if len(rest) > 2 {
@@ -674,7 +685,7 @@ func (p *parser) fixed(e *ElementStmt, pos []item, pairs []item) bool {
 		}
 	case 'Q':
 		if len(rest) == 0 {
-			p.errs.Addf(e.Name.Pos, "%s needs %s", e.Name.Text, what)
+			p.errs.Addf(e.Name.Pos, "%s needs %s", e.Name.Text, verbatim(what))
 			return false
 		}
 		if len(rest) > 3 {
@@ -764,7 +775,7 @@ func (p *parser) source(e *ElementStmt, its []item) *SourceStmt {
 		var out []Value
 		for _, a := range args {
 			if a.kind != iValue {
-				p.errs.Addf(a.tok.pos, "%s: %s: expected a value, found %s", e.Name.Text, what, a.tok)
+				p.errs.Addf(a.tok.pos, "%s: %s: expected a value, found %s", e.Name.Text, verbatim(what), a.tok)
 				return nil, false
 			}
 			v, ok := p.value(a.tok, e.Name.Text)
@@ -795,7 +806,7 @@ func (p *parser) source(e *ElementStmt, its []item) *SourceStmt {
 			if k == WavePWL {
 				want = "time, value pairs"
 			}
-			p.errs.Addf(kw.pos, "%s: %s needs %s, found %d", e.Name.Text, strings.ToUpper(kw.text), want, len(v))
+			p.errs.Addf(kw.pos, "%s: %s needs %s, found %d", e.Name.Text, strings.ToUpper(kw.text), verbatim(want), len(v))
 			return
 		}
 		s.Wave, s.WaveArgs, s.WavePos = k, v, kw.pos

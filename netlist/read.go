@@ -3,9 +3,7 @@ package netlist
 import (
 	"bytes"
 	"errors"
-	"io"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"strings"
 )
@@ -36,6 +34,22 @@ type LoadOptions struct {
 	MaxLineLength int
 	// MaxElements bounds the flat element count (0: default 200000).
 	MaxElements int
+
+	// IncludeDirs are the folders, besides the top file's own folder, that
+	// .include and .lib files may be read from (see open.go): a file
+	// outside all of them, after ".." is applied and links are resolved,
+	// is a located error.
+	IncludeDirs []string
+	// IncludeHint ends the message about a refused include: how the user
+	// allows a folder (the CLI names its --include-dir flag). Nil says to
+	// add the folder to IncludeDirs.
+	IncludeHint func(dir string) string
+	// ConfineTop holds the top file itself to the policy: its path, links
+	// resolved, must lie inside its folder or IncludeDirs. For files found
+	// by searching a folder, where a link could lead anywhere.
+	ConfineTop bool
+
+	osFiles bool // ReadFile is the default file-system reader
 }
 
 // withDefaults returns a copy of o with zero fields set to the defaults.
@@ -56,20 +70,10 @@ func (o *LoadOptions) withDefaults() LoadOptions {
 	set(&r.MaxElements, DefaultMaxElements)
 	if r.ReadFile == nil {
 		limit := r.MaxFileSize
-		r.ReadFile = func(path string) ([]byte, error) { return readLimited(path, limit) }
+		r.ReadFile = func(path string) ([]byte, error) { return readRegular(path, limit) }
+		r.osFiles = true
 	}
 	return r
-}
-
-// readLimited reads at most limit+1 bytes of the file at path: enough to
-// tell that it is over the limit without holding all of it.
-func readLimited(path string, limit int) ([]byte, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, err
-	}
-	defer f.Close()
-	return io.ReadAll(io.LimitReader(f, int64(limit)+1))
 }
 
 // logical is one logical line: a statement with its continuation lines
@@ -83,7 +87,7 @@ type logical struct {
 // reader turns files into a stream of logical lines, resolving includes.
 type reader struct {
 	opts  LoadOptions
-	errs  *ErrorList
+	errs  quoted
 	out   []logical
 	files []string
 	title string
@@ -120,10 +124,21 @@ func (r *reader) readTop(name string, src []byte) {
 func (r *reader) readFile(name string, src []byte, depth int, stack []string, want string, incPos Pos, top bool) {
 	r.files = append(r.files, name)
 	if len(src) > r.opts.MaxFileSize {
-		r.errs.Addf(orFile(incPos, name), "file %q is larger than the limit of %d bytes (%d MiB)", name, r.opts.MaxFileSize, r.opts.MaxFileSize>>20)
+		r.errs.Addf(orFile(incPos, name), "file %q is larger than the limit of %d bytes (%d MiB)", verbatim(name), r.opts.MaxFileSize, r.opts.MaxFileSize>>20)
 		return
 	}
 	src = bytes.TrimPrefix(src, []byte("\xef\xbb\xbf"))
+	// A file that is not a netlist at all gets one error, quoting nothing
+	// of it: binary (at its first control byte), or mostly foreign lines.
+	if line, col, c, ok := firstBinary(src); ok {
+		r.errs.Addf(Pos{File: name, Line: line, Col: col}, "file %q is not text: control byte 0x%02x", verbatim(name), c)
+		return
+	}
+	if foreign, counted, first := notNetlist(string(src), top); foreign*2 > counted {
+		r.errs.Addf(orFile(incPos, name), "file %q does not read as a netlist: %d of its %d statement lines are not netlist lines (the first is line %d); nothing of it is read",
+			verbatim(name), foreign, counted, first)
+		return
+	}
 	f := &fileState{r: r, name: name, depth: depth, stack: append(stack[:len(stack):len(stack)], filepath.Clean(name)), want: want}
 	text := string(src)
 	f.hasEndl = hasEndl(text)
@@ -148,11 +163,6 @@ func (r *reader) readFile(name string, src []byte, depth int, stack []string, wa
 			r.errs.Addf(Pos{File: name, Line: lineNo, Col: 1}, "line is longer than the limit of %d bytes", r.opts.MaxLineLength)
 			continue
 		}
-		if col, ok := binaryByte(ln); ok {
-			r.errs.Addf(Pos{File: name, Line: lineNo, Col: col}, "file %q is not text: control byte 0x%02x", name, ln[col-1])
-			f.pending = nil
-			return
-		}
 		if top && lineNo == 1 {
 			t := strings.TrimSpace(ln)
 			if !strings.HasPrefix(t, ".") && !strings.HasPrefix(t, "*@") && !strings.HasPrefix(t, "+") {
@@ -171,7 +181,7 @@ func (r *reader) readFile(name string, src []byte, depth int, stack []string, wa
 		r.errs.Warnf(f.secPos, ".lib section %s is never closed with .endl", f.section)
 	}
 	if want != "" && !f.found {
-		r.errs.Addf(incPos, "library %q has no section %q", name, want)
+		r.errs.Addf(incPos, "library %q has no section %q", verbatim(name), want)
 	}
 }
 
@@ -198,6 +208,28 @@ func hasEndl(text string) bool {
 		}
 	}
 	return false
+}
+
+// firstBinary returns the line and column of the first byte of src that no
+// text file holds (see binaryByte), and the byte; what follows a .end line
+// is not looked at.
+func firstBinary(src []byte) (line, col int, c byte, ok bool) {
+	text := string(src)
+	for line = 1; len(text) > 0; line++ {
+		ln := text
+		if i := strings.IndexByte(text, '\n'); i >= 0 {
+			ln, text = text[:i], text[i+1:]
+		} else {
+			text = ""
+		}
+		if col, ok := binaryByte(ln); ok {
+			return line, col, ln[col-1], true
+		}
+		if firstWord(ln) == ".end" {
+			break
+		}
+	}
+	return 0, 0, 0, false
 }
 
 // binaryByte returns the 1-based column of the first control byte in ln that
@@ -240,7 +272,7 @@ func (f *fileState) line(ln string, lineNo int) {
 		return
 	}
 	if word == ".lib" && f.hasEndl {
-		toks := tokenize(trimmed, f.name, lineNo, col, r.errs)
+		toks := tokenize(trimmed, f.name, lineNo, col, r.errs.ErrorList)
 		if len(toks) == 2 {
 			f.flush()
 			if f.section != "" {
@@ -265,7 +297,7 @@ func (f *fileState) line(ln string, lineNo int) {
 	}
 	switch {
 	case strings.HasPrefix(trimmed, "*@"):
-		a := parseAnnotation(trimmed, pos, r.errs)
+		a := parseAnnotation(trimmed, pos, r.errs.ErrorList)
 		if a == nil {
 			return
 		}
@@ -278,7 +310,7 @@ func (f *fileState) line(ln string, lineNo int) {
 	case trimmed[0] == '*':
 		// comment line
 	case trimmed[0] == '+':
-		toks := tokenize(trimmed[1:], f.name, lineNo, col+1, r.errs)
+		toks := tokenize(trimmed[1:], f.name, lineNo, col+1, r.errs.ErrorList)
 		if f.pending == nil {
 			r.errs.Addf(pos, "continuation line '+' with no statement before it to continue")
 			return
@@ -295,7 +327,7 @@ func (f *fileState) line(ln string, lineNo int) {
 			f.ctrlPos = pos
 			return
 		}
-		toks := tokenize(trimmed, f.name, lineNo, col, r.errs)
+		toks := tokenize(trimmed, f.name, lineNo, col, r.errs.ErrorList)
 		if len(toks) > 0 {
 			f.pending = &logical{toks: toks, raw: strings.TrimSpace(trimmed)}
 		}
@@ -361,12 +393,12 @@ func (f *fileState) include(l *logical) bool {
 	name := resolvePath(f.name, t[1].text)
 	clean := filepath.Clean(name)
 	if clean == filepath.Clean(f.name) {
-		r.errs.Addf(t[1].pos, "file %q includes itself", t[1].text)
+		r.errs.Addf(t[1].pos, "file %q includes itself", pathText(t[1].text, f.depth))
 		return true
 	}
 	for _, s := range f.stack {
 		if s == clean {
-			r.errs.Addf(t[1].pos, "include cycle: %s is already being read (%s)", t[1].text, strings.Join(append(f.stack, clean), " -> "))
+			r.errs.Addf(t[1].pos, "include cycle: %s is already being read (%s)", pathText(t[1].text, f.depth), verbatim(strings.Join(append(f.stack, clean), " -> ")))
 			return true
 		}
 	}
@@ -374,12 +406,15 @@ func (f *fileState) include(l *logical) bool {
 		r.errs.Addf(t[1].pos, "includes nested deeper than the limit of %d", r.opts.MaxIncludeDepth)
 		return true
 	}
+	// r.opts.ReadFile holds the include policy (Parse wraps it; open.go).
 	src, err := r.opts.ReadFile(name)
 	if err != nil {
-		if errors.Is(err, fs.ErrNotExist) {
-			r.errs.Addf(t[1].pos, "include file not found: %q", t[1].text)
+		if msg, ok := refused(err, f.depth > 0); ok {
+			r.errs.Addf(t[1].pos, "include %q %s", pathText(t[1].text, f.depth), verbatim(msg))
+		} else if errors.Is(err, fs.ErrNotExist) {
+			r.errs.Addf(t[1].pos, "include file not found: %q", pathText(t[1].text, f.depth))
 		} else {
-			r.errs.Addf(t[1].pos, "cannot read include file %q: %v", t[1].text, err)
+			r.errs.Addf(t[1].pos, "cannot read include file %q: %s", pathText(t[1].text, f.depth), verbatim(readErrText(err)))
 		}
 		return true
 	}

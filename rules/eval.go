@@ -69,6 +69,8 @@ type Finding struct {
 	// Change is a computed resistor value change that clears the finding
 	// in every case (package rules/fix), or nil.
 	Change *Change `json:"change,omitempty"`
+	// WaiverExternal: the waiver is in a board file, not in the netlist.
+	WaiverExternal bool `json:"waiver_external,omitempty"`
 	// AlsoIn lists the other cases where the rule is violated on the
 	// device, and UnjudgedIn those where it could not be judged, as
 	// "scenario" or "scenario/corner".

@@ -19,9 +19,9 @@ func TestRelatedKey(t *testing.T) {
 	for _, tc := range []struct{ src, want string }{
 		{"name: t\nrules:\n  - id: a\n    severity: note\n    subject: transistor\n    when: vce > 1\n    message: m\n    related: [bleed resistr]\n",
 			// "    related: [bleed resistr]": the item starts at col 15.
-			`t.yaml:8:15: related: "bleed resistr" is not a role`},
+			`t.yaml:8:15: error: related: "bleed resistr" is not a role`},
 		{"name: t\nrules:\n  - id: a\n    severity: note\n    subject: node\n    when: v > 1\n    message: m\n    related: [drive]\n",
-			"t.yaml:3:9: rule a: related names parts near a transistor"},
+			"t.yaml:3:9: error: rule a: related names parts near a transistor"},
 	} {
 		_, err := Parse("t.yaml", []byte(tc.src), LoadOptions{})
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {

@@ -217,22 +217,22 @@ func TestCombine(t *testing.T) {
 		t.Errorf("user class like BC547: %+v %v", p, ok)
 	}
 	bad, _ := LoadParts("mine.yaml", []byte("parts:\n  - {class: c, polarity: npn, like: NOPE}\n"))
-	if _, err := Combine(bad, lib); err == nil || !strings.Contains(err.Error(), "mine.yaml:2:5: parts library: class \"c\": like \"NOPE\" names no type") {
+	if _, err := Combine(bad, lib); err == nil || !strings.Contains(err.Error(), "mine.yaml:2:5: error: parts library: class \"c\": like \"NOPE\" names no type") {
 		t.Errorf("unresolved like: %v", err)
 	}
 }
 
 func TestLoadPartsErrors(t *testing.T) {
 	for _, tc := range []struct{ src, want string }{
-		{"parts:\n  - class: a\n    vceoo: 3\n", "x.yaml:2:5: parts library: unknown key \"vceoo\" at line 3"},
-		{"parts:\n  - class: a\n    polarity: nnp\n", "x.yaml:2:5: parts library: \"a\": polarity"},
-		{"parts:\n  - class: a\n  - class: A\n", "x.yaml:3:5: parts library: \"A\" defined twice"},
-		{"parts:\n  - class: a\n    vceo: -3\n", "x.yaml:2:5: parts library: \"a\": vceo must not be negative"},
-		{"parts:\n  - {type: T1, class: T1}\n", "x.yaml:2:5: parts library: entry \"T1\" is both"},
-		{"parts:\n  - {type: T1}\n", "x.yaml:2:5: parts library: type \"T1\" needs a polarity"},
-		{"parts:\n  - {type: T1, polarity: npn, groups: {A: [3, 2]}}\n", "x.yaml:2:5: parts library: \"T1\": hFE group \"A\" must be"},
-		{"partz: []\n", "x.yaml:1:1: parts library: unknown key"},
-		{"parts: [\n", "x.yaml:1:1: parts library: did not find expected node content"},
+		{"parts:\n  - class: a\n    vceoo: 3\n", "x.yaml:2:5: error: parts library: unknown key \"vceoo\" at line 3"},
+		{"parts:\n  - class: a\n    polarity: nnp\n", "x.yaml:2:5: error: parts library: \"a\": polarity"},
+		{"parts:\n  - class: a\n  - class: A\n", "x.yaml:3:5: error: parts library: \"A\" defined twice"},
+		{"parts:\n  - class: a\n    vceo: -3\n", "x.yaml:2:5: error: parts library: \"a\": vceo must not be negative"},
+		{"parts:\n  - {type: T1, class: T1}\n", "x.yaml:2:5: error: parts library: entry \"T1\" is both"},
+		{"parts:\n  - {type: T1}\n", "x.yaml:2:5: error: parts library: type \"T1\" needs a polarity"},
+		{"parts:\n  - {type: T1, polarity: npn, groups: {A: [3, 2]}}\n", "x.yaml:2:5: error: parts library: \"T1\": hFE group \"A\" must be"},
+		{"partz: []\n", "x.yaml:1:1: error: parts library: unknown key"},
+		{"parts: [\n", "x.yaml:1:1: error: parts library: did not find expected node content"},
 	} {
 		_, err := LoadParts("x.yaml", []byte(tc.src))
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {

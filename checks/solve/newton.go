@@ -59,7 +59,7 @@ func (e *ConvergenceError) Error() string {
 	var b strings.Builder
 	if e.Pos.IsValid() || e.Pos.File != "" {
 		b.WriteString(e.Pos.String())
-		b.WriteString(": ")
+		b.WriteString(": error: ")
 	}
 	b.WriteString("no DC operating point found: ")
 	if e.Cause != nil {
@@ -150,7 +150,13 @@ func (s *System) newWork(opt Options) (*work, error) {
 	}
 	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1}
 	if w.lin == nil {
-		w.lin = NewDenseLU()
+		if s.lin == nil {
+			s.lin = NewLU()
+		}
+		w.lin = s.lin
+	}
+	if r, ok := w.lin.(interface{ Repivot() }); ok {
+		r.Repivot()
 	}
 	if w.bjt, w.dio, err = s.devices(opt, st); err != nil {
 		return nil, err
@@ -362,7 +368,7 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 		}
 		m := &matrixSink{lin: w.lin, rhs: w.rhs}
 		w.stampLinear(m)
-		w.stampDevices(m, nil, true)
+		w.stampDevices(m, x, true)
 		w.iters++
 		if err := w.lin.Factor(); err != nil {
 			var se *SingularError

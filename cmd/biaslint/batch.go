@@ -64,12 +64,32 @@ func hasGlobMeta(s string) bool { return strings.ContainsAny(s, "*?[") }
 // files are sorted by path; the arguments keep their order; a path named
 // twice is read once.
 func expandArgs(args []string) ([]string, error) {
+	found, err := expand(args)
 	var out []string
+	for _, f := range found {
+		out = append(out, f.path)
+	}
+	return out, err
+}
+
+// argFile is one netlist a FILE argument expanded to. root is the folder
+// argument it was found in ("" for a file named or matched directly), and
+// searched says it was found by a search (a folder walk or a glob) rather
+// than named: such a file must not be a link that leads out of its folder.
+type argFile struct {
+	path, root string
+	searched   bool
+}
+
+// expand is expandArgs, keeping where each file came from.
+func expand(args []string) ([]argFile, error) {
+	var out []argFile
 	seen := map[string]bool{}
+	root, searched := "", false
 	add := func(p string) error {
 		if k := filepath.Clean(p); !seen[k] {
 			seen[k] = true
-			out = append(out, p)
+			out = append(out, argFile{path: p, root: root, searched: searched})
 		}
 		if len(out) > maxBatchFiles {
 			return fmt.Errorf("biaslint: more than %d netlists named; check a smaller set at a time", maxBatchFiles)
@@ -97,10 +117,10 @@ func expandArgs(args []string) ([]string, error) {
 			return nil
 		})
 		if err != nil {
-			return fmt.Errorf("%s: cannot read directory: %v", dir, err)
+			return fmt.Errorf("%s: error: cannot read directory: %v", dir, err)
 		}
 		if len(found) == 0 {
-			return fmt.Errorf("%s: no netlist files (%s) in this directory", dir, strings.Join(NetlistExts, " "))
+			return fmt.Errorf("%s: error: no netlist files (%s) in this directory", dir, strings.Join(NetlistExts, " "))
 		}
 		sort.Strings(found)
 		for _, p := range found {
@@ -111,9 +131,18 @@ func expandArgs(args []string) ([]string, error) {
 		return nil
 	}
 	for _, a := range args {
+		if a == "-" { // standard input, read once however often named
+			root, searched = "", false
+			if err := add(a); err != nil {
+				return nil, err
+			}
+			continue
+		}
 		fi, err := os.Stat(a)
+		root, searched = "", false
 		switch {
 		case err == nil && fi.IsDir():
+			root, searched = a, true
 			if err := walk(a); err != nil {
 				return nil, err
 			}
@@ -125,14 +154,16 @@ func expandArgs(args []string) ([]string, error) {
 		default:
 			matches, gerr := filepath.Glob(a)
 			if gerr != nil {
-				return nil, fmt.Errorf("%s: bad pattern: %v", a, gerr)
+				return nil, fmt.Errorf("%s: error: bad pattern: %v", a, gerr)
 			}
 			if len(matches) == 0 {
-				return nil, fmt.Errorf("%s: no file matches", a)
+				return nil, fmt.Errorf("%s: error: no file matches", a)
 			}
 			sort.Strings(matches)
 			for _, m := range matches {
+				root, searched = "", true
 				if mi, err := os.Stat(m); err == nil && mi.IsDir() {
+					root = m
 					if err := walk(m); err != nil {
 						return nil, err
 					}

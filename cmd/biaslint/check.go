@@ -23,9 +23,6 @@ import (
 	"github.com/biaslint/biaslint/rulesets"
 )
 
-// version is the tool version written into SARIF reports.
-const version = "0.1.0"
-
 var (
 	rulesetFlag = &cli.StringSliceFlag{
 		Name:  "ruleset",
@@ -63,7 +60,7 @@ func checkCommand() *cli.Command {
 			rulesetFlag, setFlag,
 			&cli.StringSliceFlag{Name: "only", Usage: "judge only these rule `IDS` (comma-separated or repeated)"},
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
-			partsFlag, boardFlag, ambientFlag, tempFlag,
+			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
 			colorFlag, outputFlag, demoFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
@@ -73,7 +70,9 @@ func checkCommand() *cli.Command {
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
 			fixesFlag,
+			configFlag, noConfigFlag,
 		},
+		Before: applyProjectFile,
 		Action: runCheck,
 	}
 }
@@ -154,7 +153,7 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 	}
 	src, err := os.ReadFile(path)
 	if err != nil {
-		return nil, badInput(fmt.Errorf("%s: cannot read parts library: %v", path, err))
+		return nil, badInput(fmt.Errorf("%s: error: cannot read parts library: %v", path, err))
 	}
 	user, err := rulesets.LoadParts(path, src)
 	if err != nil {
@@ -204,7 +203,7 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 			return nil, badInput(err)
 		}
 	}
-	run.report.Version = version
+	run.report.Version = toolVersion()
 	run.report.RuleSet = set
 	opt, err := worstCaseOptions(c, set)
 	if err != nil {
@@ -256,7 +255,7 @@ func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.F
 	}
 	var waivers []rules.Waiver
 	for _, w := range an.Board.Waivers {
-		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
+		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos, External: w.External})
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
@@ -329,6 +328,9 @@ func runCheck(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	if run.report.AtOrAbove(failOn) {
+		run.report.ExitCode = exitFindings
+	}
 	var out bytes.Buffer
 	switch format {
 	case "json":
@@ -350,8 +352,8 @@ func runCheck(c *cli.Context) error {
 	if err := emit(c, &out); err != nil {
 		return err
 	}
-	if run.report.AtOrAbove(failOn) {
-		return &statusError{code: exitFindings}
+	if run.report.ExitCode != exitOK {
+		return &statusError{code: run.report.ExitCode}
 	}
 	return nil
 }

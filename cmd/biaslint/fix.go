@@ -52,6 +52,7 @@ func fixCommand() *cli.Command {
 			"are verified together by checking the changed text again, then each changed file is replaced " +
 			"atomically and only the values' text changes. --preview shows the diff instead.",
 		Flags:  flags,
+		Before: applyProjectFile,
 		Action: runFix,
 	}
 }

@@ -3,7 +3,11 @@ package main
 import (
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
+	"os"
+	"strconv"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
@@ -16,14 +20,39 @@ var demoFlag = &cli.BoolFlag{
 	Usage: "run on the demo board built into the binary instead of FILE arguments",
 }
 
-// input is one netlist to read: a file on disk, or the embedded demo.
+// input is one netlist to read: a file on disk, the embedded demo, or
+// text already read (standard input), in src.
 type input struct {
 	name string
 	opts *netlist.LoadOptions
+	src  []byte
 }
 
 func (in input) read() (*netlist.Circuit, error) {
+	if in.src != nil {
+		return netlist.ReadSource(in.name, in.src, in.opts)
+	}
 	return netlist.Read(in.name, in.opts)
+}
+
+// stdinName is how a netlist read from standard input ("-" as FILE) is
+// named in positions and reports. Its includes are resolved from the
+// current directory, as filepath.Dir of this name is ".".
+const stdinName = "<stdin>"
+
+// stdin is where "-" reads from; tests replace it.
+var stdin io.Reader = os.Stdin
+
+// readStdin reads standard input, up to the netlist file-size limit.
+func readStdin() ([]byte, error) {
+	src, err := io.ReadAll(io.LimitReader(stdin, netlist.DefaultMaxFileSize+1))
+	if err != nil {
+		return nil, fmt.Errorf("%s: error: cannot read standard input: %v", stdinName, err)
+	}
+	if len(src) > netlist.DefaultMaxFileSize {
+		return nil, fmt.Errorf("%s:1:1: error: standard input is larger than the limit of %d bytes (16 MiB)", stdinName, netlist.DefaultMaxFileSize)
+	}
+	return src, nil
 }
 
 // fileArgs returns a command's FILE arguments: all of them, except for
@@ -49,15 +78,64 @@ func inputsOf(c *cli.Context) ([]input, error) {
 	if len(args) == 0 {
 		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, or use --demo)", c.Command.Name))
 	}
-	names, err := expandArgs(args)
+	dirs, err := includeDirs(c)
+	if err != nil {
+		return nil, err
+	}
+	found, err := expand(args)
 	if err != nil {
 		return nil, badInput(err)
 	}
 	var ins []input
-	for _, a := range names {
-		ins = append(ins, input{name: a})
+	for _, f := range found {
+		o := &netlist.LoadOptions{IncludeDirs: dirs, IncludeHint: includeHint, ConfineTop: f.searched}
+		if f.root != "" {
+			// A folder argument: its files may include from all of it.
+			o.IncludeDirs = append([]string{f.root}, dirs...)
+		}
+		if f.path != "-" {
+			ins = append(ins, input{name: f.path, opts: o})
+			continue
+		}
+		src, err := readStdin()
+		if err != nil {
+			return nil, badInput(err)
+		}
+		if src == nil {
+			src = []byte{}
+		}
+		ins = append(ins, input{name: stdinName, opts: o, src: src})
 	}
 	return ins, nil
+}
+
+// includeDirFlag names further folders includes may be read from.
+var includeDirFlag = &cli.StringSliceFlag{
+	Name: "include-dir",
+	Usage: "also let .include and .lib read files from `DIR` (repeatable); by default only the netlist's folder " +
+		"(for a folder argument, that folder) is allowed",
+}
+
+// includeDirs returns the folders of --include-dir, each checked to be a
+// folder. (The project file's folders join here too.)
+func includeDirs(c *cli.Context) ([]string, error) {
+	var out []string
+	for _, d := range c.StringSlice("include-dir") {
+		fi, err := os.Stat(d)
+		if err != nil || !fi.IsDir() {
+			return nil, badInput(fmt.Errorf("biaslint: --include-dir %s: not a folder", d))
+		}
+		out = append(out, d)
+	}
+	return out, nil
+}
+
+// includeHint tells how to allow a folder an include was refused from.
+func includeHint(dir string) string {
+	if strings.ContainsAny(dir, " \t'\"") {
+		dir = strconv.Quote(dir)
+	}
+	return "pass --include-dir " + dir
 }
 
 // demoFile serves the embedded demo netlist and nothing else.

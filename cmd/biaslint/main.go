@@ -15,6 +15,8 @@ import (
 	"strings"
 
 	"github.com/urfave/cli/v2"
+
+	"github.com/biaslint/biaslint/rules/report"
 )
 
 // Exit statuses.
@@ -54,7 +56,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 	var se *statusError
 	if errors.As(err, &se) {
 		if se.err != nil && se.err.Error() != "" {
-			fmt.Fprintln(stderr, se.err)
+			// Messages quote input: escape what could drive a terminal.
+			fmt.Fprintln(stderr, report.Printable(se.err.Error()))
 		}
 		return se.code
 	}
@@ -114,9 +117,11 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		Usage: "solve and judge the DC bias of every BJT in a netlist",
 		Description: "biaslint reads SPICE-syntax netlists, solves each bipolar transistor's DC operating point " +
 			"(modified nodal analysis, Newton-Raphson, Gummel-Poon equations) and reports it.",
+		Version:         toolVersion(),
 		Writer:          stdout,
 		ErrWriter:       stderr,
-		HideHelpCommand: true,
+		HideHelpCommand: true, // ours is helpCommand
+		Action:          noCommand,
 		Commands: []*cli.Command{
 			checkCommand(),
 			opCommand(),
@@ -126,6 +131,9 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			plotCommand(),
 			initCommand(),
 			fixCommand(),
+			versionCommand(),
+			completionCommand(),
+			helpCommand(),
 		},
 		// Usage errors are exit status 2, like bad input.
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
@@ -133,6 +141,9 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		},
 		ExitErrHandler: func(c *cli.Context, err error) {},
 	}
+	// --version prints what "biaslint version" prints.
+	cli.VersionFlag = &cli.BoolFlag{Name: "version", Usage: "print biaslint's version and the commit it was built from"}
+	cli.VersionPrinter = func(c *cli.Context) { fmt.Fprintln(c.App.Writer, readBuildInfo()) }
 	for _, cmd := range app.Commands {
 		name := cmd.Name
 		cmd.OnUsageError = func(c *cli.Context, err error, isSubcommand bool) error {

@@ -6,13 +6,13 @@ import (
 	"fmt"
 	"math"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
 
 	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/netlist/units"
+	"github.com/biaslint/biaslint/rules/report"
 )
 
 func opCommand() *cli.Command {
@@ -22,7 +22,7 @@ func opCommand() *cli.Command {
 		ArgsUsage: "FILE...",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "text", Usage: formatFlagUsage + ": text or json"},
-			tempFlag,
+			tempFlag, includeDirFlag,
 			&cli.BoolFlag{Name: "thermal", Usage: "solve each transistor at its junction temperature T + P*RthJA (ratings from the parts library and *@part annotations)"},
 			colorFlag,
 			outputFlag,
@@ -97,9 +97,11 @@ func runOp(c *cli.Context) error {
 	case "json":
 		enc := json.NewEncoder(&out)
 		enc.SetIndent("", "  ")
+		enc.SetEscapeHTML(false)
 		if err := enc.Encode(struct {
-			Results []opFile `json:"results"`
-		}{results}); err != nil {
+			FormatVersion int      `json:"format_version"`
+			Results       []opFile `json:"results"`
+		}{report.FormatVersion, results}); err != nil {
 			return badInput(err)
 		}
 	default:
@@ -168,16 +170,18 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		if i > 0 {
 			w.WriteString("\n")
 		}
-		head := r.File
+		// Names and titles come from the netlist: report.Printable keeps
+		// them from driving the terminal.
+		head := report.Printable(r.File)
 		if r.Title != "" {
-			head += "  " + p.dim(r.Title)
+			head += "  " + p.dim(report.Printable(r.Title))
 		}
 		fmt.Fprintln(w, p.bold(head))
 		fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", units.Format(r.Temperature, "C"), r.Method, r.Iterations)
 		if len(r.BJTs) == 0 {
 			fmt.Fprintln(w, "  no bipolar transistors")
 		} else {
-			tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+			tw := report.NewTabWriter(w)
 			fmt.Fprintln(tw, "  transistor\tmodel\tregion\tVBE\tVCE\tIC\tIB\tIC/IB\tpower\tTj")
 			for _, q := range r.BJTs {
 				tjText := "-"
@@ -185,7 +189,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 					tjText = units.Format(*q.Tj, "C")
 				}
 				fmt.Fprintf(tw, "  %s\t%s %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
-					q.Name, q.Model, p.dim(q.Polarity), regionText(p, q.Region),
+					report.Printable(q.Name), report.Printable(q.Model), p.dim(q.Polarity), regionText(p, q.Region),
 					units.Format(q.VBE, "V"), units.Format(q.VCE, "V"),
 					units.Format(q.IC, "A"), units.Format(q.IB, "A"),
 					forcedBeta(q), units.Format(q.Power, "W"), tjText)
@@ -193,10 +197,10 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			tw.Flush()
 		}
 		w.WriteString("\n")
-		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		tw := report.NewTabWriter(w)
 		fmt.Fprintln(tw, "  node\tvoltage")
 		for _, n := range r.nodeOrder {
-			fmt.Fprintf(tw, "  %s\t%s\n", n, units.Format(r.Nodes[n], "V"))
+			fmt.Fprintf(tw, "  %s\t%s\n", report.Printable(n), units.Format(r.Nodes[n], "V"))
 		}
 		tw.Flush()
 	}

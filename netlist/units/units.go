@@ -37,7 +37,7 @@ import (
 const Mil = 25.4e-6
 
 // maxQuoted bounds how much of an offending text an error message repeats.
-const maxQuoted = 40
+const maxQuoted = 24 // as netlist shows input: a short excerpt, never a whole line
 
 // quote returns s quoted for an error message, shortened if long.
 func quote(s string) string {

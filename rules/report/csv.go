@@ -42,7 +42,7 @@ func CSV(w io.Writer, r *Report) error {
 			if file == "" {
 				file = f.Path
 			}
-			rec := []string{cell(file), strconv.Itoa(x.Pos.Line), strconv.Itoa(x.Pos.Col), string(x.Severity), cell(x.Rule), cell(x.Device),
+			rec := []string{cell(file), strconv.Itoa(x.Pos.Line), strconv.Itoa(x.Pos.Col), cell(string(x.Severity)), cell(x.Rule), cell(x.Device),
 				cell(rules.CaseName(x.Scenario, x.Corner)), val, lim, cell(unit), cell(x.Message), cell(x.Fix),
 				strconv.FormatBool(x.Waived), cell(x.WaiverReason)}
 			if err := cw.Write(rec); err != nil {
@@ -65,7 +65,7 @@ func SummaryCSV(w io.Writer, r *Report) error {
 		f := &r.Files[i]
 		c := f.Counts()
 		rec := []string{cell(f.Path), cell(f.Title), strconv.Itoa(f.Transistors()), strconv.Itoa(c.Error), strconv.Itoa(c.Warning),
-			strconv.Itoa(c.Note), strconv.Itoa(c.Waived), f.TopRule()}
+			strconv.Itoa(c.Note), strconv.Itoa(c.Waived), cell(f.TopRule())}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
@@ -135,14 +135,22 @@ func sum(xs []int) int {
 	return n
 }
 
-// cell prepares a text for a CSV cell: folded onto one line, and, when it
-// begins with a character a spreadsheet reads as the start of a formula
-// (= + - @), prefixed with an apostrophe so it stays text (a netlist's file
-// or device name is not trusted input in a class's gradebook).
+// cell prepares a text for a CSV cell, as the OWASP guidance on CSV
+// injection recommends: folded onto one line (blanks, tabs and line breaks
+// to single spaces), control characters escaped (Printable), and, when it
+// begins with a character a spreadsheet reads as the start of a formula or
+// command (= + - @, tab, carriage return), prefixed with an apostrophe so it
+// stays text (a netlist's file or device name is not trusted input in a
+// class's gradebook). The csv package quotes separators and quotes inside.
 func cell(s string) string {
-	s = strings.Join(strings.Fields(s), " ")
-	if s != "" && strings.ContainsRune("=+-@", rune(s[0])) {
+	s = Printable(strings.Join(strings.Fields(s), " "))
+	if s != "" && strings.ContainsRune(formulaStart, rune(s[0])) {
 		s = "'" + s
 	}
 	return s
 }
+
+// formulaStart holds the first characters that make a spreadsheet read a
+// cell as a formula (OWASP, "CSV Injection"). Tab and carriage return
+// cannot begin a folded cell; they are listed so the rule reads whole.
+const formulaStart = "=+-@\t\r"

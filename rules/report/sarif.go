@@ -1,12 +1,15 @@
 package report
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"io"
 	"net/url"
 	"path/filepath"
 	"strings"
 
+	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/rules"
 )
 
@@ -81,16 +84,32 @@ type sarifSuppression struct {
 }
 
 type sarifResult struct {
-	RuleID    string          `json:"ruleId"`
-	RuleIndex int             `json:"ruleIndex"`
-	Level     string          `json:"level"`
-	Message   sarifText       `json:"message"`
-	Locations []sarifLocation `json:"locations"`
+	RuleID              string            `json:"ruleId"`
+	RuleIndex           int               `json:"ruleIndex"`
+	Level               string            `json:"level"`
+	Message             sarifText         `json:"message"`
+	Locations           []sarifLocation   `json:"locations"`
+	PartialFingerprints map[string]string `json:"partialFingerprints,omitempty"`
 	// RelatedLocations are the parts that make the finding happen.
 	RelatedLocations []sarifLocation    `json:"relatedLocations,omitempty"`
 	Suppressions     []sarifSuppression `json:"suppressions,omitempty"`
 	Fixes            []sarifFix         `json:"fixes,omitempty"`
 	Properties       map[string]any     `json:"properties,omitempty"`
+}
+
+// sarifNotification is a message about the run itself: here a warning or
+// note about reading the input.
+type sarifNotification struct {
+	Level     string          `json:"level"`
+	Message   sarifText       `json:"message"`
+	Locations []sarifLocation `json:"locations,omitempty"`
+}
+
+// sarifInvocation records how the run ended.
+type sarifInvocation struct {
+	ExecutionSuccessful        bool                `json:"executionSuccessful"`
+	ExitCode                   int                 `json:"exitCode"`
+	ToolExecutionNotifications []sarifNotification `json:"toolExecutionNotifications,omitempty"`
 }
 
 type sarifLog struct {
@@ -108,7 +127,51 @@ type sarifRun struct {
 			Rules          []sarifRule `json:"rules"`
 		} `json:"driver"`
 	} `json:"tool"`
-	Results []sarifResult `json:"results"`
+	Invocations []sarifInvocation `json:"invocations"`
+	Results     []sarifResult     `json:"results"`
+}
+
+// FingerprintKey names biaslint's entry in a SARIF result's
+// partialFingerprints; the suffix is the version of the recipe.
+const FingerprintKey = "biaslintFinding/v1"
+
+// Fingerprint identifies a finding across runs for code-review systems:
+// the SHA-256 (first 128 bits, hex) of the rule id, the device's flat
+// name and its nets, lower-cased and NUL-separated. Line numbers, values
+// and messages are left out on purpose, so the same finding keeps its
+// fingerprint when lines above it are edited or its value moves.
+func Fingerprint(f rules.Finding) string {
+	h := sha256.New()
+	for _, part := range append([]string{f.Rule, f.Device}, f.Nets...) {
+		h.Write([]byte(strings.ToLower(part)))
+		h.Write([]byte{0})
+	}
+	return hex.EncodeToString(h.Sum(nil)[:16])
+}
+
+// physical locates a file position for SARIF; the region is left out
+// when the position names no line.
+func physical(file string, p netlist.Pos) sarifLocation {
+	var loc sarifLocation
+	loc.PhysicalLocation.ArtifactLocation.URI = fileURI(file)
+	if p.Line > 0 {
+		loc.PhysicalLocation.Region = &sarifRegion{StartLine: p.Line, StartColumn: p.Col}
+	}
+	return loc
+}
+
+// ruleHelp is a rule's help text: the fix, the condition it fires on and
+// where to read more.
+func ruleHelp(ru *rules.Rule) string {
+	var parts []string
+	if fix := strings.TrimSpace(ru.Fix); fix != "" {
+		parts = append(parts, "Fix: "+strings.Join(strings.Fields(fix), " "))
+	}
+	if ru.When != "" {
+		parts = append(parts, "Fires when: "+strings.Join(strings.Fields(ru.When), " "))
+	}
+	parts = append(parts, "Run 'biaslint explain "+ru.ID+"' for the rationale, the value against the limit and the parameters.")
+	return strings.Join(parts, "\n\n")
 }
 
 // fileURI turns a path into a relative URI reference with forward slashes.
@@ -130,16 +193,20 @@ func firstSentence(s string) string {
 }
 
 // SARIF writes the findings as one SARIF 2.1.0 run: the active rules'
-// metadata in the driver's rules array (rationale, fix, default level,
-// condition), one result per finding located at the device's netlist line,
-// and waived findings as results with an in-source suppression carrying the
-// waiver's reason.
+// metadata in the driver's rules array (rationale, help with the fix and
+// condition, default level), one result per finding located at the
+// device's netlist line with a partial fingerprint (see Fingerprint),
+// waived findings as results with a suppression carrying the waiver's
+// reason (inSource for a netlist annotation, external for a board file),
+// and one invocation with the exit code and the input warnings and notes
+// as tool-execution notifications.
 func SARIF(w io.Writer, r *Report) error {
 	var run sarifRun
 	run.Tool.Driver.Name = "biaslint"
 	run.Tool.Driver.Version = r.Version
 	run.Tool.Driver.Rules = []sarifRule{}
 	run.Results = []sarifResult{}
+	inv := sarifInvocation{ExecutionSuccessful: true, ExitCode: r.ExitCode}
 	index := map[string]int{}
 	addRule := func(sr sarifRule) int {
 		if i, ok := index[sr.ID]; ok {
@@ -160,9 +227,7 @@ func SARIF(w io.Writer, r *Report) error {
 			if ru.Rationale != "" {
 				sr.FullDescription = &sarifText{strings.TrimSpace(ru.Rationale)}
 			}
-			if ru.Fix != "" {
-				sr.Help = &sarifText{strings.TrimSpace(ru.Fix)}
-			}
+			sr.Help = &sarifText{ruleHelp(ru)}
 			addRule(sr)
 		}
 	}
@@ -171,20 +236,17 @@ func SARIF(w io.Writer, r *Report) error {
 			idx := addRule(sarifRule{ID: x.Rule, ShortDescription: sarifText{x.Rule},
 				DefaultConfiguration: sarifConfig{Level: level(x.Severity)}})
 			res := sarifResult{RuleID: x.Rule, RuleIndex: idx, Level: level(x.Severity), Message: sarifText{x.Message}}
-			var loc sarifLocation
 			file := x.Pos.File
 			if file == "" {
 				file = f.Path
 			}
-			loc.PhysicalLocation.ArtifactLocation.URI = fileURI(file)
-			if x.Pos.Line > 0 {
-				loc.PhysicalLocation.Region = &sarifRegion{StartLine: x.Pos.Line, StartColumn: x.Pos.Col}
-			}
+			loc := physical(file, x.Pos)
 			loc.LogicalLocations = []sarifLogical{{Name: x.Device, Kind: "element"}}
 			res.Locations = []sarifLocation{loc}
 			for i, rel := range x.Related {
 				res.RelatedLocations = append(res.RelatedLocations, relatedLocation(i, rel, f.Path))
 			}
+			res.PartialFingerprints = map[string]string{FingerprintKey: Fingerprint(x)}
 			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner)}
 			if x.HasLimit {
 				props["value"], props["limit"], props["unit"] = x.Value, x.Limit, x.Unit
@@ -205,13 +267,28 @@ func SARIF(w io.Writer, r *Report) error {
 				res.Fixes = []sarifFix{{Description: sarifText{ch.String()}, ArtifactChanges: []sarifArtifactEdit{edit}}}
 			}
 			if x.Waived {
-				res.Suppressions = []sarifSuppression{{Kind: "inSource", Justification: x.WaiverReason}}
+				kind := "inSource"
+				if x.WaiverExternal {
+					kind = "external"
+				}
+				res.Suppressions = []sarifSuppression{{Kind: kind, Justification: x.WaiverReason}}
 			}
 			run.Results = append(run.Results, res)
 		}
+		for _, n := range f.Notes {
+			file := n.Pos.File
+			if file == "" {
+				file = f.Path
+			}
+			note := sarifNotification{Level: n.Severity.String(), Message: sarifText{n.Msg}}
+			note.Locations = []sarifLocation{physical(file, n.Pos)}
+			inv.ToolExecutionNotifications = append(inv.ToolExecutionNotifications, note)
+		}
 	}
+	run.Invocations = []sarifInvocation{inv}
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	return enc.Encode(sarifLog{Schema: SARIFSchema, Version: "2.1.0", Runs: []sarifRun{run}})
 }
 
@@ -229,16 +306,12 @@ func level(s rules.Severity) string {
 // (a part that is missing is located where it belongs and has no
 // logical location).
 func relatedLocation(id int, r rules.Related, path string) sarifLocation {
-	var loc sarifLocation
-	loc.ID = &id
 	file := r.Pos.File
 	if file == "" {
 		file = path
 	}
-	loc.PhysicalLocation.ArtifactLocation.URI = fileURI(file)
-	if r.Pos.Line > 0 {
-		loc.PhysicalLocation.Region = &sarifRegion{StartLine: r.Pos.Line, StartColumn: r.Pos.Col}
-	}
+	loc := physical(file, r.Pos)
+	loc.ID = &id
 	if r.Name != "" {
 		loc.LogicalLocations = []sarifLogical{{Name: r.Name, Kind: "element"}}
 	}

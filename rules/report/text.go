@@ -29,16 +29,18 @@ type TextOptions struct {
 
 type paint struct{ on bool }
 
-func (p paint) with(s string, attrs ...color.Attribute) string {
+// with makes s Printable and colours it.
+func (p paint) with(s string, attrs ...color.Attribute) styled {
+	s = Printable(s)
 	if !p.on {
-		return s
+		return styled(s)
 	}
 	c := color.New(attrs...)
 	c.EnableColor()
-	return c.Sprint(s)
+	return styled(c.Sprint(s))
 }
 
-func (p paint) severity(s rules.Severity) string {
+func (p paint) severity(s rules.Severity) styled {
 	switch s {
 	case rules.SeverityError:
 		return p.with(string(s), color.FgRed, color.Bold)
@@ -62,11 +64,11 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 		if i > 0 {
 			ew.printf("\n")
 		}
-		head := f.Path
+		var title styled
 		if f.Title != "" {
-			head += "  " + p.with(f.Title, color.Faint)
+			title = "  " + p.with(f.Title, color.Faint)
 		}
-		ew.printf("%s\n", p.with(head, color.Bold))
+		ew.printf("%s%s\n", p.with(f.Path, color.Bold), title)
 		var waived []rules.Finding
 		n := 0
 		for _, x := range f.Findings {
@@ -98,7 +100,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			}
 			switch {
 			case x.Change != nil:
-				ew.printf("    fix      %s; 'biaslint fix' applies it\n", x.Change)
+				ew.printf("    fix      %s; 'biaslint fix' applies it\n", x.Change.String())
 				if x.Fix != "" {
 					ew.printf("             %s\n", x.Fix)
 				}
@@ -179,9 +181,12 @@ type errWriter struct {
 	err error
 }
 
+// printf writes through Printable: every string argument that is not
+// styled is escaped (see Printable), so nothing read from input can drive
+// the terminal.
 func (e *errWriter) printf(format string, args ...any) {
 	if e.err == nil {
-		_, e.err = fmt.Fprintf(e.w, format, args...)
+		_, e.err = fmt.Fprintf(e.w, format, printableArgs(args)...)
 	}
 }
 
@@ -203,9 +208,10 @@ func alsoIn(cases []string) string {
 	return fmt.Sprintf("%s and %d more %s", strings.Join(cases[:maxAlsoIn], ", "), more, word)
 }
 
-// writeTransistors prints the transistor table of one file: the nominal
-// operating point (forward-referenced) and the hottest junction over every
-// case, with the case it occurs in.
+// writeTransistors prints the transistor table of one file: each
+// transistor's role and the case that matters for it (a switch at its on
+// level, every other role at nominal; see bjtsOf), its worst case and the
+// hottest junction over every case; then why each has its role.
 func writeTransistors(ew *errWriter, f *File) {
 	bjts := bjtsOf(f.Analysis)
 	if len(bjts) == 0 {
@@ -213,7 +219,7 @@ func writeTransistors(ew *errWriter, f *File) {
 	}
 	var b bytes.Buffer
 	tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "  transistor\trole\tregion\tIC\tVCE\tpower\thottest Tj")
+	fmt.Fprintln(tw, "  transistor\trole\tcase\tregion\tIC\tVCE\tpower\tworst case\thottest Tj")
 	val := func(v *float64, unit string) string {
 		if v == nil {
 			return "-"
@@ -225,7 +231,24 @@ func writeTransistors(ew *errWriter, f *File) {
 		if t.TjMaxCase != "" {
 			hot += " (" + t.TjMaxCase + ")"
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\t%s\t%s\n", t.Name, t.Role, t.Region, val(t.IC, "A"), val(t.VCE, "V"), val(t.Power, "W"), hot)
+		worst := "-"
+		switch t.Worst {
+		case "beta":
+			worst = "forced beta " + val(t.WorstValue, "")
+		case "vce":
+			worst = "VCE " + val(t.WorstValue, "V")
+		case "ic":
+			worst = "IC " + val(t.WorstValue, "A")
+		}
+		if t.WorstCase != "" {
+			worst += " (" + t.WorstCase + ")"
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n", t.Name, t.Role, t.Case, t.Region,
+			val(t.IC, "A"), val(t.VCE, "V"), val(t.Power, "W"), worst, hot)
+	}
+	fmt.Fprintln(tw)
+	for _, t := range bjts {
+		fmt.Fprintf(tw, "  %s\t%s: %s\n", t.Name, t.Role, t.RoleReason)
 	}
 	tw.Flush()
 	ew.printf("\n%s", b.String())

@@ -1,0 +1,232 @@
+package netlist
+
+// This file holds the include policy and the safe opening of files: which
+// files .include and .lib may read (inside the allowed folders, links
+// resolved first), and how a file is opened (regular files only, never
+// blocking). Every file a netlist names is read through the LoadOptions
+// ReadFile that Parse wraps with includePolicy.read, so any other way of
+// finding an include file (a spelling fallback, say) is held to the same
+// policy as long as it reads through r.opts.ReadFile.
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strings"
+	"syscall"
+)
+
+// refusedError is a file the reader will not open: outside the allowed
+// folders, or not a regular file. Its text completes a sentence that starts
+// with the file's name as written ("include \"x\" " + msg), and ends with
+// hint(dir) when hint is set: how to allow the folder dir.
+type refusedError struct {
+	msg  string
+	hint func(dir string) string
+	dir  string
+}
+
+func (e *refusedError) Error() string { return e.text(false) }
+
+// text is the message; shorten cuts the folder (which comes from the path
+// as written) like any other quoted text.
+func (e *refusedError) text(shorten bool) string {
+	if e.hint == nil {
+		return e.msg
+	}
+	dir := e.dir
+	if shorten {
+		dir = short(dir)
+	}
+	return e.msg + "; to allow it, " + e.hint(dir)
+}
+
+// refused reports whether err is a refusal and returns its text.
+func refused(err error, shorten bool) (string, bool) {
+	var re *refusedError
+	if errors.As(err, &re) {
+		return re.text(shorten), true
+	}
+	return "", false
+}
+
+// includePolicy decides which files includes may read: those inside one of
+// the allowed folders, the top file's own folder first, then
+// LoadOptions.IncludeDirs. The check is made on the path after joining and
+// cleaning (so a ".." that leaves the folders is refused) and, when files
+// come from the file system, again after filepath.EvalSymlinks on both the
+// file and the folders (so a link cannot lead out).
+type includePolicy struct {
+	shown []string // the folders as given, for messages
+	abs   []string // the same, absolute and cleaned
+	real  []string // the same, links resolved (file-system mode only)
+	osFS  bool     // the base reader is the file system
+	hint  func(dir string) string
+	base  func(path string) ([]byte, error)
+}
+
+// newPolicy returns the policy for a netlist whose top file is top, with
+// o's folders, reading through o.ReadFile.
+func newPolicy(top string, o *LoadOptions) *includePolicy {
+	p := &includePolicy{osFS: o.osFiles, hint: o.IncludeHint, base: o.ReadFile}
+	if p.hint == nil {
+		p.hint = func(dir string) string { return fmt.Sprintf("add %s to LoadOptions.IncludeDirs", dir) }
+	}
+	seen := map[string]bool{}
+	for _, d := range append([]string{filepath.Dir(top)}, o.IncludeDirs...) {
+		a, err := filepath.Abs(d)
+		if err != nil || seen[a] {
+			continue
+		}
+		seen[a] = true
+		p.shown = append(p.shown, d)
+		p.abs = append(p.abs, a)
+		if p.osFS {
+			if r, err := filepath.EvalSymlinks(a); err == nil {
+				p.real = append(p.real, r)
+			}
+		}
+	}
+	return p
+}
+
+// within reports whether path lies in dir or below it; both are absolute
+// and clean.
+func within(path, dir string) bool {
+	rel, err := filepath.Rel(dir, path)
+	if err != nil {
+		return false
+	}
+	return rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator)) && !filepath.IsAbs(rel)
+}
+
+func withinAny(path string, dirs []string) bool {
+	for _, d := range dirs {
+		if within(path, d) {
+			return true
+		}
+	}
+	return false
+}
+
+// allowed returns the folders for messages.
+func (p *includePolicy) allowed() string { return strings.Join(p.shown, ", ") }
+
+// check returns the path to open for path, or a refusal. In file-system
+// mode the path returned has its links resolved, so the file checked is the
+// file opened.
+func (p *includePolicy) check(path string) (string, error) {
+	a, err := filepath.Abs(path)
+	if err != nil {
+		return "", err
+	}
+	if !withinAny(a, p.abs) {
+		return "", &refusedError{msg: fmt.Sprintf("is outside the folders includes may be read from (%s)", p.allowed()),
+			hint: p.hint, dir: filepath.Dir(filepath.Clean(path))}
+	}
+	if !p.osFS {
+		return path, nil
+	}
+	r, err := filepath.EvalSymlinks(a)
+	if err != nil {
+		return "", err
+	}
+	if !withinAny(r, p.real) {
+		return "", &refusedError{msg: fmt.Sprintf("is a symbolic link to a file outside the folders includes may be read from (%s)", p.allowed()),
+			hint: p.hint, dir: "DIR (the folder the link points into)"}
+	}
+	return r, nil
+}
+
+// read is the ReadFile of a netlist's includes: the policy, then the base
+// reader.
+func (p *includePolicy) read(path string) ([]byte, error) {
+	r, err := p.check(path)
+	if err != nil {
+		return nil, err
+	}
+	return p.base(r)
+}
+
+// notRegular returns a refusal when fi is not a regular file.
+func notRegular(fi fs.FileInfo) error {
+	m := fi.Mode()
+	var what string
+	switch {
+	case m.IsRegular():
+		return nil
+	case m.IsDir():
+		what = "a folder"
+	case m&fs.ModeNamedPipe != 0:
+		what = "a named pipe (FIFO)"
+	case m&fs.ModeSocket != 0:
+		what = "a socket"
+	case m&fs.ModeDevice != 0:
+		what = "a device"
+	default:
+		what = "a special file"
+	}
+	return &refusedError{msg: "is " + what + ", not a regular file; only regular files are read"}
+}
+
+// readRegular reads at most limit+1 bytes of the regular file at path:
+// enough to tell that it is over the limit without holding all of it. A
+// FIFO, device, socket or folder is refused before it is opened, and the
+// file is opened non-blocking and checked again once open, so a file
+// swapped for a FIFO in between cannot block the read either.
+func readRegular(path string, limit int) ([]byte, error) {
+	fi, err := os.Stat(path)
+	if err != nil {
+		return nil, err
+	}
+	if err := notRegular(fi); err != nil {
+		return nil, err
+	}
+	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	if fi, err = f.Stat(); err != nil {
+		return nil, err
+	}
+	if err := notRegular(fi); err != nil {
+		return nil, err
+	}
+	return io.ReadAll(io.LimitReader(f, int64(limit)+1))
+}
+
+// readErrText returns err for a message about a file, without the path an
+// *fs.PathError carries (the message names the file as written; the path
+// resolved on this machine is not repeated).
+func readErrText(err error) string {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err.Error()
+	}
+	return err.Error()
+}
+
+// confineTop reads the top file when LoadOptions.ConfineTop holds it to the
+// policy: after its links are resolved it must still lie inside the allowed
+// folders.
+func (p *includePolicy) confineTop(path string) ([]byte, error) {
+	if p.osFS {
+		a, err := filepath.Abs(path)
+		if err != nil {
+			return nil, err
+		}
+		r, err := filepath.EvalSymlinks(a)
+		if err != nil {
+			return nil, err
+		}
+		if !withinAny(r, p.real) {
+			return nil, &refusedError{msg: fmt.Sprintf("is a symbolic link to a file outside the folders being checked (%s); it is not read", p.allowed())}
+		}
+		path = r
+	}
+	return p.base(path)
+}
