@@ -71,6 +71,9 @@ func runFix(c *cli.Context) error {
 	if c.Bool("demo") && !preview {
 		return badInput(errors.New("biaslint fix: the demo board is built in and cannot be changed; add --preview to see the changes"))
 	}
+	if !preview && slices.Contains(c.Args().Slice(), "-") {
+		return badInput(errors.New("biaslint fix: standard input cannot be changed in place; add --preview to see the changes"))
+	}
 	maxChanges := c.Int("max-changes")
 	if maxChanges < 1 || maxChanges > maxFixChanges {
 		return badInput(fmt.Errorf("biaslint fix: --max-changes %d: give 1 to %d", maxChanges, maxFixChanges))
@@ -218,6 +221,9 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 	}
 	for _, p := range sortedPaths(edits) {
 		src, err := readFile(p)
+		if in.src != nil && p == in.name {
+			src, err = in.src, nil
+		}
 		if err != nil {
 			return ff, fmt.Errorf("%s: cannot read it again to change it: %v", p, err)
 		}
@@ -228,12 +234,26 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 		ff.old[p], ff.texts[p] = src, text
 	}
 	// Verify: read the changed text back and check it again.
-	changed, err := netlist.Read(in.name, &netlist.LoadOptions{ReadFile: func(p string) ([]byte, error) {
+	var o netlist.LoadOptions
+	if in.opts != nil {
+		o = *in.opts
+	}
+	o.ReadFile = func(p string) ([]byte, error) {
 		if t, ok := ff.texts[p]; ok {
 			return t, nil
 		}
 		return readFile(p)
-	}})
+	}
+	var changed *netlist.Circuit
+	if in.src != nil {
+		top := in.src
+		if t, ok := ff.texts[in.name]; ok {
+			top = t
+		}
+		changed, err = netlist.ReadSource(in.name, top, &o)
+	} else {
+		changed, err = netlist.Read(in.name, &o)
+	}
 	if err != nil {
 		return ff, fmt.Errorf("%s: the changed netlist does not read back: %v", in.name, err)
 	}

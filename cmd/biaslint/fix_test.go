@@ -179,6 +179,10 @@ func TestFixCommand(t *testing.T) {
 	if entries, _ := os.ReadDir(dir); len(entries) != 1 {
 		t.Errorf("temporary files left: %v", entries)
 	}
+	// Neither can standard input.
+	if _, errs, code := runCLI(t, "fix", "-"); code != exitBadInput || !strings.Contains(errs, "standard input cannot be changed") {
+		t.Errorf("fix -: exit %d: %s", code, errs)
+	}
 	// The built-in demo cannot be written.
 	if _, errs, code := runCLI(t, "fix", "--demo"); code != exitBadInput || !strings.Contains(errs, "--preview") {
 		t.Errorf("fix --demo: exit %d: %s", code, errs)
