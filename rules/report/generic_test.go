@@ -31,3 +31,20 @@ func TestGenericLine(t *testing.T) {
 		t.Errorf("no generic device, got %q", got)
 	}
 }
+
+// The library-ratings line names the devices whose ratings come from the
+// parts library, with the caution that they are recalled.
+func TestLibraryLine(t *testing.T) {
+	ts := []checks.Transistor{
+		{Name: "Q1", Rating: checks.Ratings{Part: "2N3904", Origin: "parts library: from memory"}},
+		{Name: "Q2", Rating: checks.Ratings{Part: "2N3904", Origin: "parts library: from memory"}},
+		{Name: "Q3", Rating: checks.Ratings{Part: "BC547B", Origin: "parts library: from memory"}},
+		{Name: "Q4", Rating: checks.Ratings{Part: "MYNPN", Origin: "annotation at t.cir:9:1"}},
+		{Name: "Q5", Rating: checks.Ratings{Part: "generic", Origin: "parts library: x", Generic: true}},
+	}
+	f := &File{Analysis: &checks.Analysis{Cases: []checks.Case{{Transistors: ts}}}}
+	want := "library ratings: Q1, Q2 (2N3904), Q3 (BC547B), from memory of data sheets; check the data sheet of the part you use"
+	if got := libraryLine(f); got != want {
+		t.Errorf("got %q\nwant %q", got, want)
+	}
+}

@@ -9,6 +9,7 @@ import (
 
 	"github.com/fatih/color"
 
+	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/netlist/units"
 	"github.com/biaslint/biaslint/rules"
@@ -132,6 +133,9 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			}
 		}
 		if line := genericLine(f); line != "" {
+			ew.printf("\n  %s\n", line)
+		}
+		if line := libraryLine(f); line != "" {
 			ew.printf("\n  %s\n", line)
 		}
 		if opt.Transistors {
@@ -258,24 +262,27 @@ func writeTransistors(ew *errWriter, f *File) {
 // before it counts the rest.
 const maxGenericNamed = 8
 
-// genericLine names, in one line, the transistors of a file that were
-// judged against the generic class because neither the parts library nor
-// an annotation knew their model; "" when there are none.
-func genericLine(f *File) string {
+// byPart groups the transistors of a file's nominal case that keep
+// returns true for, by the ratings' part name, as "Q1, Q2 (2N3904), Q3
+// (BC547B)" naming at most maxGenericNamed devices and counting the rest;
+// "" when there are none.
+func byPart(f *File, keep func(t *checks.Transistor) bool, label func(t *checks.Transistor) string) string {
 	if f.Analysis == nil || len(f.Analysis.Cases) == 0 {
 		return ""
 	}
-	var models []string
-	byModel := map[string][]string{}
+	var groups []string
+	names := map[string][]string{}
 	n := 0
-	for _, t := range f.Analysis.Cases[0].Transistors {
-		if !t.Rating.Generic {
+	for i := range f.Analysis.Cases[0].Transistors {
+		t := &f.Analysis.Cases[0].Transistors[i]
+		if !keep(t) {
 			continue
 		}
-		if _, seen := byModel[t.Model]; !seen {
-			models = append(models, t.Model)
+		g := label(t)
+		if _, seen := names[g]; !seen {
+			groups = append(groups, g)
 		}
-		byModel[t.Model] = append(byModel[t.Model], t.Name)
+		names[g] = append(names[g], t.Name)
 		n++
 	}
 	if n == 0 {
@@ -283,22 +290,46 @@ func genericLine(f *File) string {
 	}
 	var parts []string
 	shown := 0
-	for _, m := range models {
-		names := byModel[m]
-		if left := maxGenericNamed - shown; len(names) > left {
-			names = names[:max(left, 0)]
+	for _, g := range groups {
+		ns := names[g]
+		if left := maxGenericNamed - shown; len(ns) > left {
+			ns = ns[:max(left, 0)]
 		}
-		shown += len(names)
-		if len(names) > 0 {
-			parts = append(parts, strings.Join(names, ", ")+" (model "+m+")")
+		shown += len(ns)
+		if len(ns) > 0 {
+			parts = append(parts, strings.Join(ns, ", ")+" ("+g+")")
 		}
 	}
-	more := ""
+	out := strings.Join(parts, ", ")
 	if n > shown {
-		more = fmt.Sprintf(" and %d more", n-shown)
+		out += fmt.Sprintf(" and %d more", n-shown)
 	}
-	return fmt.Sprintf("generic ratings: %s%s judged against the conservative generic class; name a library type or give *@part ratings",
-		strings.Join(parts, ", "), more)
+	return out
+}
+
+// genericLine names, in one line, the transistors of a file that were
+// judged against the generic class because neither the parts library nor
+// an annotation knew their model; "" when there are none.
+func genericLine(f *File) string {
+	list := byPart(f, func(t *checks.Transistor) bool { return t.Rating.Generic },
+		func(t *checks.Transistor) string { return "model " + t.Model })
+	if list == "" {
+		return ""
+	}
+	return "generic ratings: " + list + " judged against the conservative generic class; name a library type or give *@part ratings"
+}
+
+// libraryLine names, in one line, the transistors of a file judged against
+// the parts library's types and classes, whose ratings are recalled from
+// data sheets, with the caution to check the part's own; "" when none.
+func libraryLine(f *File) string {
+	list := byPart(f, func(t *checks.Transistor) bool {
+		return !t.Rating.Generic && strings.HasPrefix(t.Rating.Origin, "parts library:")
+	}, func(t *checks.Transistor) string { return t.Rating.Part })
+	if list == "" {
+		return ""
+	}
+	return "library ratings: " + list + ", from memory of data sheets; check the data sheet of the part you use"
 }
 
 // relatedText lists a finding's related parts on one line: "RB at
