@@ -56,11 +56,15 @@ type ConvergenceError struct {
 }
 
 func (e *ConvergenceError) Error() string {
-	var b strings.Builder
 	if e.Pos.IsValid() || e.Pos.File != "" {
-		b.WriteString(e.Pos.String())
-		b.WriteString(": error: ")
+		return e.Pos.String() + ": error: " + e.Detail()
 	}
+	return e.Detail()
+}
+
+// Detail is the message of Error without the position.
+func (e *ConvergenceError) Detail() string {
+	var b strings.Builder
 	b.WriteString("no DC operating point found: ")
 	if e.Cause != nil {
 		b.WriteString(e.Cause.Error())
@@ -182,21 +186,21 @@ func (s *System) Solve(opt Options) (*Result, error) {
 	x := append([]float64(nil), x0...)
 	var tried []string
 	if w.newton(x, !warm, st.maxIter) {
-		return s.result(w, x, MethodNewton), nil
+		return s.verified(w, x, MethodNewton), nil
 	}
 	tried = append(tried, fmt.Sprintf("newton (%d iterations)", w.iters))
 
 	copy(x, x0)
 	ok, msg := w.gminStepping(x, !warm)
 	if ok {
-		return s.result(w, x, MethodGminStepping), nil
+		return s.verified(w, x, MethodGminStepping), nil
 	}
 	tried = append(tried, msg)
 
 	copy(x, x0)
 	ok, msg = w.sourceStepping(x)
 	if ok {
-		return s.result(w, x, MethodSourceStepping), nil
+		return s.verified(w, x, MethodSourceStepping), nil
 	}
 	tried = append(tried, msg)
 
@@ -222,6 +226,15 @@ func (s *System) Solve(opt Options) (*Result, error) {
 	}
 	ce.Pos = s.firstInvolved(involved, w.bad)
 	return nil, ce
+}
+
+// verified builds the result of a converged x and checks it against the
+// device equations as they are (verify.go): a point that satisfies only
+// the continued exponentials is returned marked not physical.
+func (s *System) verified(w *work, x []float64, m Method) *Result {
+	r := s.result(w, x, m)
+	s.verify(w, x, r)
+	return r
 }
 
 // deviceElem returns device d of the work's device list: the transistors,
@@ -369,6 +382,7 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 		m := &matrixSink{lin: w.lin, rhs: w.rhs}
 		w.stampLinear(m)
 		w.stampDevices(m, x, true)
+		w.stampPoly(m, x, true)
 		w.iters++
 		if err := w.lin.Factor(); err != nil {
 			var se *SingularError
@@ -421,6 +435,7 @@ func (w *work) residualOK(x []float64) bool {
 	r := &residualSink{x: x, r: w.res, m: w.mag}
 	w.stampLinear(r)
 	w.stampDevices(r, x, false)
+	w.stampPoly(r, x, false)
 	w.bad = w.bad[:0]
 	const floor = 64 * 0x1p-52
 	for i, v := range w.res {

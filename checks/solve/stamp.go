@@ -83,6 +83,9 @@ func branch(k sink, p, n, br int) {
 func (w *work) stampLinear(k sink) {
 	for _, el := range w.s.elems {
 		n := el.nodes
+		if el.poly != nil {
+			continue // nonlinear: stampPoly
+		}
 		switch el.kind {
 		case 'R':
 			if el.short {
@@ -138,6 +141,9 @@ func (w *work) stampLinear(k sink) {
 				conductance(k, el.nodes[t], el.inner[t], 1/r)
 			}
 		}
+	}
+	for _, i := range w.s.leaks {
+		k.a(i, i, w.st.gmin)
 	}
 	// The shunts are stamped (as zeros) in every solve, so that the
 	// matrix pattern does not depend on whether GMIN stepping ran.

@@ -35,6 +35,15 @@ func (in input) read() (*netlist.Circuit, error) {
 	return netlist.Read(in.name, in.opts)
 }
 
+// load parses the input without flattening it, so a caller can tell a
+// library file from a circuit first.
+func (in input) load() (*netlist.Deck, error) {
+	if in.src != nil {
+		return netlist.Parse(in.name, in.src, in.opts)
+	}
+	return netlist.Load(in.name, in.opts)
+}
+
 // stdinName is how a netlist read from standard input ("-" as FILE) is
 // named in positions and reports. Its includes are resolved from the
 // current directory, as filepath.Dir of this name is ".".

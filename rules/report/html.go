@@ -56,6 +56,10 @@ type htmlFile struct {
 	Notes              []string
 	Hazard             bool
 	Unplotted          int
+	// Status says why the file was not checked ("" when it was) and
+	// Errors are its located input errors.
+	Status string
+	Errors []string
 }
 
 type htmlFinding struct {
@@ -67,11 +71,13 @@ type htmlFinding struct {
 
 type htmlDevice struct {
 	ID, Name, Caption string
-	SVG               template.HTML
-	PlotError         string
-	Margins           []htmlMargin
-	Points            []htmlPoint
-	LoadNote          string
+	// Role and RoleReason say what the transistor does and why.
+	Role, RoleReason string
+	SVG              template.HTML
+	PlotError        string
+	Margins          []htmlMargin
+	Points           []htmlPoint
+	LoadNote         string
 }
 
 type htmlMargin struct {
@@ -88,10 +94,11 @@ type htmlGrid struct {
 }
 
 type htmlGridRow struct {
-	ID, Path    string
-	Transistors int
-	Cells       []htmlGridCell
-	Counts      Counts
+	// Status is the file's status when it was not checked, else "".
+	ID, Path, Status string
+	Transistors      int
+	Cells            []htmlGridCell
+	Counts           Counts
 }
 
 type htmlGridCell struct {
@@ -157,6 +164,12 @@ func htmlPageOf(r *Report, opt HTMLOptions) htmlPage {
 		for _, n := range f.Notes {
 			hf.Notes = append(hf.Notes, n.Error())
 		}
+		if f.Status.Of() != StatusChecked {
+			hf.Status = StatusText(f)
+			for _, e := range f.Errors {
+				hf.Errors = append(hf.Errors, e.Error())
+			}
+		}
 		var planes []plane.Plane
 		if i < len(opt.Planes) {
 			planes = opt.Planes[i]
@@ -200,6 +213,9 @@ func htmlDevices(fileID string, f *File, planes []plane.Plane) []htmlDevice {
 		}
 		t, ok := facts[pl.Device]
 		d.Margins = htmlMargins(pl, t, ok)
+		if ok {
+			d.Role, d.RoleReason = t.Role, t.RoleReason
+		}
 		for _, p := range pl.Points {
 			d.Points = append(d.Points, htmlPoint{Case: p.Case, Kind: string(p.Kind), VCE: units.Format(p.VCE, "V"),
 				IC: units.Format(p.IC, "A"), Power: units.Format(p.Power, "W"), Region: p.Region})
@@ -224,6 +240,14 @@ func htmlMargins(pl plane.Plane, t checks.Transistor, haveFacts bool) []htmlMarg
 	}
 	row := func(label string, v float64, at string, limit float64, unit string) htmlMargin {
 		m := htmlMargin{Label: label, Value: units.Format(v, unit), Limit: "not rated", Class: "unknown"}
+		if math.IsInf(v, -1) || math.IsNaN(v) {
+			// No case gave a physical point.
+			m.Value = "not known"
+			if !math.IsNaN(limit) && !math.IsInf(limit, 0) {
+				m.Limit = units.Format(limit, unit)
+			}
+			return m
+		}
 		if at != "" && len(pl.Points) > 1 {
 			m.Value += " (" + at + ")"
 		}
@@ -281,6 +305,9 @@ func htmlGridOf(r *Report, files []htmlFile) *htmlGrid {
 	sort.Strings(g.Rules)
 	for i, f := range r.Files {
 		row := htmlGridRow{ID: files[i].ID, Path: f.Path, Transistors: files[i].Transistors, Counts: files[i].Counts}
+		if st := f.Status.Of(); st != StatusChecked {
+			row.Status = string(st)
+		}
 		for _, id := range g.Rules {
 			cell := htmlGridCell{}
 			rank := 99
@@ -386,7 +413,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <div class="scroll"><table class="grid">
 <thead><tr><th>file</th><th>transistors</th><th>errors</th><th>warnings</th><th>notes</th>{{range .Rules}}<th class="rule"><code>{{.}}</code></th>{{end}}</tr></thead>
 <tbody>
-{{range .Rows}}<tr class="grid-row"><td class="path"><a href="#{{.ID}}">{{.Path}}</a></td><td class="n">{{.Transistors}}</td><td class="n{{if .Counts.Error}} count-error{{end}}">{{.Counts.Error}}</td><td class="n{{if .Counts.Warning}} count-warning{{end}}">{{.Counts.Warning}}</td><td class="n">{{.Counts.Note}}</td>{{range .Cells}}<td class="n {{.Class}}">{{if .N}}{{.N}}{{end}}</td>{{end}}</tr>
+{{range .Rows}}<tr class="grid-row"><td class="path"><a href="#{{.ID}}">{{.Path}}</a>{{if .Status}} <span class="unchecked">({{.Status}})</span>{{end}}</td><td class="n">{{.Transistors}}</td><td class="n{{if .Counts.Error}} count-error{{end}}">{{.Counts.Error}}</td><td class="n{{if .Counts.Warning}} count-warning{{end}}">{{.Counts.Warning}}</td><td class="n">{{.Counts.Note}}</td>{{range .Cells}}<td class="n {{.Class}}">{{if .N}}{{.N}}{{end}}</td>{{end}}</tr>
 {{end}}</tbody>
 </table></div>
 </section>
@@ -394,6 +421,9 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 {{range .Files}}
 <section class="file" id="{{.ID}}">
 <h2><code>{{.Path}}</code>{{if .Title}}<span class="title">{{.Title}}</span>{{end}}</h2>
+{{if .Status}}<p class="unchecked">{{.Status}}</p>
+{{if .Errors}}<ul class="errors">{{range .Errors}}<li class="pos">{{.}}</li>{{end}}</ul>{{end}}
+{{else}}
 {{if .Hazard}}<p class="danger">Danger: findings below report hazardous voltage or heat on this design. Treat the board as dangerous until a qualified person has checked it.</p>{{end}}
 <dl class="summary">
 <dt>transistors</dt><dd>{{.Transistors}}</dd>
@@ -426,7 +456,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <div class="devices">
 {{range .Devices}}<figure class="device" id="{{.ID}}">
 {{if .SVG}}{{.SVG}}{{else}}<p>No plot: {{.PlotError}}</p>{{end}}
-<figcaption>{{.Caption}}{{if .LoadNote}} No load line: {{.LoadNote}}.{{end}}</figcaption>
+<figcaption>{{if .Role}}<strong>{{.Name}}: {{.Role}}</strong> ({{.RoleReason}}). {{end}}{{.Caption}}{{if .LoadNote}} No load line: {{.LoadNote}}.{{end}}</figcaption>
 <table class="margins"><thead><tr><th>worst case</th><th>value</th><th>rating</th><th>share</th></tr></thead><tbody>
 {{range .Margins}}<tr><td>{{.Label}}</td><td>{{.Value}}</td><td>{{.Limit}}</td><td class="{{.Class}}">{{.Share}}</td></tr>
 {{end}}</tbody></table>
@@ -439,6 +469,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 {{end}}
 {{if .Unplotted}}<p>{{.Unplotted}} transistor(s) could not be plotted.</p>{{end}}
 {{if .Notes}}<details><summary>{{len .Notes}} input notes</summary><ul>{{range .Notes}}<li class="pos">{{.}}</li>{{end}}</ul></details>{{end}}
+{{end}}
 <ul class="cautions">{{range $.Cautions}}<li>{{.}}</li>{{end}}</ul>
 </section>
 {{end}}

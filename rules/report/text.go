@@ -21,7 +21,8 @@ type TextOptions struct {
 	// NO_COLOR, or --color always).
 	Color bool
 	// Notes prints the input notes (reading the netlist, annotations);
-	// input warnings are printed either way.
+	// input warnings and alerts (netlist.Error.Alert: a value whose
+	// letters people often misread) are printed either way.
 	Notes bool
 	// Transistors prints a table of each file's transistors: role, nominal
 	// region, IC and VCE, and the hottest junction over every case.
@@ -70,6 +71,13 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			title = "  " + p.with(f.Title, color.Faint)
 		}
 		ew.printf("%s%s\n", p.with(f.Path, color.Bold), title)
+		if t := TempText(f); t != "" {
+			ew.printf("  %s\n", p.with(t, color.Faint))
+		}
+		if f.Status.Of() != StatusChecked {
+			writeUnchecked(ew, p, f, opt)
+			continue
+		}
 		var waived []rules.Finding
 		n := 0
 		for _, x := range f.Findings {
@@ -119,19 +127,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				ew.printf("      reason  %s (waiver at %s)\n", x.WaiverReason, x.WaiverPos)
 			}
 		}
-		// Warnings about the input are always printed; notes on request.
-		var shown []*netlist.Error
-		for _, e := range f.Notes {
-			if opt.Notes || e.Severity == netlist.SevWarning {
-				shown = append(shown, e)
-			}
-		}
-		if len(shown) > 0 {
-			ew.printf("\n  input notes:\n")
-			for _, e := range shown {
-				ew.printf("  %s\n", e.Error())
-			}
-		}
+		writeNotes(ew, f, opt)
 		if line := genericLine(f); line != "" {
 			ew.printf("\n  %s\n", line)
 		}
@@ -145,7 +141,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 		ew.printf("\n  %s: %s, %s\n", f.Path, plural(f.Transistors(), "transistor"), countText(c))
 	}
 	if len(r.Files) > 1 {
-		ew.printf("\n%d files: %s\n", len(r.Files), countText(r.Counts()))
+		ew.printf("\n%s: %s\n", filesText(r), countText(r.Counts()))
 	}
 	ew.printf("\n")
 	if hazard {
@@ -345,4 +341,105 @@ func relatedText(rs []rules.Related) string {
 		parts[i] = r.Name + " at " + r.Pos.String() + " (" + r.Role + ")"
 	}
 	return strings.Join(parts, "; ")
+}
+
+// StatusText says in words why a file was not checked.
+func StatusText(f *File) string {
+	var s string
+	switch f.Status.Of() {
+	case StatusChecked:
+		s = "checked"
+	case StatusInputErrors:
+		s = "not checked: input errors"
+	case StatusLibrary:
+		s = "library (only .subckt, .model, .param or .lib definitions, no circuit): listed, not checked on its own"
+	case StatusIncluded:
+		by := f.StatusDetail
+		if by == "" {
+			by = "another file of the run"
+		}
+		return "included by " + by + ": checked as part of it, not on its own"
+	default:
+		s = "not checked: " + string(f.Status)
+	}
+	if f.StatusDetail != "" {
+		s += " (" + f.StatusDetail + ")"
+	}
+	return s
+}
+
+// writeUnchecked prints the block of a file that was not checked: why,
+// and its located errors.
+func writeUnchecked(ew *errWriter, p paint, f *File, opt TextOptions) {
+	ew.printf("\n  %s\n", StatusText(f))
+	for _, e := range f.Errors {
+		ew.printf("  %s: %s: %s\n", e.Pos, p.severity(rules.SeverityError), e.Msg)
+	}
+	writeNotes(ew, f, opt)
+	if f.Status.Failed() {
+		ew.printf("\n  %s: not checked, %s\n", f.Path, plural(len(f.Errors), "input error"))
+	}
+}
+
+// filesText counts the files of a run, saying how many were not checked.
+func filesText(r *Report) string {
+	n := map[Status]int{}
+	var order []Status
+	for i := range r.Files {
+		s := r.Files[i].Status.Of()
+		if n[s] == 0 {
+			order = append(order, s)
+		}
+		n[s]++
+	}
+	s := plural(len(r.Files), "file")
+	if len(order) == 1 && order[0] == StatusChecked {
+		return s
+	}
+	var parts []string
+	for _, st := range []Status{StatusChecked, StatusLibrary, StatusIncluded, StatusInputErrors} {
+		if n[st] > 0 {
+			parts = append(parts, fmt.Sprintf("%d %s", n[st], st))
+		}
+	}
+	for _, st := range order {
+		switch st {
+		case StatusChecked, StatusLibrary, StatusIncluded, StatusInputErrors:
+		default:
+			parts = append(parts, fmt.Sprintf("%d %s", n[st], st))
+		}
+	}
+	return s + " (" + strings.Join(parts, ", ") + ")"
+}
+
+// writeNotes prints a file's input notes: warnings and alerts (readings
+// people often get wrong) always, other notes when asked for.
+func writeNotes(ew *errWriter, f *File, opt TextOptions) {
+	var shown []*netlist.Error
+	for _, e := range f.Notes {
+		if opt.Notes || e.Severity == netlist.SevWarning || e.Alert {
+			shown = append(shown, e)
+		}
+	}
+	if len(shown) > 0 {
+		ew.printf("\n  input notes:\n")
+		for _, e := range shown {
+			ew.printf("  %s\n", e.Error())
+		}
+	}
+}
+
+// TempText says at which temperatures a file's nominal case was solved:
+// the circuit temperature and where it came from, and the ambient; "" when
+// the file was not analysed.
+func TempText(f *File) string {
+	an := f.Analysis
+	if an == nil || len(an.Cases) == 0 {
+		return ""
+	}
+	from := map[string]string{"--temp": "from --temp", ".temp": "from the netlist's .temp", "ambient": "the ambient"}[an.TempFrom]
+	if from == "" {
+		from = an.TempFrom
+	}
+	return fmt.Sprintf("circuit at %s (%s), ambient %s", units.Format(an.Temp, "C"), from, units.Format(an.Cases[0].Ambient, "C"))
 }
