@@ -1,11 +1,15 @@
 package fix
 
 import (
+	"math"
 	"strconv"
 	"strings"
 	"testing"
 
+	"pgregory.net/rapid"
+
 	"github.com/biaslint/biaslint/netlist"
+	"github.com/biaslint/biaslint/netlist/units"
 	"github.com/biaslint/biaslint/rules"
 )
 
@@ -128,4 +132,24 @@ func TestSearchBounded(t *testing.T) {
 	if ch := out[0].Change; ch == nil || ch.New != "1.8k" || ch.Series != "E12" {
 		t.Errorf("change %+v", ch)
 	}
+}
+
+// TestValueTextReadsBack: every E24 value from 0.1 Ohm to 910 MOhm,
+// written in each style a netlist may use, reads back as the same value
+// through the parser the netlist reader uses (units.Parse).
+func TestValueTextReadsBack(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		m := rapid.SampledFrom(E24).Draw(t, "mantissa")
+		d := rapid.IntRange(-1, 8).Draw(t, "decade")
+		v := roundSig(m*math.Pow(10, float64(d)), 3)
+		old := rapid.SampledFrom([]string{"10k", "10K", "4k7", "4K7", "2R2", "1MEG", "1Meg", "1meg", "100", "10kOhm", "2.2e3"}).Draw(t, "style")
+		text, ok := ValueText(v, old)
+		if !ok {
+			t.Fatalf("ValueText(%g, %q) not ok", v, old)
+		}
+		got, err := units.Parse(text)
+		if err != nil || math.Abs(got-v) > 1e-9*v {
+			t.Fatalf("ValueText(%g, %q) = %q reads back as %g (%v)", v, old, text, got, err)
+		}
+	})
 }
