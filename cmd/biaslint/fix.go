@@ -166,12 +166,12 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 	var waivers []rules.Waiver
 	if opt.Board != nil {
 		for _, w := range opt.Board.Waivers {
-			waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
+			waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos, External: w.External})
 		}
 	}
 	if b, _ := board.FromCircuit(circ); b != nil {
 		for _, w := range b.Waivers {
-			waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
+			waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos, External: w.External})
 		}
 	}
 	cur, v := circ, first
