@@ -488,6 +488,10 @@ func rkmText(v float64, upper bool) string {
 		}
 		return m[:i] + letter + m[i+1:]
 	}
+	if letter == "M" {
+		// "1M" alone reads as SPICE milli; the code writes 1 MOhm as 1M0.
+		return m + letter + "0"
+	}
 	return m + letter
 }
 

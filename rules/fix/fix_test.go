@@ -33,6 +33,7 @@ func TestValueText(t *testing.T) {
 		{2200, "4K7", "2K2"},
 		{47, "4k7", "47R"},
 		{1.5e6, "4k7", "1M5"},
+		{1e6, "4k7", "1M0"}, // "1M" alone is SPICE milli
 		{0.47, "2R2", "R47"},
 		{10e3, "4k7", "10k"},
 		// A trailing unit is kept.
