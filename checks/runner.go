@@ -562,8 +562,26 @@ func caseList(cases []string) string {
 	return fmt.Sprintf("cases %s and %d more are", strings.Join(cases[:shown], ", "), len(cases)-shown)
 }
 
-// RegionNotPhysical is the region of every transistor in a case whose
-// operating point is not physical (Case.Unphysical).
+// voltagesRunAway reports whether a node of res lies a million times
+// beyond the largest source voltage of c (at least 1 V): a point that is
+// not physical has spread through the circuit.
+func voltagesRunAway(c *netlist.Circuit, res *solve.Result) bool {
+	top := 1.0
+	for _, el := range c.Elements {
+		if el.Kind == 'V' && el.Source != nil {
+			top = math.Max(top, math.Abs(el.Source.DC))
+		}
+	}
+	for _, n := range res.Nodes {
+		if !(math.Abs(n.V) <= 1e6*top) {
+			return true
+		}
+	}
+	return false
+}
+
+// RegionNotPhysical is the region of a transistor whose operating point
+// in a case is not physical (Case.Unphysical).
 const RegionNotPhysical = "not physical"
 
 // errorPlace splits a solver error into its position (the circuit's file
@@ -629,20 +647,33 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 		cs.Transistors = append(cs.Transistors, t)
 	}
 	if !res.Physical() {
-		// Not physical (solve/verify.go): the currents, and with them every
-		// power, temperature and voltage they set, have no meaning. The
-		// transistors' region says so (a rule on the drive, such as
-		// unlimited-base-drive, still says what to fix); resistors and
-		// nets are left out of the case.
+		// Not physical (solve/verify.go): the currents of the devices named
+		// have no meaning, and with them their power and temperature. Their
+		// region says so (a rule on the drive, such as unlimited-base-drive,
+		// still says what to fix). The rest of the circuit keeps its facts
+		// while its node voltages stay within reach of its sources (an
+		// ideal source holds its node whatever the junction draws); when
+		// they do not, nothing in the case is reported: every transistor is
+		// marked, and resistors and nets are left out.
+		bad := map[string]bool{}
+		for _, u := range res.Unphysical {
+			bad[netlist.Key(u.Device)] = true
+		}
+		whole := voltagesRunAway(a.c, res)
 		for k := range cs.Transistors {
 			t := &cs.Transistors[k]
+			if !whole && !bad[netlist.Key(t.Name)] {
+				continue
+			}
 			n := math.NaN()
 			t.VBE, t.VCE, t.VCB, t.IC, t.IB, t.IE, t.Beta, t.Power = n, n, n, n, n, n, n, n
 			t.Tj, t.RunawayTj, t.ThermalGain, t.ThermalRunaway = n, n, n, false
 			t.Region = RegionNotPhysical
 		}
 		cs.Unphysical = res.Unphysical
-		return cs
+		if whole {
+			return cs
+		}
 	}
 	for _, el := range a.c.Elements {
 		if el.Kind == 'R' && len(el.Nodes) == 2 {

@@ -76,7 +76,8 @@
 //
 // LoadOptions bounds the work one input can cause: 16 MiB per file, 1 MiB
 // per line, includes nested 16 deep, subcircuit instances and definitions
-// nested 32 deep, 200000 flat elements; expressions are at most 4096 bytes
+// nested 32 deep, 200000 flat elements, POLY(n) with n at most 20 and at
+// most 200 coefficients; expressions are at most 4096 bytes
 // with parentheses nested at most 64 deep, and parameters may refer to each
 // other at most 200 deep. An ErrorList keeps MaxErrors errors and counts the
 // rest. ReadFile in LoadOptions replaces os.ReadFile, so tests and fuzzing

@@ -716,8 +716,13 @@ func (p *parser) fixed(e *ElementStmt, pos []item, pairs []item) bool {
 	return true
 }
 
-// maxPolyDim bounds the dimension n of POLY(n).
-const maxPolyDim = 20
+// maxPolyDim bounds the dimension n of POLY(n), and maxPolyCoeffs its
+// coefficients (a polynomial of degree d in one variable has d+1), so that
+// the work of evaluating one stays small for any input.
+const (
+	maxPolyDim    = 20
+	maxPolyCoeffs = 200
+)
 
 // hasPoly reports whether one of the calls is POLY(...).
 func hasPoly(calls []item) bool {
@@ -815,6 +820,10 @@ func (p *parser) poly(e *ElementStmt, its []item) bool {
 	}
 	if len(st.Coeffs) == 0 {
 		p.errs.Addf(st.Pos, "%s: POLY(%d) has no coefficients", e.Name.Text, n)
+		return false
+	}
+	if len(st.Coeffs) > maxPolyCoeffs {
+		p.errs.Addf(st.Pos, "%s: POLY(%d) has %d coefficients, more than the limit of %d", e.Name.Text, n, len(st.Coeffs), maxPolyCoeffs)
 		return false
 	}
 	e.Poly = st

@@ -159,8 +159,12 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	}
 	res := an.Cases[0].Solution
 	tj := map[string]float64{}
+	// The transistors whose point is not physical (checks marks them, and
+	// every one when the node voltages ran away): no currents for them.
+	bad := map[string]bool{}
 	for _, q := range an.Cases[0].Transistors {
 		tj[q.Name] = q.Tj
+		bad[q.Name] = q.Region == checks.RegionNotPhysical
 	}
 	f := opFile{
 		File:            circ.File,
@@ -177,12 +181,7 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	for _, u := range res.Unphysical {
 		f.NotPhysical = append(f.NotPhysical, u.Why)
 	}
-	num := func(v float64) *float64 {
-		if !f.Physical {
-			return nil
-		}
-		return &v
-	}
+
 	for _, n := range res.Nodes {
 		f.Nodes[n.Name] = n.V
 		f.nodeOrder = append(f.nodeOrder, n.Name)
@@ -193,15 +192,21 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 		}
 	}
 	for _, q := range res.BJTs {
+		num := func(v float64) *float64 {
+			if bad[q.Name] {
+				return nil
+			}
+			return &v
+		}
 		f.BJTs = append(f.BJTs, opBJT{
 			Name: q.Name, Model: q.Model, Polarity: q.Polarity,
 			VBE: q.VBE, VBC: q.VBC, VCE: q.VCE, IC: num(q.IC), IB: num(q.IB), IE: num(q.IE),
 			Power: num(q.Power), Region: string(q.Region), Pos: q.Pos.String(),
 		})
-		if !f.Physical {
+		if bad[q.Name] {
 			f.BJTs[len(f.BJTs)-1].Region = checks.RegionNotPhysical
 		}
-		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) && f.Physical {
+		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) && !bad[q.Name] {
 			f.BJTs[len(f.BJTs)-1].Tj = &v
 		}
 	}
@@ -233,7 +238,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			for _, why := range r.NotPhysical {
 				fmt.Fprintf(w, "  %s\n", why)
 			}
-			fmt.Fprintf(w, "  currents, power and temperature are not shown; give the junction a series resistance\n\n")
+			fmt.Fprintf(w, "  currents, power and temperature of these devices are not shown; give the junction a series resistance\n\n")
 		}
 		if len(r.BJTs) == 0 {
 			fmt.Fprintln(w, "  no bipolar transistors")
