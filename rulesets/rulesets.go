@@ -188,7 +188,8 @@ const maxVariantName = 64
 // MatchType reports whether a model name names the registered type e,
 // ignoring case, and how. The forms, tried in this order on the name and
 // on the name without a leading "Q" (Q2N3904), each as written and cut at
-// the first "_" or "/" (a maker's suffix: 2N3904_ON):
+// the first "_", "/" or "-" (a maker's suffix: 2N3904_ON, 2N3904-ON; a
+// dash that starts an hFE group, BC337-25, matches as written first):
 //
 //	the type or one of its other names            2N3904
 //	the type and one of its hFE groups, with or
@@ -206,7 +207,7 @@ func MatchType(e PartRatings, name string) (group, variant string, ok bool) {
 	var forms []form
 	add := func(s, why string) {
 		forms = append(forms, form{s, why})
-		if i := strings.IndexAny(s, "_/"); i > 0 {
+		if i := strings.IndexAny(s, "_/-"); i > 0 {
 			forms = append(forms, form{s[:i], strings.TrimPrefix(why+", maker suffix "+s[i:], ", ")})
 		}
 	}

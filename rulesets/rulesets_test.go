@@ -164,6 +164,8 @@ func TestLookupVariants(t *testing.T) {
 		{[]string{"BC337-25"}, "npn", "BC337-25", "hFE group 25", 160, 400},
 		{[]string{"BD139-16"}, "npn", "BD139-16", "hFE group 16", 100, 250},
 		{[]string{"BC547B/PHI"}, "npn", "BC547B", "maker suffix /PHI, hFE group B", 200, 450},
+		{[]string{"2N3904-FS"}, "npn", "2N3904", "maker suffix -FS, name", 100, 300},
+		{[]string{"BC547B-AP"}, "npn", "BC547B", "maker suffix -AP, hFE group B", 200, 450},
 		{[]string{"2N2222"}, "npn", "2N2222", "name", 100, 300},
 		{[]string{"2N2222A"}, "npn", "2N2222A", "name", 100, 300},
 		{[]string{"Q2N2222A"}, "npn", "2N2222A", "Q prefix, name", 100, 300},
