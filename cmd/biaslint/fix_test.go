@@ -267,3 +267,24 @@ func TestFixIncludedFile(t *testing.T) {
 		t.Errorf("included file:\n%s", got)
 	}
 }
+
+// BenchmarkClassOf200Fixes times a text check of the class of 200 lab
+// boards (batch_test.go) with the computed fixes, against --fixes=false.
+func BenchmarkClassOf200Fixes(b *testing.B) {
+	dir := b.TempDir()
+	writeClass(b, dir, 200)
+	for _, tc := range []struct {
+		name string
+		args []string
+	}{
+		{"with", []string{"biaslint", "check", dir}},
+		{"without", []string{"biaslint", "check", "--fixes=false", dir}},
+	} {
+		b.Run(tc.name, func(b *testing.B) {
+			for b.Loop() {
+				var out strings.Builder
+				run(tc.args, &out, &out)
+			}
+		})
+	}
+}
