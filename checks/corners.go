@@ -225,6 +225,36 @@ func (a *analyzer) corners(specs []caseSpec, outs []caseOut, groups []int) ([]ca
 	return out, nil
 }
 
+// movedShare is the relative change of a transistor's collector current
+// (or a change of region) by which a drive-level scenario counts as
+// moving its operating point.
+const movedShare = 1e-3
+
+// moves reports whether transistor j's operating point differs between
+// the nominal solution and another scenario's: its region, or its IC by
+// more than movedShare (of IC, at least conductingIC).
+func (a *analyzer) moves(nom, other *solve.Result, j int) bool {
+	p, q := bjtOp(nom, a.bjts[j].Name, j), bjtOp(other, a.bjts[j].Name, j)
+	if p == nil || q == nil {
+		return true
+	}
+	return p.Region != q.Region || math.Abs(q.IC-p.IC) > movedShare*math.Max(math.Abs(p.IC), conductingIC)
+}
+
+// bjtOp finds transistor name in a result: at index j when the result
+// lists the transistors in circuit order (it does), else by a search.
+func bjtOp(r *solve.Result, name string, j int) *solve.BJTOp {
+	if j < len(r.BJTs) && netlist.Key(r.BJTs[j].Name) == netlist.Key(name) {
+		return &r.BJTs[j]
+	}
+	for k := range r.BJTs {
+		if netlist.Key(r.BJTs[k].Name) == netlist.Key(name) {
+			return &r.BJTs[k]
+		}
+	}
+	return nil
+}
+
 // setKey sets key to v in set.
 func setKey(set []setting, key string, v float64) []setting {
 	for i := range set {
@@ -327,14 +357,32 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		rs, tol = a.nearestResistors(rs, tol)
 	}
 	n := len(a.bjts)
-	// Job g*(len(rs)+1)+0 is the group's tight base solve; +1+i moves
-	// resistor i.
+	// A drive-level group moves the resistors only for the transistors
+	// whose operating point it changes: the others' worst resistor
+	// corners are the nominal group's, and repeating them in every group
+	// would make the case count grow as drives times transistors.
+	feels := make([][]bool, len(groups))
+	var active []int
+	for gi, g := range groups {
+		feels[gi] = make([]bool, n)
+		any := false
+		for j := range a.bjts {
+			feels[gi][j] = gi == 0 || outs[g].res == nil || a.moves(outs[0].res, outs[g].res, j)
+			any = any || feels[gi][j]
+		}
+		if any {
+			active = append(active, gi)
+		}
+	}
+	// Job a*(len(rs)+1)+0 is active group a's tight base solve; +1+i
+	// moves resistor i.
 	per := len(rs) + 1
 	ic := make([][]float64, len(groups)*per)
 	beta := make([][]float64, len(groups)*per)
 	errs := make([]error, len(groups)*per)
-	a.pool.each(len(groups)*per, func(w *worker, k int) {
-		gi, i := k/per, k%per-1
+	a.pool.each(len(active)*per, func(w *worker, k int) {
+		gi, i := active[k/per], k%per-1
+		k = gi*per + i + 1
 		sp := specs[groups[gi]]
 		if w.err != nil {
 			errs[k] = w.err
@@ -385,7 +433,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		a.notes.Warnf(pos, "the resistor corners of case %s are unjudged (every other case is judged): their sensitivities could not be solved: %s",
 			rulesCaseName(&specs[groups[k/per]]), msg)
 	}
-	for gi := range groups {
+	for _, gi := range active {
 		if failed[gi] {
 			continue
 		}
@@ -406,7 +454,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			out[gi] = append(out[gi], resistorCorner{name: a.bjts[j].Name + " " + what, set: set})
 		}
 		for j := range a.bjts {
-			if !(ic[b][j] > conductingIC) {
+			if !feels[gi][j] || !(ic[b][j] > conductingIC) {
 				continue
 			}
 			corner(j, "IC-high", ic, true)

@@ -261,57 +261,33 @@ func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
 		return caseOut{err: w.err}
 	}
 	w.setHFE(sp.hfe)
-	sys := w.sys
-	var out caseOut
-	var oc *netlist.Circuit
-	if sp.open != nil && sp.open.Kind == 'V' {
-		oc = w.opened(sp.open)
-		s, err := solve.Prepare(oc)
-		if err != nil {
-			return caseOut{err: err}
-		}
-		sys = s
-		set := make([]setting, 0, len(sp.set))
-		for _, x := range sp.set {
-			if x.key != netlist.Key(sp.open.Name) {
-				set = append(set, x)
-			}
-		}
-		var none []string
-		if err := w.apply(sys, &none, set); err != nil {
-			return caseOut{err: err}
-		}
-	} else if err := w.apply(sys, &w.dirty, sp.set); err != nil {
+	if err := w.apply(w.sys, &w.dirty, sp.set); err != nil {
 		return caseOut{err: err}
 	}
-	out.res, out.th, out.err = w.a.solveThermal(sys, sp, guess)
+	var out caseOut
+	out.res, out.th, out.err = w.a.solveThermal(w.sys, sp, guess)
 	if sp.open != nil {
-		if oc == nil {
-			oc = w.circ // a current source opened by setting it to zero
-		}
-		w.openThevenin(oc, sp, &out)
+		w.openThevenin(sp, &out)
 	}
 	return out
 }
 
-// opened returns the worker's circuit with voltage source src replaced by
-// a leak resistor (solve.LeakR, the conductance SPICE places across junctions):
-// the source lets go of its net, and no net is left without a DC path.
-func (w *worker) opened(src *netlist.Element) *netlist.Circuit {
-	c := *w.circ
-	c.Elements = make([]*netlist.Element, 0, len(w.circ.Elements))
-	for _, e := range w.circ.Elements {
-		if netlist.Key(e.Name) == netlist.Key(src.Name) {
-			e = &netlist.Element{Kind: 'R', Name: e.Name, Nodes: e.Nodes[:2], Value: solve.LeakR, Pos: e.Pos, Chain: e.Chain}
-		}
-		c.Elements = append(c.Elements, e)
+// opened lists the voltage source a case opens, for solve.Options.Open:
+// the source lets go of its net and carries its current through a leak
+// (solve.LeakR, the conductance SPICE places across junctions), so no net
+// is left without a DC path. A current source is opened by setting it to
+// zero instead.
+func opened(sp *caseSpec) []string {
+	if sp.open != nil && sp.open.Kind == 'V' {
+		return []string{sp.open.Name}
 	}
-	return &c
+	return nil
 }
 
 // openThevenin recomputes the Thevenin facts of the transistors whose base
-// the opened source drives, on the opened circuit.
-func (w *worker) openThevenin(oc *netlist.Circuit, sp *caseSpec, out *caseOut) {
+// the opened source drives, on the opened circuit, starting from the
+// case's solution.
+func (w *worker) openThevenin(sp *caseSpec, out *caseOut) {
 	if out.err != nil {
 		return
 	}
@@ -322,11 +298,7 @@ func (w *worker) openThevenin(oc *netlist.Circuit, sp *caseSpec, out *caseOut) {
 		if !drivenBy(&a.tmpl[j], sp.open.Name) {
 			continue
 		}
-		s := 1.0
-		if a.tmpl[j].Polarity == "pnp" {
-			s = -1
-		}
-		out.rth[j], out.vth[j] = thevenin(oc, a.bjts[j].Name, s, sp.temp)
+		out.rth[j], out.vth[j] = w.thevenin(j, opened(sp), sp.temp, out.res)
 		out.reth[j] = true
 	}
 }
@@ -403,6 +375,7 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 		return nil, err
 	}
+	a.theveninAll(outs[0].res)
 	a.assignRoles(outs[0].res)
 	// A .temp line with several temperatures: the first is the nominal
 	// case's, each other one is a case of its own (unless --temp, Temp,
@@ -584,6 +557,20 @@ func voltagesRunAway(c *netlist.Circuit, res *solve.Result) bool {
 // in a case is not physical (Case.Unphysical).
 const RegionNotPhysical = "not physical"
 
+// unphysicalDevices returns the keys of the devices whose operating point
+// in res is not physical, and whole = true when the node voltages ran
+// away so that no device of the case has a meaningful point.
+func unphysicalDevices(c *netlist.Circuit, res *solve.Result) (bad map[string]bool, whole bool) {
+	bad = map[string]bool{}
+	if res.Physical() {
+		return bad, false
+	}
+	for _, u := range res.Unphysical {
+		bad[netlist.Key(u.Device)] = true
+	}
+	return bad, voltagesRunAway(c, res)
+}
+
 // errorPlace splits a solver error into its position (the circuit's file
 // when it has none) and its message without the position.
 func errorPlace(err error, file string) (netlist.Pos, string) {
@@ -655,11 +642,7 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 		// ideal source holds its node whatever the junction draws); when
 		// they do not, nothing in the case is reported: every transistor is
 		// marked, and resistors and nets are left out.
-		bad := map[string]bool{}
-		for _, u := range res.Unphysical {
-			bad[netlist.Key(u.Device)] = true
-		}
-		whole := voltagesRunAway(a.c, res)
+		bad, whole := unphysicalDevices(a.c, res)
 		for k := range cs.Transistors {
 			t := &cs.Transistors[k]
 			if !whole && !bad[netlist.Key(t.Name)] {

@@ -21,8 +21,9 @@ package checks
 //
 //	g = dP/dTj * RthJA,
 //
-// taken by a forward difference of gainStep kelvin with the other
-// junctions held. Below 1 a disturbance of the junction temperature dies
+// taken over a step of gainStep kelvin with the other junctions held, to
+// first order about the operating point (solve.System.SolveGains: one
+// factorisation for all transistors, not a solve per transistor). Below 1 a disturbance of the junction temperature dies
 // out and the fixed point is stable; at or above 1 it grows. The
 // judgement, per transistor:
 //
@@ -55,9 +56,9 @@ const (
 	// defaultTjMax is the Tj max assumed when the ratings give none, C: the
 	// usual rating of silicon parts in plastic packages (common practice).
 	defaultTjMax = 150
-	// gainStep is the junction-temperature step of the loop-gain
-	// difference, K.
-	gainStep = 1.0
+	// gainStep is the junction-temperature step, K, of the first-order
+	// loop gain: small enough that it gives the derivative dP/dTj.
+	gainStep = 1e-2
 	// thermalCapMargin is how far past its Tj max a junction is followed,
 	// K; beyond it the fixed point (if any) is estimated, not solved, since
 	// the device equations are far outside any data sheet there.
@@ -86,7 +87,7 @@ type thermalOut struct {
 // solveThermal solves one case on sys: with the electro-thermal iteration
 // when sp.thermal, else once with the transistors at sp.heldTemps.
 func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Result) (*solve.Result, thermalOut, error) {
-	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess}
+	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Open: opened(sp)}
 	if !sp.thermal {
 		base.DeviceTemp = sp.heldTemps
 		res, err := sys.Solve(base)
@@ -217,31 +218,24 @@ func (a *analyzer) loopGains(sys *solve.System, base solve.Options, T []float64,
 	// Loop gains at the final junction temperatures.
 	opt := tightOptions(base)
 	opt.DeviceTemp, opt.Guess = temps(T), res
-	r0, err := sys.Solve(opt)
+	r0, dp, err := sys.SolveGains(opt, gainStep)
 	if err != nil {
 		for j := range gain {
 			gain[j] = math.NaN()
 		}
 		return
 	}
-	p0 := power(r0)
-	for j := range a.bjts {
-		if math.IsNaN(rth[j]) {
+	// dp is in the order of the result's transistors.
+	for k, op := range r0.BJTs {
+		j, ok := a.bjtIdx[netlist.Key(op.Name)]
+		if !ok || k >= len(dp) {
+			continue
+		}
+		switch {
+		case math.IsNaN(rth[j]):
 			gain[j] = math.NaN()
-			continue
+		case rth[j] != 0:
+			gain[j] = dp[k] * rth[j]
 		}
-		if rth[j] == 0 {
-			continue
-		}
-		Tp := append([]float64(nil), T...)
-		Tp[j] += gainStep
-		o := opt
-		o.DeviceTemp, o.Guess = temps(Tp), r0
-		r1, err := sys.Solve(o)
-		if err != nil {
-			gain[j] = math.NaN()
-			continue
-		}
-		gain[j] = (power(r1)[j] - p0[j]) / gainStep * rth[j]
 	}
 }

@@ -68,12 +68,13 @@ Q1 c b 0 HELD
 	sunk := analyzeWith(t, strings.Replace(src, "RTH", "10", 1), checks.Options{Thermal: true})
 	tr := q(&sunk.Cases[0], "Q1")
 	// The fixed point T = 25 + P(T)*10 by iteration of the hand formula,
-	// and the loop gain as the solver takes it: (P(T+1) - P(T))/1 K * RthJA.
+	// and the loop gain as the solver takes it, the derivative dP/dTj *
+	// RthJA (a central difference of 1 mK of the hand formula).
 	T := 25.0
 	for i := 0; i < 200; i++ {
 		T = 25 + heldPower(1e-14, 100, 0.74, 5, T)*10
 	}
-	gain := (heldPower(1e-14, 100, 0.74, 5, T+1) - heldPower(1e-14, 100, 0.74, 5, T)) * 10
+	gain := (heldPower(1e-14, 100, 0.74, 5, T+1e-3) - heldPower(1e-14, 100, 0.74, 5, T-1e-3)) / 2e-3 * 10
 	if math.Abs(tr.Tj-T) > 2e-3 {
 		t.Errorf("heat sink: Tj %.4f C, by hand %.4f C", tr.Tj, T)
 	}

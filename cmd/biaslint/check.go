@@ -70,6 +70,7 @@ func checkCommand() *cli.Command {
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
 			fixesFlag,
+			shardFlag,
 			configFlag, noConfigFlag,
 		},
 		Before: applyProjectFile,
@@ -197,6 +198,11 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
+	si, sn, err := parseShard(c.String("shard"))
+	if err != nil {
+		return nil, err
+	}
+	inputs = shardOf(inputs, si, sn)
 	run := &checkRun{set: set, fixes: wantFixes(c)}
 	if run.boardPath = c.String("board"); run.boardPath != "" {
 		if run.board, err = board.ReadFile(run.boardPath); err != nil {

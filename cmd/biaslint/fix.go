@@ -34,7 +34,7 @@ func fixCommand() *cli.Command {
 	// fix takes check's flags that choose what is judged and how, not
 	// those that choose how a report looks.
 	skip := map[string]bool{"format": true, "summary": true, "fail-on": true, "notes": true, "color": true,
-		"output": true, "fixes": true}
+		"output": true, "fixes": true, "shard": true}
 	var flags []cli.Flag
 	for _, f := range checkCommand().Flags {
 		if !skip[f.Names()[0]] {

@@ -133,6 +133,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			plotCommand(),
 			initCommand(),
 			fixCommand(),
+			mergeCommand(),
 			versionCommand(),
 			completionCommand(),
 			helpCommand(),

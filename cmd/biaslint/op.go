@@ -153,24 +153,19 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	if t == nil && circ.Options.TempSet {
 		amb = &circ.Options.Temp
 	}
-	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal")})
+	// Only the nominal solution and the junction temperatures: op prints
+	// no roles, topology or other cases, so it computes none.
+	op, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal")})
 	if err != nil {
 		return opFile{}, err
 	}
-	res := an.Cases[0].Solution
-	tj := map[string]float64{}
-	// The transistors whose point is not physical (checks marks them, and
-	// every one when the node voltages ran away): no currents for them.
-	bad := map[string]bool{}
-	for _, q := range an.Cases[0].Transistors {
-		tj[q.Name] = q.Tj
-		bad[q.Name] = q.Region == checks.RegionNotPhysical
-	}
+	// The transistors whose point is not physical: no currents for them.
+	res, tj, bad := op.Solution, op.Tj, op.NotPhysical
 	f := opFile{
 		File:            circ.File,
 		Title:           circ.Title,
 		Temperature:     res.Temp,
-		TemperatureFrom: an.TempFrom,
+		TemperatureFrom: op.TempFrom,
 		Method:          string(res.Method),
 		Iterations:      res.Iterations,
 		Nodes:           map[string]float64{},

@@ -247,7 +247,10 @@ func SARIF(w io.Writer, r *Report) error {
 				res.RelatedLocations = append(res.RelatedLocations, relatedLocation(i, rel, f.Path))
 			}
 			res.PartialFingerprints = map[string]string{FingerprintKey: Fingerprint(x)}
-			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner)}
+			// netlist names the checked file the result came from (its
+			// location may be an included file or the board file), so that
+			// reports of several runs can be merged in file order.
+			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner), "netlist": f.Path}
 			if x.HasLimit {
 				props["value"], props["limit"], props["unit"] = x.Value, x.Limit, x.Unit
 			}
