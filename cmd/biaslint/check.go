@@ -316,13 +316,14 @@ func checkFixWork(cases int) int { return max(400, cases) }
 
 // judge returns the fix search's Judge: analyse a changed circuit with
 // the run's options (no progress bar; the quick judgement without the
-// corners and Monte Carlo runs) and evaluate the rule set.
+// corners, the Monte Carlo runs and the electro-thermal solve) and
+// evaluate the rule set.
 func (run *checkRun) judge(opt checks.Options) fix.Judge {
 	opt.Progress = nil
 	return func(c *netlist.Circuit, quick bool) (fix.Verdict, error) {
 		o := opt
 		if quick {
-			o.Corners, o.MonteCarlo = false, 0
+			o.Corners, o.MonteCarlo, o.Thermal = false, 0, false
 		}
 		an, err := checks.Analyze(c, o)
 		if err != nil {
