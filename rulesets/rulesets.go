@@ -1,7 +1,9 @@
 // Package rulesets holds biaslint's built-in YAML files: the default rule
 // set, example team and lab-course rule sets, and the parts library of
-// generic transistor classes. The rule sets are read by package rules; the
-// parts library is read here (Parts, LoadParts) and consumed by checks.
+// registered transistor types and generic classes. The rule sets are read
+// by package rules; the parts library is read here (Parts, LoadParts,
+// Combine) and consumed by checks, which finds a model's entry with
+// Library.Lookup (type names with their variants, class patterns).
 package rulesets
 
 import (
