@@ -134,9 +134,12 @@ type analyzer struct {
 	// enet is the resistor network of the emitter resistances, rnet the
 	// nets held by ideal sources.
 	enet *emitterNetwork
-	rnet *railNets
+	rnet *Localizer
 	// sys is the nominal circuit prepared once (structure checked).
 	sys *solve.System
+	// multistable is set once the nominal solution was found unstable:
+	// later cases are then tested too (see settleCases).
+	multistable bool
 	// ratingNoted marks the models (by key) whose combined ratings have
 	// been noted.
 	ratingNoted map[string]bool
@@ -236,6 +239,10 @@ type OpPoint struct {
 	// not physical (every one when the node voltages ran away): their
 	// currents, power and temperature have no meaning.
 	NotPhysical map[string]bool
+	// States is not nil when the first DC solution found was unstable (as
+	// Analysis.States): Solution is then the first stable state, and
+	// States.Cases counts the stable states found.
+	States *States
 }
 
 // OperatingPoint solves only the nominal case of c, as Analyze would
@@ -257,6 +264,23 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 	if err != nil {
 		return nil, err
 	}
+	// An unstable root is never the operating point: start again from the
+	// first stable state, as Analyze does.
+	var multi *States
+	if states, unstable, err := a.stableStates(&sp, &caseOut{res: res, th: th}); err != nil {
+		return nil, err
+	} else if unstable != nil {
+		multi = &States{Unstable: unstable, Cases: []int{0}, Message: a.statesNote(unstable, states)}
+		for i := 1; i < len(states); i++ {
+			multi.Cases = append(multi.Cases, i)
+		}
+		if len(states) > 0 {
+			sp.start = states[0]
+			if res, th, err = a.solveThermal(a.sys, &sp, states[0]); err != nil {
+				return nil, err
+			}
+		}
+	}
 	tj, notPhys := map[string]float64{}, map[string]bool{}
 	bad, whole := unphysicalDevices(c, res)
 	for _, op := range res.BJTs {
@@ -274,7 +298,7 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 		}
 		tj[op.Name] = t
 	}
-	return &OpPoint{Solution: res, Tj: tj, Temp: a.temp, TempFrom: a.tempFrom, NotPhysical: notPhys}, nil
+	return &OpPoint{Solution: res, Tj: tj, Temp: a.temp, TempFrom: a.tempFrom, NotPhysical: notPhys, States: multi}, nil
 }
 
 // modelList names a circuit's BJT models for a message, at most a few.

@@ -66,6 +66,9 @@ type caseSpec struct {
 	// (-1 for a cold start); group the index of the drive-level scenario's
 	// nominal-corner case this case belongs to (-1 for none).
 	guess, group int
+	// start, when not nil, warm-starts the case instead of guess (a
+	// stable state found after the nominal solve, see states.go).
+	start *solve.Result
 	// swing is the swept source and level its deviation (swing cases).
 	swing *swingSource
 	level float64
@@ -323,7 +326,9 @@ func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error
 	a.pool.each(len(idx), func(w *worker, k int) {
 		i := idx[k]
 		var g *solve.Result
-		if sp := &specs[i]; sp.guess >= 0 && sp.guess < len(outs) {
+		if sp := &specs[i]; sp.start != nil {
+			g = sp.start
+		} else if sp.guess >= 0 && sp.guess < len(outs) {
 			g = outs[sp.guess].res
 		}
 		outs[i] = w.solveCase(&specs[i], g)
@@ -334,7 +339,22 @@ func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error
 			return caseError(&specs[i], outs[i].err)
 		}
 	}
-	return nil
+	if !a.multistable {
+		return nil
+	}
+	moved, err := a.settleCases(specs, outs, idx)
+	if err != nil || len(moved) == 0 {
+		return err
+	}
+	var names []string
+	for _, i := range moved {
+		names = append(names, rulesCaseName(&specs[i]))
+	}
+	a.notes.Notef(netlist.Pos{File: a.c.File, Line: 1, Col: 1}, "%d cases first solved to an unstable balance and use a stable state instead: %s",
+		len(moved), strings.Join(names, ", "))
+	a.multistable = false // the re-solve is judged as it lands
+	defer func() { a.multistable = true }()
+	return a.solveSpecs(specs, outs, moved)
 }
 
 // caseError names the case an error came from.
@@ -375,8 +395,33 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 		return nil, err
 	}
+	var multi *States
+	if states, unstable, err := a.stableStates(&specs[0], &outs[0]); err != nil {
+		return nil, err
+	} else if unstable != nil {
+		multi = &States{Unstable: unstable, Cases: []int{0}}
+		multi.Message = a.statesNote(unstable, states)
+		if len(states) > 0 {
+			// The nominal case from the first stable state, the others
+			// as cases of their own.
+			specs[0].start = states[0]
+			for i, st := range states[1:] {
+				multi.Cases = append(multi.Cases, len(specs))
+				specs = append(specs, caseSpec{scenario: stateName(i + 1), kind: KindState, ambient: a.ambient,
+					temp: a.temp, thermal: o.Thermal, guess: -1, group: -1, start: st})
+				outs = append(outs, caseOut{})
+			}
+			if err := a.solveSpecs(specs, outs, span(0, len(specs))); err != nil {
+				return nil, err
+			}
+		}
+	}
 	a.theveninAll(outs[0].res)
 	a.assignRoles(outs[0].res)
+	if multi != nil {
+		a.stateRoles(outs, multi.Cases)
+	}
+	a.multistable = multi != nil
 	// A .temp line with several temperatures: the first is the nominal
 	// case's, each other one is a case of its own (unless --temp, Temp,
 	// sets the temperature for all).
@@ -437,7 +482,7 @@ func (a *analyzer) run() (*Analysis, error) {
 			return nil, err
 		}
 	}
-	an := &Analysis{Circuit: a.c}
+	an := &Analysis{Circuit: a.c, States: multi}
 	// Cases that were not solved, grouped by where and why.
 	failed := map[string]*unjudgedCases{}
 	var failOrder []string

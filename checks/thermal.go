@@ -32,7 +32,9 @@ package checks
 //     Tj max) with a loop gain there at or above 1 (no fixed point below
 //     it: the power rises faster than the heat can leave). RunawayTj is
 //     the junction temperature from which the steps stopped shrinking
-//     (where the local loop gain reached 1), else the last iterate.
+//     (where the local loop gain reached 1), else the last iterate. The
+//     case's operating point is then solved with that junction at its Tj
+//     max (the power it dissipates when it reaches its rating).
 //   - stable: otherwise. When the iteration was stopped at the cap with a
 //     loop gain g < 1 there, the fixed point lies beyond it and is
 //     estimated by one Newton step on Tj − Ta − P·RthJA,
@@ -133,6 +135,9 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 	// holds their unrelaxed step there.
 	capped := make([]bool, n)
 	d := make([]float64, n)
+	// tAt is the temperature d was taken at; d1, t1 the evaluation before
+	// (for a secant loop gain where the measured one fails).
+	tAt, d1, t1 := make([]float64, n), make([]float64, n), make([]float64, n)
 	settled, stopped := false, false
 	var prevT []float64
 	for it := 0; it < thermalMaxIter && !settled && !stopped; it++ {
@@ -166,7 +171,10 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 			if math.IsNaN(rth[j]) {
 				continue
 			}
-			d[j] = sp.temp + p[j]*rth[j] - T[j]
+			if it > 0 {
+				d1[j], t1[j] = d[j], tAt[j]
+			}
+			d[j], tAt[j] = sp.temp+p[j]*rth[j]-T[j], T[j]
 			dj := d[j]
 			if it > 0 && step[j] != 0 {
 				if dj*step[j] < 0 {
@@ -192,6 +200,11 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 	out.unsettled = !settled && !stopped
 	a.loopGains(sys, base, T, res, rth, out.gain, temps, power)
 	for j := range a.bjts {
+		if math.IsNaN(out.gain[j]) && capped[j] && tAt[j] != t1[j] {
+			// The circuit no longer solves at the last temperatures: the
+			// secant of the last two steps, g = 1 + Δd/ΔT.
+			out.gain[j] = 1 + (d[j]-d1[j])/(tAt[j]-t1[j])
+		}
 		g := out.gain[j]
 		switch {
 		case math.IsNaN(rth[j]) || rth[j] == 0:
@@ -204,6 +217,22 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 		case capped[j]:
 			// Stable beyond the cap: one Newton step on the fixed point.
 			out.tj[j] = T[j] + d[j]/(1-g)
+		}
+	}
+	// A junction that runs away has no operating temperature: its facts
+	// are taken where it reaches its Tj max (the others where they are).
+	Th := append([]float64(nil), T...)
+	hot := false
+	for j := range a.bjts {
+		if out.runaway[j] && T[j] > tjmax[j] {
+			Th[j], hot = tjmax[j], true
+		}
+	}
+	if hot {
+		opt := base
+		opt.DeviceTemp, opt.Guess = temps(Th), res
+		if r, err := sys.Solve(opt); err == nil {
+			res = r
 		}
 	}
 	return res, out, nil

@@ -84,6 +84,12 @@ Q1 c b 0 HELD
 	if fs := findings(t, sunk, "thermal-runaway"); len(fs) != 0 {
 		t.Errorf("heat sink: thermal-runaway fired: %s", fs[0].Message)
 	}
+	// A team limit below the stable gain: the message says what was found
+	// (close to runaway, the gain against that limit), not a runaway.
+	fs := findingsSet(t, sunk, "thermal-runaway", map[string]string{"thermal_gain_max": "0.05"})
+	if len(fs) != 1 || !strings.Contains(fs[0].Message, "is close to thermal runaway") || strings.Contains(fs[0].Message, "without bound") {
+		t.Errorf("heat sink, limit 0.05: %v", fs)
+	}
 
 	free := analyzeWith(t, strings.Replace(src, "RTH", "200", 1), checks.Options{Thermal: true})
 	tr = q(&free.Cases[0], "Q1")
@@ -98,7 +104,7 @@ Q1 c b 0 HELD
 	if !(tr.RunawayTj < 150) {
 		t.Errorf("free air: ran away from %g C, want below Tj max", tr.RunawayTj)
 	}
-	fs := findings(t, free, "thermal-runaway")
+	fs = findings(t, free, "thermal-runaway")
 	if len(fs) != 1 || !strings.Contains(fs[0].Message, "runs away thermally") || !strings.Contains(fs[0].Message, "reaches 1") {
 		t.Fatalf("free air: thermal-runaway findings %v", fs)
 	}

@@ -32,7 +32,8 @@
 // Elements: R C L (value, name=value with r= c= l= value=, {expr} or a
 // parameter name), V I (DC value, dc(v), dc=v, a plain value, AC [mag
 // [phase]] with a missing magnitude read as 1 as SPICE3 does, ac=mag or
-// ac=mag,phase, SIN PULSE PWL EXP with or without parentheses), D, Q
+// ac=mag,phase, SIN (or SINE) PULSE PWL EXP with or without parentheses;
+// Rser= Rpar= Cpar= are ignored with an alert), D, Q
 // (three or four nodes, optional area, instance parameters such as m=2 or
 // area=2; the area factor is multiplied by m), E G (out+ out- in+ in- gain,
 // or out+ out- POLY(n) with n control node pairs, each optionally written

@@ -437,6 +437,14 @@ func Of(an *checks.Analysis, name string) (Plane, error) {
 	if an == nil || len(an.Cases) == 0 || an.Circuit == nil {
 		return Plane{}, fmt.Errorf("no analysis")
 	}
+	return of(an, name, checks.NewLocalizer(an.Circuit))
+}
+
+// of is Of with the circuit's Localizer: the load line is solved on the
+// part of the board that taking the transistor out can change (the rest
+// is held by the rails), so plotting every transistor of a large board
+// costs in proportion to the board, not to its square.
+func of(an *checks.Analysis, name string, loc *checks.Localizer) (Plane, error) {
 	nom := an.Cases[0]
 	var t *checks.Transistor
 	for i := range nom.Transistors {
@@ -477,7 +485,11 @@ func Of(an *checks.Analysis, name string) (Plane, error) {
 			opt.DeviceTemp[netlist.Key(d.Name)] = d.Temp
 		}
 	}
-	if ll, err := LoadLineOf(an.Circuit, t.Name, opt); err != nil {
+	circ := an.Circuit
+	if part := loc.Part(circ.Element(t.Name), nom.Solution); part != nil {
+		circ = part
+	}
+	if ll, err := LoadLineOf(circ, t.Name, opt); err != nil {
 		pl.LoadNote = err.Error()
 	} else {
 		pl.Load = &ll
@@ -507,9 +519,13 @@ func All(an *checks.Analysis) []Plane {
 	if an == nil || len(an.Cases) == 0 {
 		return nil
 	}
+	if an.Circuit == nil {
+		return nil
+	}
+	loc := checks.NewLocalizer(an.Circuit)
 	var out []Plane
 	for _, t := range an.Cases[0].Transistors {
-		if pl, err := Of(an, t.Name); err == nil {
+		if pl, err := of(an, t.Name, loc); err == nil {
 			out = append(out, pl)
 		}
 	}

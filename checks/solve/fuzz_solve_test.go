@@ -130,7 +130,7 @@ func fuzzCircuit(data []byte) (*netlist.Circuit, string) {
 	// to 1e15, ohmic resistances 0..1e15).
 	bjt := func() map[string]float64 {
 		p := map[string]float64{}
-		for _, k := range []string{"IS", "BF", "BR", "VAF", "VAR", "IKF", "IKR", "ISE", "ISC", "RB", "RE", "RC", "NF", "NE"} {
+		for _, k := range []string{"IS", "BF", "BR", "VAF", "VAR", "IKF", "IKR", "ISE", "ISC", "RB", "RE", "RC", "NF", "NE", "RBM", "IRB"} {
 			if f.pick(3) == 0 {
 				v := f.magnitude()
 				switch k {

@@ -101,9 +101,12 @@ type work struct {
 	// lambda scales the independent sources; gshunt is the GMIN-stepping
 	// conductance from every node to ground.
 	lambda, gshunt float64
-	rhs, xnew      []float64
-	res, mag       []float64
-	iters          int
+	// pull, when not nil, makes gshunt a pseudo-transient step: each node
+	// is pulled towards pull[i] rather than ground (see stability.go).
+	pull      []float64
+	rhs, xnew []float64
+	res, mag  []float64
+	iters     int
 	// bad are the unknowns that failed a test in the last iteration.
 	bad []int
 	// limited are the devices (index into bjts, then diodes) whose

@@ -28,7 +28,8 @@ type Options struct {
 	// device takes its instance parameter temp, else the circuit
 	// temperature plus its instance parameter dtemp.
 	DeviceTemp map[string]float64
-	// GMin is the conductance across each junction, S; zero means
+	// GMin is GMIN, S, the conductance added inside each junction current
+	// (GMIN·v, the SPICE3 placement; see device.BJT.Eval); zero means
 	// c.Options.GMin, or DefaultGMin if that is not positive.
 	GMin float64
 	// RelTol, VNTol and AbsTol are the convergence tolerances; zero means

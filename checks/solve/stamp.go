@@ -185,6 +185,11 @@ func (w *work) stampLinear(k sink) {
 	// matrix pattern does not depend on whether GMIN stepping ran.
 	for i := 0; i < w.s.nNodes; i++ {
 		k.a(i, i, w.gshunt)
+		if w.pull != nil && w.gshunt > 0 {
+			// A pseudo-transient step: the shunt pulls towards the
+			// previous state (see stability.go).
+			k.b(i, w.gshunt*w.pull[i])
+		}
 	}
 }
 

@@ -178,6 +178,8 @@ type checkRun struct {
 	board     []byte
 	// fixes asks for the computed fixes (rules/fix) of each file's findings.
 	fixes bool
+	// shardI of shardN is the part of the inputs checked (--shard).
+	shardI, shardN int
 }
 
 func newCheckRun(c *cli.Context) (*checkRun, error) {
@@ -198,12 +200,10 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
-	si, sn, err := parseShard(c.String("shard"))
-	if err != nil {
+	run := &checkRun{set: set, fixes: wantFixes(c)}
+	if run.shardI, run.shardN, err = parseShard(c.String("shard")); err != nil {
 		return nil, err
 	}
-	inputs = shardOf(inputs, si, sn)
-	run := &checkRun{set: set, fixes: wantFixes(c)}
 	if run.boardPath = c.String("board"); run.boardPath != "" {
 		if run.board, err = board.ReadFile(run.boardPath); err != nil {
 			return nil, badInput(err)

@@ -51,6 +51,11 @@ type opFile struct {
 	// temperatures are left out (null).
 	Physical    bool     `json:"physical"`
 	NotPhysical []string `json:"not_physical,omitempty"`
+	// StableStates and States describe a circuit whose first DC solution
+	// was unstable: how many stable states were found (the one shown is
+	// the first) and what they are.
+	StableStates int    `json:"stable_states,omitempty"`
+	States       string `json:"states,omitempty"`
 
 	nodeOrder []string
 }
@@ -176,7 +181,9 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	for _, u := range res.Unphysical {
 		f.NotPhysical = append(f.NotPhysical, u.Why)
 	}
-
+	if st := op.States; st != nil {
+		f.StableStates, f.States = len(st.Cases), st.Message
+	}
 	for _, n := range res.Nodes {
 		f.Nodes[n.Name] = n.V
 		f.nodeOrder = append(f.nodeOrder, n.Name)
@@ -226,7 +233,11 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			at += " (" + from + ")"
 		}
 		if r.Physical {
-			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", at, r.Method, r.Iterations)
+			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n", at, r.Method, r.Iterations)
+			if r.States != "" {
+				fmt.Fprintf(w, "  %s: %s; shown: stable state 1\n", p.amber("several DC solutions"), r.States)
+			}
+			w.WriteString("\n")
 		} else {
 			fmt.Fprintf(w, "  %s at %s: %s converged in %d iterations to a point the device equations do not describe\n",
 				p.red("not physical"), at, r.Method, r.Iterations)

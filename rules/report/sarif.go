@@ -103,6 +103,10 @@ type sarifNotification struct {
 	Level     string          `json:"level"`
 	Message   sarifText       `json:"message"`
 	Locations []sarifLocation `json:"locations,omitempty"`
+	// Properties name the checked netlist the notification is about
+	// ("netlist") and, for a file's status, that status ("file_status"),
+	// so that reports of several runs can be merged in file order.
+	Properties map[string]any `json:"properties,omitempty"`
 }
 
 // sarifInvocation records how the run ended.
@@ -283,7 +287,7 @@ func SARIF(w io.Writer, r *Report) error {
 			if file == "" {
 				file = f.Path
 			}
-			note := sarifNotification{Level: n.Severity.String(), Message: sarifText{n.Msg}}
+			note := sarifNotification{Level: n.Severity.String(), Message: sarifText{n.Msg}, Properties: map[string]any{"netlist": f.Path}}
 			note.Locations = []sarifLocation{physical(file, n.Pos)}
 			inv.ToolExecutionNotifications = append(inv.ToolExecutionNotifications, note)
 		}
@@ -316,7 +320,8 @@ func statusNotifications(r *Report) []sarifNotification {
 				lvl = "error"
 			}
 			out = append(out, sarifNotification{Level: lvl, Message: sarifText{f.Path + ": " + StatusText(f)},
-				Locations: []sarifLocation{physical(f.Path, netlist.Pos{})}})
+				Locations:  []sarifLocation{physical(f.Path, netlist.Pos{})},
+				Properties: map[string]any{"netlist": f.Path, "file_status": string(f.Status.Of())}})
 			continue
 		}
 		for _, e := range f.Errors {
@@ -324,7 +329,8 @@ func statusNotifications(r *Report) []sarifNotification {
 			if file == "" {
 				file = f.Path
 			}
-			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)}})
+			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)},
+				Properties: map[string]any{"netlist": f.Path, "file_status": string(f.Status.Of())}})
 		}
 	}
 	return out
