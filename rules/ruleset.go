@@ -118,6 +118,9 @@ type Rule struct {
 	// any of the rule's expressions refer to. Both sorted.
 	Facts  []string
 	Params []string
+	// Related are the roles of the nearby parts (checks.NearbyRoles) that
+	// a finding of the rule names as its cause.
+	Related []string
 
 	c *compiled
 }

@@ -67,6 +67,8 @@ type htmlFile struct {
 type htmlFinding struct {
 	Severity, Rule, Device, Pos, Message string
 	Value, Case, Fix, Reason, WaiverPos  string
+	// Related names the parts that make the finding happen.
+	Related string
 }
 
 type htmlDevice struct {
@@ -108,7 +110,10 @@ type htmlGridCell struct {
 
 func htmlFindingOf(x rules.Finding) htmlFinding {
 	h := htmlFinding{Severity: string(x.Severity), Rule: x.Rule, Device: x.Device, Pos: x.Pos.String(),
-		Message: x.Message, Fix: x.Fix}
+		Message: x.Message, Fix: x.Fix, Related: relatedText(x.Related)}
+	if x.Change != nil {
+		h.Fix = x.Change.String() + ". " + x.Fix
+	}
 	if x.HasLimit {
 		h.Value = units.Format(x.Value, x.Unit) + " against " + units.Format(x.Limit, x.Unit)
 	}
@@ -364,7 +369,7 @@ dl.summary dd { margin: 0; }
 .chip.error { background: var(--err); } .chip.warning { background: var(--warn); } .chip.note { background: var(--note); }
 .count-error { color: var(--err); font-weight: 600; } .count-warning { color: var(--warn); font-weight: 600; }
 table.findings, table.waived { width: 100%; }
-td.fix { color: var(--muted); min-width: 14rem; } td.msg { min-width: 18rem; }
+td.fix { color: var(--muted); min-width: 14rem; } td.msg { min-width: 18rem; } div.related { color: var(--muted); font-size: 0.9em; margin-top: 0.2rem; }
 table.findings td.pos, table.waived td.pos { overflow-wrap: anywhere; min-width: 8rem; }
 table.grid td.n { text-align: center; min-width: 2.2rem; }
 table.grid td.path { white-space: nowrap; }
@@ -438,7 +443,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <table class="findings">
 <thead><tr><th>severity</th><th>rule</th><th>device</th><th>location</th><th>finding</th><th>value against limit</th><th>worst case</th><th>fix</th></tr></thead>
 <tbody>
-{{range .Findings}}<tr class="finding"><td><span class="chip {{.Severity}}">{{.Severity}}</span></td><td><code>{{.Rule}}</code></td><td>{{.Device}}</td><td class="pos">{{.Pos}}</td><td class="msg">{{.Message}}</td><td>{{.Value}}</td><td>{{.Case}}</td><td class="fix">{{.Fix}}</td></tr>
+{{range .Findings}}<tr class="finding"><td><span class="chip {{.Severity}}">{{.Severity}}</span></td><td><code>{{.Rule}}</code></td><td>{{.Device}}</td><td class="pos">{{.Pos}}</td><td class="msg">{{.Message}}{{if .Related}}<div class="related">related: {{.Related}}</div>{{end}}</td><td>{{.Value}}</td><td>{{.Case}}</td><td class="fix">{{.Fix}}</td></tr>
 {{end}}</tbody>
 </table>
 {{else}}<p class="none">No findings.</p>{{end}}
@@ -447,7 +452,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <table class="waived">
 <thead><tr><th>severity</th><th>rule</th><th>device</th><th>location</th><th>finding</th><th>reason</th><th>waiver</th></tr></thead>
 <tbody>
-{{range .Waived}}<tr class="waived-finding"><td><span class="chip {{.Severity}}">{{.Severity}}</span></td><td><code>{{.Rule}}</code></td><td>{{.Device}}</td><td class="pos">{{.Pos}}</td><td class="msg">{{.Message}}</td><td>{{.Reason}}</td><td class="pos">{{.WaiverPos}}</td></tr>
+{{range .Waived}}<tr class="waived-finding"><td><span class="chip {{.Severity}}">{{.Severity}}</span></td><td><code>{{.Rule}}</code></td><td>{{.Device}}</td><td class="pos">{{.Pos}}</td><td class="msg">{{.Message}}{{if .Related}}<div class="related">related: {{.Related}}</div>{{end}}</td><td>{{.Reason}}</td><td class="pos">{{.WaiverPos}}</td></tr>
 {{end}}</tbody>
 </table>
 {{end}}
