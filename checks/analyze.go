@@ -160,8 +160,12 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	}
 	a.g = newGraph(c, b)
 	// Structural problems are reported once, against the circuit as given.
-	if _, err := solve.Prepare(c); err != nil {
+	sys, err := solve.Prepare(c)
+	if err != nil {
 		return nil, err
+	}
+	for _, n := range sys.Notes() {
+		a.notes.Notef(n.Pos, "%s", n.Msg)
 	}
 	a.prepare()
 	if err := a.templates(); err != nil {

@@ -31,6 +31,7 @@ package checks
 // hurts.
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -162,10 +163,7 @@ func (a *analyzer) corners(specs []caseSpec, outs []caseOut, groups []int) ([]ca
 		}
 		return fmt.Sprintf("supplies %s%g %%", sign, math.Round(t*1e4)/100)
 	}
-	sens, err := a.sensitivities(specs, outs, groups)
-	if err != nil {
-		return nil, err
-	}
+	sens := a.sensitivities(specs, outs, groups)
 	for gi, g := range groups {
 		base := specs[g]
 		mk := func(corner string) caseSpec {
@@ -307,8 +305,10 @@ func (a *analyzer) nearestResistors(rs []*netlist.Element, tol []float64) ([]*ne
 }
 
 // sensitivities solves the first-order resistor sensitivities of every
-// group and returns its extreme-value corners.
-func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int) ([][]resistorCorner, error) {
+// group and returns its extreme-value corners. A group whose sensitivities
+// cannot be solved gets no resistor corners and a warning saying so; the
+// other groups and every other corner are judged as usual.
+func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int) [][]resistorCorner {
 	var rs []*netlist.Element
 	var tol []float64
 	for _, el := range a.c.Elements {
@@ -321,7 +321,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 	out := make([][]resistorCorner, len(groups))
 	if len(rs) == 0 || len(a.bjts) == 0 {
 		// No transistor, no objective to push the resistors towards.
-		return out, nil
+		return out
 	}
 	if len(rs) > MaxSensitivityResistors {
 		rs, tol = a.nearestResistors(rs, tol)
@@ -338,6 +338,10 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		sp := specs[groups[gi]]
 		if w.err != nil {
 			errs[k] = w.err
+			return
+		}
+		if outs[groups[gi]].res == nil {
+			errs[k] = errors.New("the case itself was not solved")
 			return
 		}
 		w.setHFE(0)
@@ -371,12 +375,20 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			beta[k][j] = op.IC / op.IB
 		}
 	})
+	failed := make([]bool, len(groups))
 	for k, err := range errs {
-		if err != nil {
-			return nil, caseError(&specs[groups[k/per]], fmt.Errorf("resistor sensitivities: %w", err))
+		if err == nil || failed[k/per] {
+			continue
 		}
+		failed[k/per] = true
+		pos, msg := errorPlace(err, a.c.File)
+		a.notes.Warnf(pos, "case %s: its resistor corners are not judged (the other cases are): their sensitivities could not be solved: %s",
+			rulesCaseName(&specs[groups[k/per]]), msg)
 	}
 	for gi := range groups {
+		if failed[gi] {
+			continue
+		}
 		b := gi * per
 		corner := func(j int, what string, obj [][]float64, up bool) {
 			var set []setting
@@ -405,5 +417,5 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			}
 		}
 	}
-	return out, nil
+	return out
 }

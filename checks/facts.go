@@ -257,6 +257,10 @@ type Case struct {
 	Kind string
 	// Run is the Monte Carlo run number (1-based), 0 for other cases.
 	Run int
+	// Unjudged, when not empty, says why the case could not be solved
+	// (what the solver tried); such a case has no subjects and no
+	// Solution, and every other case is judged as usual.
+	Unjudged string
 }
 
 // Analysis is everything checks learned about one circuit.

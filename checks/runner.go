@@ -17,6 +17,8 @@ package checks
 // bits for any number of workers.
 
 import (
+	"errors"
+	"fmt"
 	"math"
 	"runtime"
 	"sync"
@@ -33,6 +35,7 @@ const (
 	KindSwing      = "swing"
 	KindCorner     = "corner"
 	KindMonteCarlo = "monte carlo"
+	KindTemp       = "temperature"
 )
 
 // setting is one element value of a case, by netlist.Key of the name.
@@ -339,7 +342,10 @@ func drivenBy(t *Transistor, name string) bool {
 }
 
 // solveSpecs solves specs[i] for every i in idx on the pool, with outs
-// indexed like specs; it returns the first error in spec order.
+// indexed like specs. A case that fails keeps its error in outs[i].err
+// (it is reported as not judged, see caseFacts); solveSpecs returns the
+// first error in spec order only for the nominal case, without which no
+// other case has a meaning.
 func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error {
 	a.pool.expect(len(idx))
 	a.pool.each(len(idx), func(w *worker, k int) {
@@ -352,7 +358,7 @@ func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error
 		a.pool.tick(1)
 	})
 	for _, i := range idx {
-		if outs[i].err != nil {
+		if i == 0 && outs[i].err != nil {
 			return caseError(&specs[i], outs[i].err)
 		}
 	}
@@ -396,6 +402,22 @@ func (a *analyzer) run() (*Analysis, error) {
 			return nil, ce.Err
 		}
 		return nil, err
+	}
+	// A .temp line with several temperatures: the first is the nominal
+	// case's, each other one is a case of its own (unless --temp, Temp,
+	// sets the temperature for all).
+	if ts := a.c.Options.Temps; o.Temp == nil && len(ts) > 1 {
+		first := len(specs)
+		var more []caseSpec
+		for _, t := range ts[1:] {
+			sp := nom
+			sp.scenario, sp.kind, sp.temp, sp.guess, sp.group = fmt.Sprintf("temp %g C", t), KindTemp, t, 0, -1
+			more = append(more, sp)
+		}
+		specs, outs = a.add(specs, outs, more)
+		if err := a.solveSpecs(specs, outs, span(first, len(specs))); err != nil {
+			return nil, err
+		}
 	}
 	groups := []int{0}
 	if o.Scenarios || o.Corners {
@@ -444,6 +466,10 @@ func (a *analyzer) run() (*Analysis, error) {
 	an := &Analysis{Circuit: a.c}
 	for i := range specs {
 		an.Cases = append(an.Cases, a.caseFacts(&specs[i], &outs[i]))
+		if e := outs[i].err; e != nil {
+			pos, msg := errorPlace(e, a.c.File)
+			a.notes.Warnf(pos, "case %s is not judged (the other cases are): %s", rulesCaseName(&specs[i]), msg)
+		}
 		if outs[i].th.unsettled {
 			a.notes.Notef(netlist.Pos{File: a.c.File}, "case %s: the electro-thermal iteration did not settle in %d steps; junction temperatures are the last iterate's",
 				rulesCaseName(&specs[i]), thermalMaxIter)
@@ -486,11 +512,34 @@ func valueOf(sp *caseSpec, key string, nominal float64) float64 {
 	return nominal
 }
 
+// errorPlace splits a solver error into its position (the circuit's file
+// when it has none) and its message without the position.
+func errorPlace(err error, file string) (netlist.Pos, string) {
+	var ce *solve.ConvergenceError
+	if errors.As(err, &ce) {
+		pos := ce.Pos
+		if !pos.IsValid() {
+			pos = netlist.Pos{File: file, Line: 1, Col: 1}
+		}
+		return pos, ce.Detail()
+	}
+	return netlist.Pos{File: file, Line: 1, Col: 1}, err.Error()
+}
+
 // caseFacts computes every fact of one solved case that does not need the
-// other cases.
+// other cases. A case that was not solved gets no subjects, only its
+// names and the reason in Unjudged.
 func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 	res := o.res
 	cs := Case{Scenario: sp.scenario, Corner: sp.corner, Ambient: sp.ambient, Solution: res, Kind: sp.kind, Run: sp.run}
+	if o.err != nil || res == nil {
+		cs.Solution = nil
+		cs.Unjudged = "not solved"
+		if o.err != nil {
+			_, cs.Unjudged = errorPlace(o.err, a.c.File)
+		}
+		return cs
+	}
 	for _, op := range res.BJTs {
 		j, ok := a.bjtIdx[netlist.Key(op.Name)]
 		if !ok {

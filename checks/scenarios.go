@@ -256,7 +256,7 @@ func swingCircuit(c *netlist.Circuit, res *solve.Result) *netlist.Circuit {
 		return true
 	}
 	gnd := func(n string) string {
-		if k := nodeKey(n); k == "gnd" {
+		if netlist.IsGround(n) {
 			return netlist.Ground
 		}
 		return n
@@ -313,9 +313,16 @@ func (a *analyzer) runSwings(specs []caseSpec, outs []caseOut) ([]caseSpec, []ca
 		errs[i] = w.sweep(srcs[i], specs, outs, nominal)
 		a.pool.tick(len(srcs[i].levels))
 	})
+	// A sweep that fails leaves its levels without a solution: those cases
+	// are not judged (the error says why), the others are.
 	for i, err := range errs {
-		if err != nil {
-			return nil, nil, nil, caseError(&specs[srcs[i].first], err)
+		if err == nil {
+			continue
+		}
+		for k := range srcs[i].levels {
+			if o := &outs[srcs[i].first+k]; o.res == nil {
+				o.err = err
+			}
 		}
 	}
 	return specs, outs, srcs, nil

@@ -6,9 +6,20 @@ package netlist
 
 import "strings"
 
-// Ground is the canonical name of the reference node. "gnd" in any case is
-// read as Ground.
+// Ground is the canonical name of the reference node. "gnd" and the global
+// "gnd!" in any case are read as Ground (IsGround).
 const Ground = "0"
+
+// IsGround reports whether a node name is the reference node: 0, gnd or
+// gnd! in any case. Schematic editors write all three; one netlist may mix
+// them, and they are one node.
+func IsGround(name string) bool {
+	switch Key(name) {
+	case Ground, "gnd", "gnd!":
+		return true
+	}
+	return false
+}
 
 // Key folds a name for case-insensitive lookup.
 func Key(name string) string { return strings.ToLower(name) }
@@ -49,8 +60,17 @@ type Element struct {
 	// Source holds the value of an independent V or I source.
 	Source *Source
 	// Control is the flat name of the controlling voltage source of an F or
-	// H element.
+	// H element (the first one of a POLY element).
 	Control string
+	// Poly, when not nil, makes an E, F, G or H element a SPICE2
+	// polynomial source of PolyN controlling values: the controlling
+	// voltages V(Nodes[2+2k]) - V(Nodes[3+2k]) of E and G, or the branch
+	// currents of the voltage sources Controls[k] of F and H. Poly holds
+	// the coefficients p0, p1, ... over the products of the controlling
+	// values in the SPICE2 order (see PolyTerms); Value is not used.
+	Poly     []float64
+	PolyN    int
+	Controls []string
 	// Pos is where the element's line starts in its own file.
 	Pos Pos
 	// Chain lists the instances that placed the element, outermost first;
@@ -188,4 +208,45 @@ func (c *Circuit) Element(name string) *Element {
 		}
 	}
 	return nil
+}
+
+// PolyTerms returns, for a SPICE2 polynomial of n controlling values
+// x[0..n-1] with m coefficients, the variables multiplied in each term:
+// term k is p_k times the product of x[i] over i in PolyTerms(n, m)[k].
+// The order is the one published for SPICE2 (Nagel 1975; the SPICE2 user's
+// guide): the constant, then the terms of degree 1, 2, 3, ... and within a
+// degree the index lists i1 <= i2 <= ... in lexicographic order. For n = 2
+// (x = fa, fb):
+//
+//	p0 + p1·fa + p2·fb + p3·fa² + p4·fa·fb + p5·fb² + p6·fa³ + p7·fa²·fb + ...
+//
+// and for n = 3: p0 + p1·fa + p2·fb + p3·fc + p4·fa² + p5·fa·fb + p6·fa·fc
+// + p7·fb² + p8·fb·fc + p9·fc² + p10·fa³ + ...
+func PolyTerms(n, m int) [][]int {
+	out := make([][]int, 0, m)
+	for d := 0; len(out) < m; d++ {
+		idx := make([]int, d)
+		for {
+			out = append(out, append(make([]int, 0, d), idx...))
+			if len(out) == m || n <= 0 {
+				break
+			}
+			// Next index list of degree d in lexicographic order.
+			i := d - 1
+			for i >= 0 && idx[i] == n-1 {
+				i--
+			}
+			if i < 0 {
+				break
+			}
+			idx[i]++
+			for j := i + 1; j < d; j++ {
+				idx[j] = idx[i]
+			}
+		}
+		if n <= 0 {
+			break
+		}
+	}
+	return out
 }

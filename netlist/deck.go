@@ -69,7 +69,21 @@ type ElementStmt struct {
 	Subckt  Word
 	Params  []Param
 	Source  *SourceStmt
-	Pos     Pos
+	// Poly is the POLY(n) form of an E, F, G or H line (nil otherwise);
+	// the controlling node pairs of E and G follow the output nodes in
+	// Nodes.
+	Poly *PolyStmt
+	Pos  Pos
+}
+
+// PolyStmt is the polynomial part of a controlled source line as written:
+// the dimension, the controlling voltage sources of F and H, and the
+// coefficients.
+type PolyStmt struct {
+	N        int
+	Controls []Word
+	Coeffs   []Value
+	Pos      Pos
 }
 
 // SourceStmt is the value part of an independent V or I source line as
@@ -134,6 +148,9 @@ type Deck struct {
 	Diagnostics ErrorList
 
 	opts LoadOptions
+	// libSections counts the .lib sections seen (and skipped, since the
+	// file was read whole).
+	libSections int
 }
 
 // Notes returns the warnings and notes found while reading the deck.
@@ -166,4 +183,16 @@ func (s *Subckt) displayName() verbatim {
 		return "the top level"
 	}
 	return verbatim("subcircuit " + short(s.Name.Text))
+}
+
+// LibraryOnly reports whether the deck holds definitions and no circuit:
+// no element at top level, but subcircuit definitions, models, parameters
+// or .lib sections (read directly or through includes). Such a file is a
+// library for other netlists to include, not a board to check.
+func (d *Deck) LibraryOnly() bool {
+	t := d.Top
+	if t == nil || len(t.Elements) > 0 {
+		return false
+	}
+	return len(t.Subckts) > 0 || len(t.Models) > 0 || len(t.ParamDefs) > 0 || d.libSections > 0
 }

@@ -26,20 +26,27 @@
 // expressions; "quoted" file names. Keywords and names are case-insensitive
 // and printed as first written. Node names may hold / - + _ # ! and
 // parenthesised parts after a dash as exporters write them (Net-(R1-Pad2)).
-// Names ending in '!' and names on .global lines are global; 0 and gnd are
-// ground. Text after .end is ignored with a note.
+// Names ending in '!' and names on .global lines are global; 0, gnd and
+// gnd! (any case, also when listed on .global) are one node, ground. Text after .end is ignored with a note.
 //
 // Elements: R C L (value, name=value with r= c= l= value=, {expr} or a
-// parameter name), V I (DC value, dc(v), dc=v, a plain value, AC mag
-// [phase], ac=mag, SIN PULSE PWL EXP with or without parentheses), D, Q
+// parameter name), V I (DC value, dc(v), dc=v, a plain value, AC [mag
+// [phase]] with a missing magnitude read as 1 as SPICE3 does, ac=mag or
+// ac=mag,phase, SIN PULSE PWL EXP with or without parentheses), D, Q
 // (three or four nodes, optional area, instance parameters such as m=2 or
-// area=2; the area factor is multiplied by m), E G (out+ out- in+ in- gain),
-// F H (out+ out- Vname gain) and X (ports, subcircuit name, [params:]
-// name=value overrides). Dot statements: .model (NPN, PNP, D; other types
+// area=2; the area factor is multiplied by m), E G (out+ out- in+ in- gain,
+// or out+ out- POLY(n) with n control node pairs, each optionally written
+// (a,b), and the coefficients), F H (out+ out- Vname gain, or out+ out-
+// POLY(n) V1..Vn and the coefficients) and X (ports, subcircuit name,
+// [params:] name=value overrides). POLY coefficients follow the SPICE2
+// order (PolyTerms); a lone coefficient of POLY(1) is the gain. Dot statements: .model (NPN, PNP, D; other types
 // are kept and noted, and an element using one is an error), .subckt/.ends
 // (nested, with [params:] defaults), .param (scoped to its subcircuit),
-// .include/.inc, .lib FILE SECTION with .lib SECTION ... .endl blocks,
-// .temp, .options, .global, .title and .end. Analysis and output statements
+// .include/.inc (a name that matches a file only without regard to letter
+// case is read with a note), .lib FILE SECTION with .lib SECTION ... .endl
+// blocks, .temp (several temperatures: Options.Temps), .options (TEMP, TNOM
+// and GMIN are read; every other option, whatever its value, is ignored
+// with a note), .global, .title and .end. Analysis and output statements
 // (.tran .ac .dc .op .print .plot .probe .save .meas .four .noise .ic
 // .nodeset ...) and .control ... .endc blocks are skipped silently; other
 // dot statements are noted and ignored.

@@ -133,15 +133,29 @@ func (f *flattener) options(top *env) {
 				o.GMin = x
 			}
 		default:
-			if !p.Value.Braced && isIdentText(p.Value.Text) && !f.hasParam(top, p.Value.Text) {
-				f.ev.notef(p.Value.Pos, "option %s=%s is not a number and is ignored", p.Name.Text, p.Value.Text)
-				continue
+			// biaslint reads no other option: whatever its value (a
+			// number, a word, a path), it is kept when numeric and noted.
+			if p.Value.Braced || looksNumeric(p.Value.Text) || f.hasParam(top, p.Value.Text) {
+				if x, ok := f.quiet(p.Value, top); ok {
+					o.Others[k] = x
+				}
 			}
-			if x, ok := f.ev.eval(p.Value, top); ok {
-				o.Others[k] = x
+			if p.Value.Text == "1" && p.Value.Pos == p.Name.Pos {
+				f.ev.notef(p.Name.Pos, "option %s is not used by biaslint and is ignored", p.Name.Text)
+			} else {
+				f.ev.notef(p.Name.Pos, "option %s=%s is not used by biaslint and is ignored", p.Name.Text, p.Value.short())
 			}
 		}
 	}
+}
+
+// quiet evaluates v, dropping any problem it has: for values that are
+// read only to be kept, never to be used.
+func (f *flattener) quiet(v Value, e *env) (float64, bool) {
+	var scratch ErrorList
+	ev := newEvaluator(&scratch)
+	x, ok := ev.eval(v, e)
+	return x, ok && scratch.Err() == nil
 }
 
 func (f *flattener) hasParam(e *env, name string) bool {
@@ -195,7 +209,9 @@ func (f *flattener) node(w Word, e *env) string {
 	k := Key(w.Text)
 	var n string
 	switch {
-	case k == "0" || k == "gnd":
+	case IsGround(k):
+		// 0, gnd, gnd! (and a .global list naming one of them) are all
+		// the reference node.
 		return Ground
 	case f.globals[k] || strings.HasSuffix(k, "!"):
 		n = w.Text
@@ -292,12 +308,32 @@ func (f *flattener) element(s *ElementStmt, def *Subckt, e *env) *Element {
 		el.Source, ok = f.source(s, e)
 	case 'F', 'H':
 		el.Control = join(e.path, s.Control.Text)
+		if s.Poly != nil {
+			for _, c := range s.Poly.Controls {
+				el.Controls = append(el.Controls, join(e.path, c.Text))
+			}
+			el.Control = el.Controls[0]
+		}
 	case 'D':
 		m := f.findModel(s.Model.Text, def, e)
 		ok = f.useModel(el, s, s.Model, m, Diode) && ok
 		ok = f.area(el, s, e) && ok
 	case 'Q':
 		ok = f.bjt(el, s, def, e) && ok
+	}
+	if s.Poly != nil {
+		el.PolyN = s.Poly.N
+		for _, c := range s.Poly.Coeffs {
+			x, good := f.ev.eval(c, e)
+			ok = ok && good
+			el.Poly = append(el.Poly, x)
+		}
+		if len(el.Poly) == 1 && el.PolyN == 1 {
+			// One coefficient of a one-dimensional polynomial is its
+			// linear term, p1 (p0 = 0), as the SPICE2 user's guide
+			// gives it, so that POLY(1) a b 2 is a gain of 2.
+			el.Poly = []float64{0, el.Poly[0]}
+		}
 	}
 	if !ok {
 		return nil
@@ -555,15 +591,22 @@ func (f *flattener) controls() {
 		if el.Kind != 'F' && el.Kind != 'H' {
 			continue
 		}
-		v := byKey[Key(el.Control)]
-		switch {
-		case v == nil:
-			f.ev.errorf(el.Pos, "%s: controlling source %s not found", el.Name, el.Control)
-		case v.Kind != 'V':
-			f.ev.errorf(el.Pos, "%s: controlling element %s is not a voltage source", el.Name, v.Name)
-		default:
-			el.Control = v.Name
+		ctls := el.Controls
+		if len(ctls) == 0 {
+			ctls = []string{el.Control}
 		}
+		for i, name := range ctls {
+			v := byKey[Key(name)]
+			switch {
+			case v == nil:
+				f.ev.errorf(el.Pos, "%s: controlling source %s not found", el.Name, name)
+			case v.Kind != 'V':
+				f.ev.errorf(el.Pos, "%s: controlling element %s is not a voltage source", el.Name, v.Name)
+			default:
+				ctls[i] = v.Name
+			}
+		}
+		el.Control = ctls[0]
 	}
 }
 

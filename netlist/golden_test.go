@@ -29,6 +29,14 @@ func sandbox(dir string) *LoadOptions {
 			}
 			return os.ReadFile(filepath.Join(dir, name))
 		},
+		ReadDir: func(name string) ([]string, error) {
+			ents, err := os.ReadDir(filepath.Join(dir, name))
+			var out []string
+			for _, e := range ents {
+				out = append(out, e.Name())
+			}
+			return out, err
+		},
 		MaxLineLength: 4096,
 	}
 }
@@ -95,6 +103,17 @@ func dump(c *Circuit, err error) string {
 			p("    params:")
 			for _, k := range sortedKeys(e.Params) {
 				p(" %s=%s", k, num(e.Params[k]))
+			}
+			p("\n")
+		}
+		if e.Poly != nil {
+			var a []string
+			for _, x := range e.Poly {
+				a = append(a, num(x))
+			}
+			p("    poly(%d) coefficients %s", e.PolyN, strings.Join(a, " "))
+			if len(e.Controls) > 0 {
+				p(" controls %s", strings.Join(e.Controls, " "))
 			}
 			p("\n")
 		}

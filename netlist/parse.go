@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"strconv"
 	"strings"
 )
 
@@ -48,7 +49,7 @@ func Parse(filename string, src []byte, opts *LoadOptions) (*Deck, error) {
 	ro.ReadFile = newPolicy(filename, &o).read // every include goes through the policy
 	r := &reader{opts: ro, errs: quoted{&d.Diagnostics}}
 	r.readTop(filename, src)
-	d.Title, d.TitlePos, d.Files = r.title, r.tpos, r.files
+	d.Title, d.TitlePos, d.Files, d.libSections = r.title, r.tpos, r.files, r.sections
 	p := &parser{d: d, errs: quoted{&d.Diagnostics}, cur: d.Top, max: o.MaxElements}
 	for i := range r.out {
 		p.logical(&r.out[i])
@@ -290,6 +291,12 @@ func (p *parser) dot(toks []token) {
 		for _, it := range its {
 			switch it.kind {
 			case iPair:
+				if it.val.kind == tString {
+					// A quoted word or path (search="models"): no
+					// option biaslint reads takes one.
+					p.errs.Notef(it.tok.pos, "option %s=%s is not used by biaslint and is ignored", it.tok.text, it.val)
+					continue
+				}
 				if pr, ok := p.param(it, kw+" "+it.tok.text); ok {
 					p.d.Options = append(p.d.Options, pr)
 				}
@@ -479,6 +486,13 @@ func (p *parser) element(toks []token) {
 		pairs = nil // the source read its own pairs
 	case 'X':
 		ok = p.instance(e, pos, calls)
+	case 'E', 'F', 'G', 'H':
+		if hasPoly(calls) {
+			ok = p.poly(e, its)
+			pairs = nil // the polynomial read its own pairs
+			break
+		}
+		fallthrough
 	default:
 		if len(calls) > 0 {
 			c := calls[0]
@@ -509,7 +523,7 @@ func (p *parser) element(toks []token) {
 			}
 		}
 	}
-	if e.Value == nil && needsValue(e.Kind) {
+	if e.Value == nil && needsValue(e.Kind) && e.Poly == nil {
 		p.errs.Addf(e.Name.Pos, "%s has no value", e.Name.Text)
 	}
 	p.declare(e)
@@ -702,6 +716,111 @@ func (p *parser) fixed(e *ElementStmt, pos []item, pairs []item) bool {
 	return true
 }
 
+// maxPolyDim bounds the dimension n of POLY(n).
+const maxPolyDim = 20
+
+// hasPoly reports whether one of the calls is POLY(...).
+func hasPoly(calls []item) bool {
+	for _, c := range calls {
+		if strings.EqualFold(c.tok.text, "poly") {
+			return true
+		}
+	}
+	return false
+}
+
+// poly reads the SPICE2 polynomial form of a controlled source:
+//
+//	E|G out+ out- POLY(n) c1+ c1- ... cn+ cn- p0 p1 ...   (node pairs, each may be written (a,b))
+//	F|H out+ out- POLY(n) V1 ... Vn p0 p1 ...
+//
+// Initial conditions IC=... after the coefficients matter only to
+// transient analysis and are ignored with a note.
+func (p *parser) poly(e *ElementStmt, its []item) bool {
+	if !p.nodes(e, its, 2, "two output nodes") {
+		return false
+	}
+	rest := its[2:]
+	if len(rest) == 0 || rest[0].kind != iCall || !strings.EqualFold(rest[0].tok.text, "poly") {
+		p.errs.Addf(e.Name.Pos, "%s: POLY(n) must follow the two output nodes", e.Name.Text)
+		return false
+	}
+	call := rest[0]
+	st := &PolyStmt{Pos: call.tok.pos}
+	if len(call.args) != 1 || call.args[0].kind != iValue {
+		p.errs.Addf(call.tok.pos, "%s: POLY needs its dimension, POLY(n)", e.Name.Text)
+		return false
+	}
+	n, err := strconv.Atoi(call.args[0].tok.text)
+	if err != nil || n < 1 || n > maxPolyDim {
+		p.errs.Addf(call.args[0].tok.pos, "%s: POLY(%s): the dimension must be a whole number from 1 to %d", e.Name.Text, call.args[0].tok.text, maxPolyDim)
+		return false
+	}
+	st.N = n
+	rest = rest[1:]
+	// The controls: node pairs (E, G) or voltage source names (F, H),
+	// flattened out of any (a,b) groups.
+	want := 2 * n
+	if e.Kind == 'F' || e.Kind == 'H' {
+		want = n
+	}
+	var ctl []item
+	for len(rest) > 0 && len(ctl) < want {
+		it := rest[0]
+		switch {
+		case it.kind == iCall && it.tok.text == "":
+			ctl = append(ctl, it.args...)
+		case it.kind == iValue && it.tok.kind == tWord:
+			ctl = append(ctl, it)
+		default:
+			p.errs.Addf(it.tok.pos, "%s: expected a controlling %s, found %s", e.Name.Text, map[bool]string{true: "node", false: "voltage source"}[want == 2*n], it.tok)
+			return false
+		}
+		rest = rest[1:]
+	}
+	if len(ctl) != want {
+		what := fmt.Sprintf("%d controlling node pairs", n)
+		if want == n {
+			what = fmt.Sprintf("%d controlling voltage sources", n)
+		}
+		p.errs.Addf(st.Pos, "%s: POLY(%d) needs %s, found %d name%s", e.Name.Text, n, what, len(ctl), plural(len(ctl)))
+		return false
+	}
+	for _, it := range ctl {
+		if it.kind != iValue || it.tok.kind != tWord {
+			p.errs.Addf(it.tok.pos, "%s: expected a name, found %s", e.Name.Text, it.tok)
+			return false
+		}
+		w := Word{it.tok.text, it.tok.pos}
+		if want == n {
+			st.Controls = append(st.Controls, w)
+		} else {
+			e.Nodes = append(e.Nodes, w)
+		}
+	}
+	for _, it := range rest {
+		switch {
+		case it.kind == iValue:
+			v, ok := p.value(it.tok, e.Name.Text)
+			if !ok {
+				return false
+			}
+			st.Coeffs = append(st.Coeffs, v)
+		case it.kind == iPair && strings.EqualFold(it.tok.text, "ic"):
+			p.errs.Notef(it.tok.pos, "%s: the initial condition IC= matters only to transient analysis and is ignored", e.Name.Text)
+		default:
+			p.errs.Addf(it.tok.pos, "%s: expected a polynomial coefficient, found %s", e.Name.Text, it.tok)
+			return false
+		}
+	}
+	if len(st.Coeffs) == 0 {
+		p.errs.Addf(st.Pos, "%s: POLY(%d) has no coefficients", e.Name.Text, n)
+		return false
+	}
+	e.Poly = st
+	return true
+}
+
 // instance reads an X line: X1 port... SUBCKT [params:] [a=1 ...].
 func (p *parser) instance(e *ElementStmt, pos []item, calls []item) bool {
 	if len(calls) > 0 {
@@ -750,8 +869,9 @@ func isKeyword(it item) bool {
 }
 
 // source reads the value part of a V or I line: [DC] value, DC value,
-// dc(value), dc=value, AC mag [phase], ac=mag, and one waveform
-// SIN/PULSE/PWL/EXP with or without parentheses.
+// dc(value), dc=value, AC [mag [phase]] (no magnitude reads as 1, as
+// SPICE3 does), ac=mag[,phase], and one waveform SIN/PULSE/PWL/EXP with or
+// without parentheses.
 func (p *parser) source(e *ElementStmt, its []item) *SourceStmt {
 	s := &SourceStmt{}
 	setDC := func(v Value) {
@@ -816,7 +936,11 @@ func (p *parser) source(e *ElementStmt, its []item) *SourceStmt {
 		if !ok {
 			return
 		}
-		if len(v) == 0 || len(v) > 2 {
+		if len(v) == 0 {
+			// AC with no magnitude: 1, as SPICE3 reads it.
+			v = []Value{{Text: "1", Pos: kw.pos}}
+		}
+		if len(v) > 2 {
 			p.errs.Addf(kw.pos, "%s: AC needs a magnitude and an optional phase", e.Name.Text)
 			return
 		}
@@ -839,6 +963,13 @@ func (p *parser) source(e *ElementStmt, its []item) *SourceStmt {
 				setDC(v)
 			case "ac", "acmag":
 				s.ACMag = &v
+				// AC=mag,phase: the phase follows as a plain value.
+				if kw == "ac" && i+1 < len(its) && its[i+1].kind == iValue && !isKeyword(its[i+1]) && s.ACPhase == nil {
+					if ph, ok := p.value(its[i+1].tok, e.Name.Text); ok {
+						s.ACPhase = &ph
+					}
+					i++
+				}
 			case "acphase":
 				s.ACPhase = &v
 			default:

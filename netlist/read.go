@@ -34,6 +34,10 @@ type LoadOptions struct {
 	MaxLineLength int
 	// MaxElements bounds the flat element count (0: default 200000).
 	MaxElements int
+	// ReadDir lists the names in a directory, for an include name that
+	// matches a file only without regard to letter case; nil means
+	// os-backed listing when ReadFile is nil too, else no such lookup.
+	ReadDir func(dir string) ([]string, error)
 
 	// IncludeDirs are the folders, besides the top file's own folder, that
 	// .include and .lib files may be read from (see open.go): a file
@@ -69,6 +73,9 @@ func (o *LoadOptions) withDefaults() LoadOptions {
 	set(&r.MaxLineLength, DefaultMaxLineLength)
 	set(&r.MaxElements, DefaultMaxElements)
 	if r.ReadFile == nil {
+		if r.ReadDir == nil {
+			r.ReadDir = osReadDir
+		}
 		limit := r.MaxFileSize
 		r.ReadFile = func(path string) ([]byte, error) { return readRegular(path, limit) }
 		r.osFiles = true
@@ -92,6 +99,8 @@ type reader struct {
 	files []string
 	title string
 	tpos  Pos
+	// sections counts the .lib sections opened (see Deck.LibraryOnly).
+	sections int
 }
 
 // fileState is the per-file state of the line reader.
@@ -280,6 +289,7 @@ func (f *fileState) line(ln string, lineNo int) {
 			}
 			f.section = toks[1].text
 			f.secPos = pos
+			r.sections++
 			if f.want != "" && Key(f.section) == Key(f.want) {
 				f.found = true
 			} else if f.want == "" && !f.notedSkip[Key(f.section)] {
@@ -408,6 +418,20 @@ func (f *fileState) include(l *logical) bool {
 	}
 	// r.opts.ReadFile holds the include policy (Parse wraps it; open.go).
 	src, err := r.opts.ReadFile(name)
+	if errors.Is(err, fs.ErrNotExist) {
+		// The name may differ from the file's only in letter case
+		// (include_fold.go).
+		if disk, ok := foldCase(f.name, name, r.opts.ReadDir); ok {
+			if src2, err2 := r.opts.ReadFile(disk); err2 == nil {
+				shown := disk
+				if rel, err := filepath.Rel(filepath.Dir(f.name), disk); err == nil {
+					shown = filepath.ToSlash(rel)
+				}
+				r.errs.Notef(t[1].pos, "include file %q is read as %q: the names differ only in letter case", pathText(t[1].text, f.depth), pathText(shown, f.depth))
+				name, src, err = disk, src2, nil
+			}
+		}
+	}
 	if err != nil {
 		if msg, ok := refused(err, f.depth > 0); ok {
 			r.errs.Addf(t[1].pos, "include %q %s", pathText(t[1].text, f.depth), verbatim(msg))

@@ -56,11 +56,15 @@ type ConvergenceError struct {
 }
 
 func (e *ConvergenceError) Error() string {
-	var b strings.Builder
 	if e.Pos.IsValid() || e.Pos.File != "" {
-		b.WriteString(e.Pos.String())
-		b.WriteString(": ")
+		return e.Pos.String() + ": " + e.Detail()
 	}
+	return e.Detail()
+}
+
+// Detail is the message of Error without the position.
+func (e *ConvergenceError) Detail() string {
+	var b strings.Builder
 	b.WriteString("no DC operating point found: ")
 	if e.Cause != nil {
 		b.WriteString(e.Cause.Error())
@@ -363,6 +367,7 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 		m := &matrixSink{lin: w.lin, rhs: w.rhs}
 		w.stampLinear(m)
 		w.stampDevices(m, nil, true)
+		w.stampPoly(m, x, true)
 		w.iters++
 		if err := w.lin.Factor(); err != nil {
 			var se *SingularError
@@ -415,6 +420,7 @@ func (w *work) residualOK(x []float64) bool {
 	r := &residualSink{x: x, r: w.res, m: w.mag}
 	w.stampLinear(r)
 	w.stampDevices(r, x, false)
+	w.stampPoly(r, x, false)
 	w.bad = w.bad[:0]
 	const floor = 64 * 0x1p-52
 	for i, v := range w.res {

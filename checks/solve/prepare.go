@@ -28,6 +28,8 @@ type elem struct {
 	// inner are the internal nodes: D: anode (after RS); Q: c, b, e
 	// (after RC, RB, RE). Equal to the external node without resistance.
 	inner []int
+	// poly is the polynomial of a POLY(n) controlled source, else nil.
+	poly *polySource
 }
 
 // System is a circuit prepared for solving: checked, with its nodes and
@@ -40,6 +42,7 @@ type System struct {
 	byKey   map[string]*elem
 	bjts    []*elem
 	diodes  []*elem
+	polys   []*elem
 	// nodeNames are the circuit's nodes in order of first appearance, as
 	// first written; nodeIdx maps netlist.Key to the index.
 	nodeNames []string
@@ -49,7 +52,15 @@ type System struct {
 	nExt   int // circuit nodes
 	nNodes int // circuit and internal nodes
 	n      int // all unknowns
+	// leaks are the nodes reached only through capacitors, tied to
+	// ground by GMIN; notes says so.
+	leaks []int
+	notes netlist.ErrorList
 }
+
+// Notes returns the notes Prepare made about the circuit (nodes tied to
+// ground by a GMIN leak).
+func (s *System) Notes() []*netlist.Error { return s.notes.Notes() }
 
 // Solve prepares c and solves it once; see Prepare and System.Solve.
 func Solve(c *netlist.Circuit, opt Options) (*Result, error) {
@@ -60,12 +71,9 @@ func Solve(c *netlist.Circuit, opt Options) (*Result, error) {
 	return s.Solve(opt)
 }
 
-// isGround reports whether a node name is the reference node: Ground, or
-// "gnd" in any case.
-func isGround(name string) bool {
-	k := netlist.Key(name)
-	return k == netlist.Ground || k == "gnd"
-}
+// isGround reports whether a node name is the reference node
+// (netlist.IsGround: 0, gnd, gnd!).
+func isGround(name string) bool { return netlist.IsGround(name) }
 
 // nodeCount returns the allowed numbers of nodes of a kind, or false for a
 // kind that is not solved.
@@ -135,6 +143,9 @@ func (s *System) collect(errs *netlist.ErrorList) {
 			continue
 		}
 		lo, hi, ok := nodeCount(e.Kind)
+		if e.Poly != nil && (e.Kind == 'E' || e.Kind == 'G') {
+			lo, hi = 2+2*e.PolyN, 2+2*e.PolyN
+		}
 		if !ok {
 			if e.Kind == 'K' {
 				continue // inductor coupling: no effect at DC
@@ -190,7 +201,23 @@ func (s *System) value(el *elem, errs *netlist.ErrorList, badModel map[string]bo
 			errs.Addf(e.Pos, "%s: DC value %g is not a finite number", e.Name, el.value)
 			return false
 		}
-	case 'R', 'C', 'L', 'E', 'F', 'G', 'H':
+	case 'E', 'F', 'G', 'H':
+		if e.Poly != nil {
+			if e.PolyN < 1 {
+				errs.Addf(e.Pos, "%s: POLY dimension %d must be at least 1", e.Name, e.PolyN)
+				return false
+			}
+			for i, c := range e.Poly {
+				if !finite(c) {
+					errs.Addf(e.Pos, "%s: polynomial coefficient p%d = %g is not a finite number", e.Name, i, c)
+					return false
+				}
+			}
+			el.poly = newPolySource(e)
+			return true
+		}
+		fallthrough
+	case 'R', 'C', 'L':
 		el.value = e.Value
 		if !finite(el.value) {
 			errs.Addf(e.Pos, "%s: value %g is not a finite number", e.Name, el.value)
@@ -325,6 +352,17 @@ func (s *System) number() {
 		if el.kind == 'F' || el.kind == 'H' {
 			el.ctl = s.byKey[netlist.Key(el.e.Control)].br
 		}
+		if el.poly == nil {
+			continue
+		}
+		s.polys = append(s.polys, el)
+		if el.kind == 'E' || el.kind == 'G' {
+			el.poly.ctl = el.nodes[2:]
+		} else {
+			for _, c := range el.e.Controls {
+				el.poly.ctl = append(el.poly.ctl, s.byKey[netlist.Key(c)].br)
+			}
+		}
 	}
 }
 
@@ -340,14 +378,24 @@ func (s *System) checkControls(errs *netlist.ErrorList) {
 		if el.kind != 'F' && el.kind != 'H' {
 			continue
 		}
-		ctl := s.byKey[netlist.Key(el.e.Control)]
-		switch {
-		case el.e.Control == "":
-			errs.Addf(el.e.Pos, "%s: no controlling voltage source named", el.e.Name)
-		case ctl == nil:
-			errs.Addf(el.e.Pos, "%s: controlling voltage source %s is not in the circuit", el.e.Name, el.e.Control)
-		case !hasBranch(ctl):
-			errs.Addf(el.e.Pos, "%s: controlling element %s carries no branch current (want a voltage source)", el.e.Name, ctl.e.Name)
+		names := []string{el.e.Control}
+		if el.poly != nil {
+			names = el.e.Controls
+			if len(names) != el.e.PolyN {
+				errs.Addf(el.e.Pos, "%s: POLY(%d) names %d controlling sources", el.e.Name, el.e.PolyN, len(names))
+				continue
+			}
+		}
+		for _, name := range names {
+			ctl := s.byKey[netlist.Key(name)]
+			switch {
+			case name == "":
+				errs.Addf(el.e.Pos, "%s: no controlling voltage source named", el.e.Name)
+			case ctl == nil:
+				errs.Addf(el.e.Pos, "%s: controlling voltage source %s is not in the circuit", el.e.Name, name)
+			case !hasBranch(ctl):
+				errs.Addf(el.e.Pos, "%s: controlling element %s carries no branch current (want a voltage source)", el.e.Name, ctl.e.Name)
+			}
 		}
 	}
 }

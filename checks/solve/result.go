@@ -11,8 +11,8 @@ import (
 type Result struct {
 	// Nodes are the circuit's node voltages, V; ground is not listed.
 	Nodes []NodeVoltage
-	// Voltage maps netlist.Key(node) to its voltage; ground ("0", "gnd")
-	// is included as 0.
+	// Voltage maps netlist.Key(node) to its voltage; ground ("0", "gnd",
+	// "gnd!") is included as 0.
 	Voltage map[string]float64
 	// Branches are the branch currents of V, L, E, H and zero-ohm R
 	// elements, positive into the first (+) terminal: a supply that
@@ -89,7 +89,7 @@ type DiodeOp struct {
 // evaluated (at x).
 func (s *System) result(w *work, x []float64, m Method) *Result {
 	r := &Result{
-		Voltage:    map[string]float64{netlist.Ground: 0, "gnd": 0},
+		Voltage:    map[string]float64{netlist.Ground: 0, "gnd": 0, "gnd!": 0},
 		Current:    map[string]float64{},
 		Method:     m,
 		Iterations: w.iters,

@@ -83,6 +83,9 @@ func branch(k sink, p, n, br int) {
 func (w *work) stampLinear(k sink) {
 	for _, el := range w.s.elems {
 		n := el.nodes
+		if el.poly != nil {
+			continue // nonlinear: stampPoly
+		}
 		switch el.kind {
 		case 'R':
 			if el.short {
@@ -133,6 +136,9 @@ func (w *work) stampLinear(k sink) {
 				conductance(k, el.nodes[t], el.inner[t], 1/r)
 			}
 		}
+	}
+	for _, i := range w.s.leaks {
+		k.a(i, i, w.st.gmin)
 	}
 	if w.gshunt > 0 {
 		for i := 0; i < w.s.nNodes; i++ {

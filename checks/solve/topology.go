@@ -196,6 +196,24 @@ func (s *System) checkDCPaths(errs *netlist.ErrorList) {
 		if len(gr.nodes) > 1 {
 			subject, it = "nodes "+nameList(gr.nodes)+" have", "they are"
 		}
+		if onlyCapacitors(gr.others) {
+			// Reached only through capacitors (an open coupling
+			// capacitor, a bypass to nowhere): at DC the nodes follow
+			// nothing, so a GMIN leak to ground ties each, as SPICE
+			// places GMIN across junctions, and the solve goes on.
+			var caps []string
+			for _, el := range gr.others {
+				caps = append(caps, el.e.Name)
+			}
+			for i := 0; i < s.nExt; i++ {
+				if uf.find(i) == r {
+					s.leaks = append(s.leaks, i)
+				}
+			}
+			s.notes.Notef(gr.first.e.Pos, "%s no DC path to ground: %s reached only through %s; a GMIN leak to ground ties each so that the circuit can be solved",
+				subject, it, nameList(caps))
+			continue
+		}
 		var why string
 		var sources, others []string
 		for _, el := range gr.others {
@@ -233,6 +251,17 @@ func (s *System) checkDCPaths(errs *netlist.ErrorList) {
 		}
 		errs.Addf(gr.first.e.Pos, "%s no DC path to ground: %s", subject, why)
 	}
+}
+
+// onlyCapacitors reports whether els are one or more capacitors and
+// nothing else.
+func onlyCapacitors(els []*elem) bool {
+	for _, el := range els {
+		if el.kind != 'C' {
+			return false
+		}
+	}
+	return len(els) > 0
 }
 
 // touchesOutput reports whether an E or G element's output nodes are in

@@ -7,6 +7,7 @@ package main
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"io"
 	"io/fs"
@@ -23,6 +24,8 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"github.com/biaslint/biaslint/checks"
+	"github.com/biaslint/biaslint/checks/solve"
+	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/rules/report"
 )
 
@@ -260,27 +263,104 @@ func (p *progress) finish() {
 	}
 }
 
-// all checks every input in parallel and returns the files in input
-// order, with the problems (unreadable or unsolvable inputs) in input
-// order too.
-func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]report.File, []string) {
+// readOut is one input after reading: its circuit, or why there is none.
+type readOut struct {
+	circ *netlist.Circuit
+	// files are the files the input read, itself first.
+	files   []string
+	library bool
+	err     error
+}
+
+// readInput reads one input: parsed, then, unless it is a library file
+// with definitions only, flattened.
+func readInput(in input) readOut {
+	d, err := in.load()
+	out := readOut{files: d.Files}
+	if err == nil && d.LibraryOnly() {
+		out.library = true
+		return out
+	}
+	out.circ, out.err = netlist.Flatten(d)
+	return out
+}
+
+// all checks every input in parallel, each on its own, and returns one
+// report.File per input in input order: checked, or with the located
+// errors that kept it from being judged, or marked as a library or as
+// included by another input. Reading comes first (it is cheap), so that a
+// file another input includes is not also checked on its own. When a
+// single input was named and it cannot be judged, its error is returned
+// instead, so the command fails as it always has for one bad file.
+func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]report.File, error) {
+	reads := make([]readOut, len(inputs))
+	parallel(len(inputs), func(i int) { reads[i] = readInput(inputs[i]) }, func() {})
+	includedBy := map[string]string{}
+	for i, r := range reads {
+		for _, f := range r.files[min(1, len(r.files)):] {
+			k := filepath.Clean(f)
+			if _, seen := includedBy[k]; !seen {
+				includedBy[k] = inputs[i].name
+			}
+		}
+	}
 	files := make([]report.File, len(inputs))
 	errs := make([]error, len(inputs))
 	pr := newProgress(c.App.ErrWriter, len(inputs), "checking")
 	parallel(len(inputs), func(i int) {
-		files[i], errs[i] = run.one(c, inputs[i], opt)
+		in, r := inputs[i], reads[i]
+		f := &files[i]
+		f.Path = in.name
+		if by, ok := includedBy[filepath.Clean(in.name)]; ok && by != in.name {
+			f.Status, f.StatusDetail = report.StatusIncluded, by
+			return
+		}
+		if r.library {
+			f.Status = report.StatusLibrary
+			return
+		}
+		if r.err == nil {
+			*f, r.err = run.one(c, r.circ, opt)
+		}
+		if r.err != nil {
+			errs[i] = r.err
+			*f = report.File{Path: in.name, Status: report.StatusInputErrors, Errors: locate(r.err, in.name)}
+			if r.circ != nil {
+				f.Title, f.Notes = r.circ.Title, r.circ.Notes
+			}
+		}
 	}, pr.step)
 	pr.finish()
-	var out []report.File
-	var problems []string
-	for i := range inputs {
-		if errs[i] != nil {
-			problems = append(problems, errs[i].Error())
-			continue
-		}
-		out = append(out, files[i])
+	if len(inputs) == 1 && errs[0] != nil {
+		return nil, errs[0]
 	}
-	return out, problems
+	return files, nil
+}
+
+// locate turns the error that kept a file from being judged into located
+// errors: the entries of a netlist.ErrorList, a solver's failure at the
+// element it names, or one message at the file.
+func locate(err error, file string) []*netlist.Error {
+	if l := netlist.AsErrorList(err); l != nil {
+		out := l.Errors()
+		if n := l.Dropped(); n > 0 {
+			out = append(out, &netlist.Error{Pos: netlist.Pos{File: file}, Msg: fmt.Sprintf("(and %d more errors)", n)})
+		}
+		return out
+	}
+	var ce *solve.ConvergenceError
+	if errors.As(err, &ce) {
+		pos := ce.Pos
+		if !pos.IsValid() {
+			pos = netlist.Pos{File: file, Line: 1, Col: 1}
+		}
+		return []*netlist.Error{{Pos: pos, Msg: ce.Detail()}}
+	}
+	msg := err.Error()
+	if rest, ok := strings.CutPrefix(msg, file+": "); ok {
+		msg = rest
+	}
+	return []*netlist.Error{{Pos: netlist.Pos{File: file}, Msg: msg}}
 }
 
 // summaryFlag selects the per-file summary of check.

@@ -262,14 +262,16 @@ func TestBatchUsage(t *testing.T) {
 			}
 		})
 	}
-	// A netlist that cannot be read stops the batch with its location,
-	// the others named after it still read.
+	// A netlist that cannot be read does not stop the batch: its located
+	// error is in its own result, the file after it is reported in full,
+	// and the exit status is 2.
 	dir := t.TempDir()
 	touch(t, filepath.Join(dir, "a.cir"), "t\nQ1 c b\n.end\n")
 	touch(t, filepath.Join(dir, "b.cir"), "t\nV1 a 0 1\nR1 a 0 1k\n.end\n")
-	_, errs, code := runCLI(t, "check", dir)
-	if code != exitBadInput || !strings.Contains(errs, "a.cir:2") {
-		t.Errorf("exit %d, stderr %q; want 2 and a located error in a.cir", code, errs)
+	out, errs, code := runCLI(t, "check", dir)
+	if code != exitBadInput || !strings.Contains(out, "a.cir:2") || !strings.Contains(out, "b.cir: 0 transistors") ||
+		!strings.Contains(errs, "1 of 2 files could not be checked") {
+		t.Errorf("exit %d, stdout %q, stderr %q; want 2, a located error in a.cir and b.cir reported", code, out, errs)
 	}
 }
 
@@ -296,6 +298,83 @@ func BenchmarkClassReport200(b *testing.B) {
 		var out strings.Builder
 		if code := run([]string{"biaslint", "report", "--output", html, dir}, &out, &out); code != exitOK {
 			b.Fatalf("exit %d: %s", code, out.String())
+		}
+	}
+}
+
+// A class folder as it comes: a sound board, a library of shared models
+// (no circuit), a board with typos, a board one of whose cases has no DC
+// operating point, and a board with the stage file it includes. Every
+// good result is reported, every problem is located in its own file's
+// result, and the exit status is 2 (a file could not be judged); the
+// report formats agree on each file's status.
+func TestMixedBatch(t *testing.T) {
+	const dir = "testdata/batch"
+	status := map[string]string{
+		"testdata/batch/broken.cir": "input-errors",
+		"testdata/batch/faulty.cir": "checked",
+		"testdata/batch/good.cir":   "checked",
+		"testdata/batch/models.spi": "library",
+		"testdata/batch/stage.sp":   "included",
+		"testdata/batch/top.cir":    "checked",
+	}
+	for _, f := range []string{"text", "json", "sarif"} {
+		out, errs, code := runCLI(t, "check", "--format", f, dir)
+		if code != exitBadInput {
+			t.Errorf("%s: exit %d, want 2 (a file could not be judged); stderr %s", f, code, errs)
+		}
+		golden(t, "batch-mixed."+f, out)
+		wants := []string{
+			"broken.cir:3:10", "4.7.7k", "broken.cir:4:1", // both typos, located
+			"VDRV high is not judged", "tried newton", // the unsolvable case, named, and what was tried
+		}
+		if f == "sarif" { // locations are structured
+			wants[0], wants[2] = `"startColumn": 10`, `"uri": "testdata/batch/broken.cir"`
+		}
+		for _, w := range wants {
+			if !strings.Contains(out, w) {
+				t.Errorf("%s report does not name %q", f, w)
+			}
+		}
+		if f != "text" && !strings.Contains(errs, "broken.cir:3:10:") {
+			t.Errorf("%s: stderr does not repeat the located errors: %q", f, errs)
+		}
+	}
+	// The per-file summary: one row per file, with its status.
+	out, _, code := runCLI(t, "check", "--summary", "csv", dir)
+	if code != exitBadInput {
+		t.Errorf("summary csv: exit %d, want 2", code)
+	}
+	recs, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(recs) != len(status)+1 {
+		t.Fatalf("%d summary rows, want %d and a header:\n%s", len(recs)-1, len(status), out)
+	}
+	for _, r := range recs[1:] {
+		if want := status[r[0]]; r[8] != want {
+			t.Errorf("%s: status %q, want %q", r[0], r[8], want)
+		}
+		if r[0] == "testdata/batch/broken.cir" && !strings.Contains(r[9], "broken.cir:3:10") {
+			t.Errorf("broken.cir: problem %q does not locate the error", r[9])
+		}
+		if r[0] == "testdata/batch/good.cir" && r[2] != "1" {
+			t.Errorf("good.cir: %s transistors, want 1", r[2])
+		}
+	}
+	// The review page is still written, with the good files on it.
+	page := filepath.Join(t.TempDir(), "class.html")
+	if _, errs, code := runCLI(t, "report", "--output", page, dir); code != exitBadInput {
+		t.Errorf("report: exit %d, want 2; stderr %s", code, errs)
+	}
+	b, err := os.ReadFile(page)
+	if err != nil {
+		t.Fatalf("report wrote no page: %v", err)
+	}
+	for _, w := range []string{"good.cir", "top.cir", "broken.cir:3:10", "library"} {
+		if !strings.Contains(string(b), w) {
+			t.Errorf("review page does not show %q", w)
 		}
 	}
 }

@@ -214,23 +214,45 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 		defer bar.finish()
 		opt.Progress = bar.update
 	}
-	var problems []string
-	run.report.Files, problems = run.all(c, inputs, opt) // batch.go: in parallel, in input order
-	if len(problems) > 0 {
-		return nil, badInput(fmt.Errorf("%s", strings.Join(problems, "\n")))
+	var single error
+	run.report.Files, single = run.all(c, inputs, opt) // batch.go: in parallel, in input order
+	if single != nil {
+		// One netlist named, and it cannot be judged: nothing to report.
+		return nil, badInput(single)
 	}
-	if len(run.report.Files) > 0 && run.report.Files[0].Analysis != nil && len(run.report.Files[0].Analysis.Cases) > 0 {
-		run.report.Ambient = run.report.Files[0].Analysis.Cases[0].Ambient
+	for _, f := range run.report.Files {
+		if f.Analysis != nil && len(f.Analysis.Cases) > 0 {
+			run.report.Ambient = f.Analysis.Cases[0].Ambient
+			break
+		}
 	}
 	return run, nil
 }
 
-// one checks a single netlist.
-func (run *checkRun) one(c *cli.Context, in input, opt checks.Options) (report.File, error) {
-	circ, err := in.read()
-	if err != nil {
-		return report.File{}, err
+// finish ends a check or report run whose report has been written: exit
+// status 2 when some file could not be judged (its located errors also go
+// to stderr, unless the text report on stdout already shows them), else
+// nil.
+func (run *checkRun) finish(c *cli.Context, shown bool) error {
+	failed := run.report.Failed()
+	if len(failed) == 0 {
+		return nil
 	}
+	w := c.App.ErrWriter
+	if shown {
+		fmt.Fprintf(w, "biaslint: %d of %d files could not be checked; their errors are in the report\n", len(failed), len(run.report.Files))
+	} else {
+		for _, f := range failed {
+			for _, e := range f.Errors {
+				fmt.Fprintln(w, e.Error())
+			}
+		}
+	}
+	return &statusError{code: exitBadInput}
+}
+
+// one checks a single netlist read by read (see batch.go).
+func (run *checkRun) one(c *cli.Context, circ *netlist.Circuit, opt checks.Options) (report.File, error) {
 	if run.boardPath != "" {
 		b, err := board.Parse(run.boardPath, run.board, circ)
 		if err != nil {
@@ -296,6 +318,9 @@ func runCheck(c *cli.Context) error {
 		return badInput(err)
 	}
 	if err := emit(c, &out); err != nil {
+		return err
+	}
+	if err := run.finish(c, format == "text" && c.String("output") == "" && c.String("summary") != "csv"); err != nil {
 		return err
 	}
 	if run.report.AtOrAbove(failOn) {

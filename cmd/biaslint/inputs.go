@@ -29,6 +29,12 @@ func (in input) read() (*netlist.Circuit, error) {
 	return netlist.Read(in.name, in.opts)
 }
 
+// load parses the input without flattening it, so a caller can tell a
+// library file from a circuit first.
+func (in input) load() (*netlist.Deck, error) {
+	return netlist.Load(in.name, in.opts)
+}
+
 // fileArgs returns a command's FILE arguments: all of them, except for
 // plot, whose first argument names the device.
 func fileArgs(c *cli.Context) []string {

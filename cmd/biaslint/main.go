@@ -4,7 +4,9 @@
 //
 // Exit status: 0 when the run succeeded (and, for check, nothing reached
 // --fail-on), 1 when check found something at or above --fail-on, 2 on bad
-// input or usage.
+// input or usage. In a batch of several files, 2 when any file could not
+// be judged, else 1 or 0 as for one file; the reports are written either
+// way.
 package main
 
 import (

@@ -52,5 +52,8 @@ func runReport(c *cli.Context) error {
 	if err := report.HTML(&out, &run.report, report.HTMLOptions{Planes: planes, Title: c.String("title")}); err != nil {
 		return badInput(err)
 	}
-	return emit(c, &out)
+	if err := emit(c, &out); err != nil {
+		return err
+	}
+	return run.finish(c, false)
 }

@@ -15,7 +15,9 @@ var CSVHeader = []string{"file", "line", "column", "severity", "rule", "device",
 	"message", "fix", "waived", "waiver_reason"}
 
 // SummaryHeader names the columns of SummaryCSV, one row per file.
-var SummaryHeader = []string{"file", "title", "transistors", "errors", "warnings", "notes", "waived", "top_rule"}
+// status is the file's Status and problem its first input error (or why
+// it was left out), empty for a checked file.
+var SummaryHeader = []string{"file", "title", "transistors", "errors", "warnings", "notes", "waived", "top_rule", "status", "problem"}
 
 // csvNumber writes an SI value in full precision (shortest form that reads
 // back exactly), so a spreadsheet gets the number, not a rounded display.
@@ -64,8 +66,18 @@ func SummaryCSV(w io.Writer, r *Report) error {
 	for i := range r.Files {
 		f := &r.Files[i]
 		c := f.Counts()
+		problem := ""
+		switch {
+		case len(f.Errors) > 0:
+			problem = f.Errors[0].Error()
+			if len(f.Errors) > 1 {
+				problem += fmt.Sprintf(" (and %d more)", len(f.Errors)-1)
+			}
+		case f.Status.Of() != StatusChecked:
+			problem = StatusText(f)
+		}
 		rec := []string{cell(f.Path), cell(f.Title), strconv.Itoa(f.Transistors()), strconv.Itoa(c.Error), strconv.Itoa(c.Warning),
-			strconv.Itoa(c.Note), strconv.Itoa(c.Waived), cell(f.TopRule())}
+			strconv.Itoa(c.Note), strconv.Itoa(c.Waived), cell(f.TopRule()), string(f.Status.Of()), cell(problem)}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
@@ -79,6 +91,14 @@ func SummaryCSV(w io.Writer, r *Report) error {
 // a totals row.
 func SummaryTable(w io.Writer, r *Report) error {
 	head := []string{"file", "transistors", "errors", "warnings", "notes", "fired most"}
+	// A status column only when some file was not checked.
+	status := false
+	for i := range r.Files {
+		status = status || r.Files[i].Status.Of() != StatusChecked
+	}
+	if status {
+		head = append(head, "status")
+	}
 	rows := [][]string{head}
 	total := Counts{}
 	nt := 0
@@ -91,10 +111,18 @@ func SummaryTable(w io.Writer, r *Report) error {
 		if top == "" {
 			top = "-"
 		}
-		rows = append(rows, []string{f.Path, strconv.Itoa(f.Transistors()), strconv.Itoa(c.Error), strconv.Itoa(c.Warning), strconv.Itoa(c.Note), top})
+		row := []string{f.Path, strconv.Itoa(f.Transistors()), strconv.Itoa(c.Error), strconv.Itoa(c.Warning), strconv.Itoa(c.Note), top}
+		if status {
+			row = append(row, string(f.Status.Of()))
+		}
+		rows = append(rows, row)
 	}
-	rows = append(rows, []string{fmt.Sprintf("total (%d files)", len(r.Files)), strconv.Itoa(nt), strconv.Itoa(total.Error),
-		strconv.Itoa(total.Warning), strconv.Itoa(total.Note), ""})
+	foot := []string{fmt.Sprintf("total (%d files)", len(r.Files)), strconv.Itoa(nt), strconv.Itoa(total.Error),
+		strconv.Itoa(total.Warning), strconv.Itoa(total.Note), ""}
+	if status {
+		foot = append(foot, fmt.Sprintf("%d checked", r.Judged()))
+	}
+	rows = append(rows, foot)
 	width := make([]int, len(head))
 	for _, row := range rows {
 		for j, cell := range row {
@@ -107,7 +135,7 @@ func SummaryTable(w io.Writer, r *Report) error {
 		for j, cell := range row {
 			pad := width[j] - len([]rune(cell))
 			switch {
-			case j == 0 || j == len(row)-1:
+			case j == 0 || j >= 5: // file, fired most, status: text
 				b.WriteString(cell)
 				if j < len(row)-1 {
 					b.WriteString(strings.Repeat(" ", pad))

@@ -71,11 +71,52 @@ func TestSummaryCSV(t *testing.T) {
 	if err := SummaryCSV(&b, batchSample()); err != nil {
 		t.Fatal(err)
 	}
-	want := "file,title,transistors,errors,warnings,notes,waived,top_rule\n" +
-		"a b/board.cir,,0,1,2,0,1,floating-base\n" +
-		"'=cmd.cir,\"'-lab 4, group 7\",0,0,1,0,0,cutoff-linear-stage\n"
+	want := "file,title,transistors,errors,warnings,notes,waived,top_rule,status,problem\n" +
+		"a b/board.cir,,0,1,2,0,1,floating-base,checked,\n" +
+		"'=cmd.cir,\"'-lab 4, group 7\",0,0,1,0,0,cutoff-linear-stage,checked,\n"
 	if b.String() != want {
 		t.Errorf("summary CSV:\n%s\nwant:\n%s", b.String(), want)
+	}
+}
+
+// A file that could not be judged, and one left out as a library, get
+// their rows with the status and the first located error.
+func TestSummaryUnchecked(t *testing.T) {
+	r := &Report{Files: []File{
+		{Path: "bad.cir", Status: StatusInputErrors, Errors: []*netlist.Error{
+			{Pos: netlist.Pos{File: "bad.cir", Line: 3, Col: 8}, Msg: `bad value "4.7.7k"`},
+			{Pos: netlist.Pos{File: "bad.cir", Line: 4, Col: 1}, Msg: "Q1 needs a model"}}},
+		{Path: "lib.spi", Status: StatusLibrary},
+		{Path: "good.cir"},
+	}}
+	var b bytes.Buffer
+	if err := SummaryCSV(&b, r); err != nil {
+		t.Fatal(err)
+	}
+	want := "file,title,transistors,errors,warnings,notes,waived,top_rule,status,problem\n" +
+		"bad.cir,,0,0,0,0,0,,input-errors,\"bad.cir:3:8: bad value \"\"4.7.7k\"\" (and 1 more)\"\n" +
+		"lib.spi,,0,0,0,0,0,,library,\"library (only .subckt, .model, .param or .lib definitions, no circuit): listed, not checked on its own\"\n" +
+		"good.cir,,0,0,0,0,0,,checked,\n"
+	if b.String() != want {
+		t.Errorf("summary CSV:\n%s\nwant:\n%s", b.String(), want)
+	}
+	b.Reset()
+	if err := SummaryTable(&b, r); err != nil {
+		t.Fatal(err)
+	}
+	wantTable := `file             transistors  errors  warnings  notes  fired most  status
+-------------------------------------------------------------------------------
+bad.cir                    0       0         0      0  -           input-errors
+lib.spi                    0       0         0      0  -           library
+good.cir                   0       0         0      0  -           checked
+-------------------------------------------------------------------------------
+total (3 files)            0       0         0      0              1 checked
+`
+	if b.String() != wantTable {
+		t.Errorf("summary table:\n%s\nwant:\n%s", b.String(), wantTable)
+	}
+	if n := len(r.Failed()); n != 1 {
+		t.Errorf("%d failed files, want 1 (a library is not a failure)", n)
 	}
 }
 

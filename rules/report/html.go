@@ -56,6 +56,10 @@ type htmlFile struct {
 	Notes              []string
 	Hazard             bool
 	Unplotted          int
+	// Status says why the file was not checked ("" when it was) and
+	// Errors are its located input errors.
+	Status string
+	Errors []string
 }
 
 type htmlFinding struct {
@@ -151,6 +155,12 @@ func htmlPageOf(r *Report, opt HTMLOptions) htmlPage {
 		}
 		for _, n := range f.Notes {
 			hf.Notes = append(hf.Notes, n.Error())
+		}
+		if f.Status.Of() != StatusChecked {
+			hf.Status = StatusText(f)
+			for _, e := range f.Errors {
+				hf.Errors = append(hf.Errors, e.Error())
+			}
 		}
 		var planes []plane.Plane
 		if i < len(opt.Planes) {
@@ -389,6 +399,9 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 {{range .Files}}
 <section class="file" id="{{.ID}}">
 <h2><code>{{.Path}}</code>{{if .Title}}<span class="title">{{.Title}}</span>{{end}}</h2>
+{{if .Status}}<p class="unchecked">{{.Status}}</p>
+{{if .Errors}}<ul class="errors">{{range .Errors}}<li class="pos">{{.}}</li>{{end}}</ul>{{end}}
+{{else}}
 {{if .Hazard}}<p class="danger">Danger: findings below report hazardous voltage or heat on this design. Treat the board as dangerous until a qualified person has checked it.</p>{{end}}
 <dl class="summary">
 <dt>transistors</dt><dd>{{.Transistors}}</dd>
@@ -434,6 +447,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 {{end}}
 {{if .Unplotted}}<p>{{.Unplotted}} transistor(s) could not be plotted.</p>{{end}}
 {{if .Notes}}<details><summary>{{len .Notes}} input notes</summary><ul>{{range .Notes}}<li class="pos">{{.}}</li>{{end}}</ul></details>{{end}}
+{{end}}
 <ul class="cautions">{{range $.Cautions}}<li>{{.}}</li>{{end}}</ul>
 </section>
 {{end}}

@@ -44,8 +44,14 @@ type jsonNote struct {
 }
 
 type jsonFile struct {
-	File        string        `json:"file"`
-	Title       string        `json:"title"`
+	File  string `json:"file"`
+	Title string `json:"title"`
+	// Status is checked, input-errors, library, included (or a caller's
+	// own word); Detail says more; Errors locate what kept the file from
+	// being judged.
+	Status      string        `json:"status"`
+	Detail      string        `json:"status_detail,omitempty"`
+	Errors      []jsonNote    `json:"errors"`
 	Transistors int           `json:"transistors"`
 	BJTs        []jsonBJT     `json:"bjts"`
 	Findings    []jsonFinding `json:"findings"`
@@ -151,8 +157,12 @@ func JSON(w io.Writer, r *Report) error {
 	}
 	for i := range r.Files {
 		f := &r.Files[i]
-		jf := jsonFile{File: f.Path, Title: f.Title, Transistors: f.Transistors(), BJTs: bjtsOf(f.Analysis),
+		jf := jsonFile{File: f.Path, Title: f.Title, Status: string(f.Status.Of()), Detail: f.StatusDetail, Errors: []jsonNote{},
+			Transistors: f.Transistors(), BJTs: bjtsOf(f.Analysis),
 			Findings: []jsonFinding{}, Waived: []jsonFinding{}, Notes: []jsonNote{}, Summary: f.Counts()}
+		for _, e := range f.Errors {
+			jf.Errors = append(jf.Errors, jsonNote{Severity: "error", Position: e.Pos.String(), Message: e.Msg})
+		}
 		for _, x := range f.Findings {
 			if x.Waived {
 				jf.Waived = append(jf.Waived, toJSON(x))

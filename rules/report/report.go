@@ -13,11 +13,57 @@ import (
 	"github.com/biaslint/biaslint/rules"
 )
 
+// Status says how checking one file of a run ended. It is a word, so a
+// caller can add reasons of its own (a time budget, say) as further
+// constants: every renderer prints the word as it is, and a status that is
+// neither StatusChecked nor a skip counts as a failure (Failed).
+type Status string
+
+// The statuses of a file.
+const (
+	// StatusChecked: the file was read, solved and judged (the zero value
+	// reads as this).
+	StatusChecked Status = "checked"
+	// StatusInputErrors: the file could not be judged; File.Errors says
+	// where and why.
+	StatusInputErrors Status = "input-errors"
+	// StatusLibrary: the file holds only definitions (.subckt, .model,
+	// .param, .lib sections) and no circuit; it is listed, not checked.
+	StatusLibrary Status = "library"
+	// StatusIncluded: another file of the run includes this one, so it is
+	// checked as part of that file and not again on its own.
+	StatusIncluded Status = "included"
+)
+
+// Of returns s, with the zero value read as StatusChecked.
+func (s Status) Of() Status {
+	if s == "" {
+		return StatusChecked
+	}
+	return s
+}
+
+// Skipped reports whether the file was left out on purpose (a library, a
+// file another one includes): not a failure.
+func (s Status) Skipped() bool { return s == StatusLibrary || s == StatusIncluded }
+
+// Failed reports whether the file could not be judged for a reason the
+// user must act on: any status but checked and the skips.
+func (s Status) Failed() bool { return s.Of() != StatusChecked && !s.Skipped() }
+
 // File is the outcome of checking one netlist.
 type File struct {
 	// Path is the netlist as named on the command line.
 	Path  string
 	Title string
+	// Status says whether the file was checked, and if not, why;
+	// StatusDetail says more in words (for StatusIncluded: the path of
+	// the file that includes it).
+	Status       Status
+	StatusDetail string
+	// Errors are the located problems that kept the file from being
+	// judged (Status StatusInputErrors).
+	Errors []*netlist.Error
 	// Analysis is what checks computed; Findings what the rules found,
 	// waived ones included (Finding.Waived).
 	Analysis *checks.Analysis
@@ -91,6 +137,28 @@ func (r *Report) Counts() Counts {
 		c = c.Plus(r.Files[i].Counts())
 	}
 	return c
+}
+
+// Failed returns the files that could not be judged (Status.Failed).
+func (r *Report) Failed() []*File {
+	var out []*File
+	for i := range r.Files {
+		if r.Files[i].Status.Failed() {
+			out = append(out, &r.Files[i])
+		}
+	}
+	return out
+}
+
+// Judged counts the files that were checked.
+func (r *Report) Judged() int {
+	n := 0
+	for i := range r.Files {
+		if r.Files[i].Status.Of() == StatusChecked {
+			n++
+		}
+	}
+	return n
 }
 
 // AtOrAbove reports whether any unwaived finding has severity s or worse.

@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/rules"
 )
 
@@ -82,7 +83,71 @@ type sarifRun struct {
 			Rules          []sarifRule `json:"rules"`
 		} `json:"driver"`
 	} `json:"tool"`
-	Results []sarifResult `json:"results"`
+	Results     []sarifResult     `json:"results"`
+	Invocations []sarifInvocation `json:"invocations,omitempty"`
+}
+
+// sarifInvocation carries the problems with the run's inputs as tool
+// execution notifications: a file that could not be judged (its located
+// errors, level error), a file left out on purpose (level note), and the
+// warnings about reading a file (a case that could not be judged, say).
+type sarifInvocation struct {
+	ExecutionSuccessful bool                `json:"executionSuccessful"`
+	Notifications       []sarifNotification `json:"toolExecutionNotifications,omitempty"`
+}
+
+type sarifNotification struct {
+	Level     string          `json:"level"`
+	Message   sarifText       `json:"message"`
+	Locations []sarifLocation `json:"locations,omitempty"`
+}
+
+// fileNotifications lists the notifications of the files that were not
+// checked, in report order; nil when every file was.
+func fileNotifications(r *Report) []sarifNotification {
+	var out []sarifNotification
+	at := func(file string, line, col int) []sarifLocation {
+		var loc sarifLocation
+		loc.PhysicalLocation.ArtifactLocation.URI = fileURI(file)
+		if line > 0 {
+			loc.PhysicalLocation.Region = &sarifRegion{StartLine: line, StartColumn: col}
+		}
+		return []sarifLocation{loc}
+	}
+	for i := range r.Files {
+		f := &r.Files[i]
+		// Warnings about the input (a case that was not judged, an odd
+		// annotation) go with the file's notifications.
+		for _, e := range f.Notes {
+			if e.Severity != netlist.SevWarning {
+				continue
+			}
+			file := e.Pos.File
+			if file == "" {
+				file = f.Path
+			}
+			out = append(out, sarifNotification{Level: "warning", Message: sarifText{e.Msg}, Locations: at(file, e.Pos.Line, e.Pos.Col)})
+		}
+		if f.Status.Of() == StatusChecked {
+			continue
+		}
+		if !f.Status.Failed() || len(f.Errors) == 0 {
+			lvl := "note"
+			if f.Status.Failed() {
+				lvl = "error"
+			}
+			out = append(out, sarifNotification{Level: lvl, Message: sarifText{f.Path + ": " + StatusText(f)}, Locations: at(f.Path, 0, 0)})
+			continue
+		}
+		for _, e := range f.Errors {
+			file := e.Pos.File
+			if file == "" {
+				file = f.Path
+			}
+			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: at(file, e.Pos.Line, e.Pos.Col)})
+		}
+	}
+	return out
 }
 
 // fileURI turns a path into a relative URI reference with forward slashes.
@@ -169,6 +234,9 @@ func SARIF(w io.Writer, r *Report) error {
 			}
 			run.Results = append(run.Results, res)
 		}
+	}
+	if ns := fileNotifications(r); len(ns) > 0 {
+		run.Invocations = []sarifInvocation{{ExecutionSuccessful: len(r.Failed()) == 0, Notifications: ns}}
 	}
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")

@@ -69,6 +69,10 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			title = "  " + p.with(f.Title, color.Faint)
 		}
 		ew.printf("%s%s\n", p.with(f.Path, color.Bold), title)
+		if f.Status.Of() != StatusChecked {
+			writeUnchecked(ew, p, f, opt)
+			continue
+		}
 		var waived []rules.Finding
 		n := 0
 		for _, x := range f.Findings {
@@ -109,19 +113,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				ew.printf("      reason  %s (waiver at %s)\n", x.WaiverReason, x.WaiverPos)
 			}
 		}
-		// Warnings about the input are always printed; notes on request.
-		var shown []*netlist.Error
-		for _, e := range f.Notes {
-			if opt.Notes || e.Severity == netlist.SevWarning {
-				shown = append(shown, e)
-			}
-		}
-		if len(shown) > 0 {
-			ew.printf("\n  input notes:\n")
-			for _, e := range shown {
-				ew.printf("  %s\n", e.Error())
-			}
-		}
+		writeNotes(ew, f, opt)
 		if opt.Transistors {
 			writeTransistors(ew, f)
 		}
@@ -129,7 +121,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 		ew.printf("\n  %s: %s, %s\n", f.Path, plural(f.Transistors(), "transistor"), countText(c))
 	}
 	if len(r.Files) > 1 {
-		ew.printf("\n%d files: %s\n", len(r.Files), countText(r.Counts()))
+		ew.printf("\n%s: %s\n", filesText(r), countText(r.Counts()))
 	}
 	ew.printf("\n")
 	if hazard {
@@ -222,4 +214,90 @@ func writeTransistors(ew *errWriter, f *File) {
 	}
 	tw.Flush()
 	ew.printf("\n%s", b.String())
+}
+
+// StatusText says in words why a file was not checked.
+func StatusText(f *File) string {
+	var s string
+	switch f.Status.Of() {
+	case StatusChecked:
+		s = "checked"
+	case StatusInputErrors:
+		s = "not checked: input errors"
+	case StatusLibrary:
+		s = "library (only .subckt, .model, .param or .lib definitions, no circuit): listed, not checked on its own"
+	case StatusIncluded:
+		by := f.StatusDetail
+		if by == "" {
+			by = "another file of the run"
+		}
+		return "included by " + by + ": checked as part of it, not on its own"
+	default:
+		s = "not checked: " + string(f.Status)
+	}
+	if f.StatusDetail != "" {
+		s += " (" + f.StatusDetail + ")"
+	}
+	return s
+}
+
+// writeUnchecked prints the block of a file that was not checked: why,
+// and its located errors.
+func writeUnchecked(ew *errWriter, p paint, f *File, opt TextOptions) {
+	ew.printf("\n  %s\n", StatusText(f))
+	for _, e := range f.Errors {
+		ew.printf("  %s: %s: %s\n", e.Pos, p.severity(rules.SeverityError), e.Msg)
+	}
+	writeNotes(ew, f, opt)
+	if f.Status.Failed() {
+		ew.printf("\n  %s: not checked, %s\n", f.Path, plural(len(f.Errors), "input error"))
+	}
+}
+
+// filesText counts the files of a run, saying how many were not checked.
+func filesText(r *Report) string {
+	n := map[Status]int{}
+	var order []Status
+	for i := range r.Files {
+		s := r.Files[i].Status.Of()
+		if n[s] == 0 {
+			order = append(order, s)
+		}
+		n[s]++
+	}
+	s := plural(len(r.Files), "file")
+	if len(order) == 1 && order[0] == StatusChecked {
+		return s
+	}
+	var parts []string
+	for _, st := range []Status{StatusChecked, StatusLibrary, StatusIncluded, StatusInputErrors} {
+		if n[st] > 0 {
+			parts = append(parts, fmt.Sprintf("%d %s", n[st], st))
+		}
+	}
+	for _, st := range order {
+		switch st {
+		case StatusChecked, StatusLibrary, StatusIncluded, StatusInputErrors:
+		default:
+			parts = append(parts, fmt.Sprintf("%d %s", n[st], st))
+		}
+	}
+	return s + " (" + strings.Join(parts, ", ") + ")"
+}
+
+// writeNotes prints a file's input notes: warnings always, notes when
+// asked for.
+func writeNotes(ew *errWriter, f *File, opt TextOptions) {
+	var shown []*netlist.Error
+	for _, e := range f.Notes {
+		if opt.Notes || e.Severity == netlist.SevWarning {
+			shown = append(shown, e)
+		}
+	}
+	if len(shown) > 0 {
+		ew.printf("\n  input notes:\n")
+		for _, e := range shown {
+			ew.printf("  %s\n", e.Error())
+		}
+	}
 }
