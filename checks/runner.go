@@ -326,7 +326,7 @@ func (w *worker) openThevenin(oc *netlist.Circuit, sp *caseSpec, out *caseOut) {
 		if a.tmpl[j].Polarity == "pnp" {
 			s = -1
 		}
-		out.rth[j], out.vth[j] = thevenin(oc, a.bjts[j].Name, s, sp.temp)
+		out.rth[j], out.vth[j] = thevenin(a.opt.Context, oc, a.bjts[j].Name, s, sp.temp)
 		out.reth[j] = true
 	}
 }

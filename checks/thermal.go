@@ -69,7 +69,7 @@ type thermalOut struct {
 // solveThermal solves one case on sys: with the electro-thermal iteration
 // when sp.thermal, else once with the transistors at sp.heldTemps.
 func (a *analyzer) solveThermal(sys *solve.System, lu solve.LinearSolver, sp *caseSpec, guess *solve.Result) (*solve.Result, thermalOut, error) {
-	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Linear: lu}
+	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Linear: lu, Context: a.opt.Context}
 	if !sp.thermal {
 		base.DeviceTemp = sp.heldTemps
 		res, err := sys.Solve(base)

@@ -1,6 +1,7 @@
 package checks
 
 import (
+	"context"
 	"math"
 
 	"github.com/biaslint/biaslint/checks/solve"
@@ -96,7 +97,7 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 	}
 	tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'I', Name: "I#test",
 		Nodes: []string{netlist.Ground, name(emit)}, Source: &netlist.Source{DC: 1, HasDC: true}, Pos: q.Pos})
-	res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(a.temp)})
+	res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(a.temp), Context: a.opt.Context})
 	if err != nil {
 		return math.NaN()
 	}
@@ -110,8 +111,9 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 // injecting testCurrent into the base, both solved at temp (C). Both come
 // from solving the whole circuit, other transistors included. A base with
 // no DC source at all gives rth = +Inf and vth = NaN; a circuit that cannot
-// be solved without the transistor gives NaN for both.
-func thevenin(c *netlist.Circuit, name string, sign, temp float64) (rth, vth float64) {
+// be solved without the transistor gives NaN for both. ctx (nil for none)
+// stops the solves (Options.Context).
+func thevenin(ctx context.Context, c *netlist.Circuit, name string, sign, temp float64) (rth, vth float64) {
 	var q *netlist.Element
 	for _, e := range c.Elements {
 		if e.Kind == 'Q' && netlist.Key(e.Name) == netlist.Key(name) {
@@ -128,7 +130,7 @@ func thevenin(c *netlist.Circuit, name string, sign, temp float64) (rth, vth flo
 				Nodes: []string{netlist.Ground, q.Nodes[1]}, Source: &netlist.Source{DC: extra, HasDC: true}, Pos: q.Pos})
 		}
 		tc := solve.Without(c, q, test...)
-		res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(temp)})
+		res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(temp), Context: ctx})
 		if err != nil {
 			return 0, false
 		}

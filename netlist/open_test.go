@@ -241,3 +241,15 @@ func TestNotNetlist(t *testing.T) {
 		}
 	}
 }
+
+// TestTotalSize: a file included over and over is counted each time, so
+// the bytes one netlist makes the reader hold are bounded.
+func TestTotalSize(t *testing.T) {
+	part := strings.Repeat("* filler comment\n", 600) // about 10 kB
+	top := "total probe\nV1 a 0 5\nR1 a 0 1k\n" + strings.Repeat(".include part.inc\n", 20) + ".end\n"
+	_, err := Read("top.cir", &LoadOptions{ReadFile: memFS(map[string]string{"top.cir": top, "part.inc": part}).ReadFile, MaxTotalSize: 100_000})
+	mustMention(t, err, "top.cir:13:10:", "more than the limit of 100000 bytes", `"part.inc" and the includes after it are not read`)
+	if l := AsErrorList(err); l == nil || len(l.Errors()) != 1 || !strings.HasPrefix(l.Errors()[0].Pos.String(), "top.cir:") {
+		t.Errorf("want one error, at the include that passes the limit: %v", err)
+	}
+}

@@ -1,6 +1,7 @@
 package solve
 
 import (
+	"context"
 	"fmt"
 	"math"
 )
@@ -48,6 +49,12 @@ type Options struct {
 	Guess *Result
 	// Linear is the linear solver; nil means a new DenseLU.
 	Linear LinearSolver
+	// Context, if not nil, stops the solve when it is done: every Newton
+	// iteration (of plain Newton and of each stepping step) checks it, and
+	// Solve then returns its error (errors.Is(err, context.DeadlineExceeded)
+	// for a deadline). A per-file time budget uses it, so a timed-out check
+	// stops computing instead of running on unseen.
+	Context context.Context
 }
 
 // Temp returns a pointer to c, for Options.Temp.

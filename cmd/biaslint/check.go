@@ -62,7 +62,7 @@ func checkCommand() *cli.Command {
 			rulesetFlag, setFlag,
 			&cli.StringSliceFlag{Name: "only", Usage: "judge only these rule `IDS` (comma-separated or repeated)"},
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
-			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag,
+			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag, fileTimeoutFlag, fileElementsFlag, fileMiBFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
 			colorFlag, outputFlag, demoFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
@@ -170,6 +170,8 @@ type checkRun struct {
 	// and parsed against each netlist.
 	boardPath string
 	board     []byte
+	// timeout is the --file-timeout budget of each file (0: none).
+	timeout time.Duration
 }
 
 func newCheckRun(c *cli.Context) (*checkRun, error) {
@@ -191,6 +193,9 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 		return nil, err
 	}
 	run := &checkRun{set: set}
+	if run.timeout, err = fileTimeout(c); err != nil {
+		return nil, err
+	}
 	if run.boardPath = c.String("board"); run.boardPath != "" {
 		if run.board, err = board.ReadFile(run.boardPath); err != nil {
 			return nil, badInput(err)

@@ -69,6 +69,9 @@ func inputsOf(c *cli.Context) ([]input, error) {
 	var ins []input
 	for _, f := range found {
 		o := &netlist.LoadOptions{IncludeDirs: dirs, IncludeHint: includeHint, ConfineTop: f.searched}
+		if err := sizeBudget(c, o); err != nil {
+			return nil, err
+		}
 		if f.root != "" {
 			// A folder argument: its files may include from all of it.
 			o.IncludeDirs = append([]string{f.root}, dirs...)
