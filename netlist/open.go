@@ -73,7 +73,12 @@ type includePolicy struct {
 func newPolicy(top string, o *LoadOptions) *includePolicy {
 	p := &includePolicy{osFS: o.osFiles, hint: o.IncludeHint, base: o.ReadFile}
 	if p.hint == nil {
-		p.hint = func(dir string) string { return fmt.Sprintf("add %s to LoadOptions.IncludeDirs", dir) }
+		p.hint = func(dir string) string {
+			if dir == "" {
+				dir = "the folder the link points into"
+			}
+			return fmt.Sprintf("add %s to LoadOptions.IncludeDirs", dir)
+		}
 	}
 	seen := map[string]bool{}
 	for _, d := range append([]string{filepath.Dir(top)}, o.IncludeDirs...) {
@@ -136,7 +141,7 @@ func (p *includePolicy) check(path string) (string, error) {
 	}
 	if !withinAny(r, p.real) {
 		return "", &refusedError{msg: fmt.Sprintf("is a symbolic link to a file outside the folders includes may be read from (%s)", p.allowed()),
-			hint: p.hint, dir: "DIR (the folder the link points into)"}
+			hint: p.hint, dir: ""}
 	}
 	return r, nil
 }

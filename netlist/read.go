@@ -51,8 +51,9 @@ type LoadOptions struct {
 	// is a located error.
 	IncludeDirs []string
 	// IncludeHint ends the message about a refused include: how the user
-	// allows a folder (the CLI names its --include-dir flag). Nil says to
-	// add the folder to IncludeDirs.
+	// allows a folder (the CLI names its --include-dir flag); dir is ""
+	// for a link, whose target is not named. Nil says to add the folder to
+	// IncludeDirs.
 	IncludeHint func(dir string) string
 	// ConfineTop holds the top file itself to the policy: its path, links
 	// resolved, must lie inside its folder or IncludeDirs. For files found
@@ -165,7 +166,11 @@ func (r *reader) readFile(name string, src []byte, depth int, stack []string, wa
 	// A file that is not a netlist at all gets one error, quoting nothing
 	// of it: binary (at its first control byte), or mostly foreign lines.
 	if line, col, c, ok := firstBinary(src); ok {
-		r.errs.Addf(Pos{File: name, Line: line, Col: col}, "file %q is not text: control byte 0x%02x", verbatim(name), c)
+		if incPos.IsValid() {
+			r.errs.Addf(incPos, "file %q is not text: control byte 0x%02x on its line %d; nothing of it is read", verbatim(name), c, line)
+		} else {
+			r.errs.Addf(Pos{File: name, Line: line, Col: col}, "file %q is not text: control byte 0x%02x", verbatim(name), c)
+		}
 		return
 	}
 	if foreign, counted, first := notNetlist(string(src), top); foreign*2 > counted {

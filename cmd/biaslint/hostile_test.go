@@ -1,10 +1,15 @@
 package main
 
 import (
+	"bytes"
 	"encoding/csv"
 	"os"
+	"path/filepath"
+	"strconv"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 )
 
 // hostileNames is a netlist of our own whose title, element and node
@@ -80,4 +85,145 @@ func TestHostileNames(t *testing.T) {
 			}
 		}
 	})
+}
+
+// hostileSecret stands for another account's file: no message may repeat
+// any of it.
+const hostileSecret = "root:x:0:0:the-secret-line-of-someone-else:/root:/bin/bash"
+
+// hostileTree writes, under dir, board/top.cir including include (as
+// written) and outside/secret.txt, outside/bin.dat, board/pipe.lib (a
+// FIFO), board/models/ (a folder), board/link.lib (a link to the secret),
+// board/bin.lib (binary), and returns the path of top.cir.
+func hostileTree(t *testing.T, dir, include string) string {
+	t.Helper()
+	for _, d := range []string{"board/models", "outside"} {
+		if err := os.MkdirAll(filepath.Join(dir, d), 0o755); err != nil {
+			t.Fatal(err)
+		}
+	}
+	writeFile(t, filepath.Join(dir, "outside", "secret.txt"), []byte(hostileSecret+"\n"+hostileSecret+"\n"))
+	writeFile(t, filepath.Join(dir, "board", "bin.lib"), []byte("\x89PNG\r\n\x1a\n\x00\x00\x00\rIHDR"+hostileSecret))
+	if err := os.Symlink(filepath.Join("..", "outside", "secret.txt"), filepath.Join(dir, "board", "link.lib")); err != nil {
+		t.Skipf("no symbolic links: %v", err)
+	}
+	if err := syscall.Mkfifo(filepath.Join(dir, "board", "pipe.lib"), 0o644); err != nil {
+		t.Skipf("no FIFOs: %v", err)
+	}
+	top := filepath.Join(dir, "board", "top.cir")
+	writeFile(t, top, []byte("Hostile include probe\n.include "+include+"\nV1 a 0 5\nR1 a 0 1k\n.end\n"))
+	return top
+}
+
+// runWithin is runCLI that fails the test instead of hanging when the
+// command does not end within d (a FIFO opened blocking would hang).
+func runWithin(t *testing.T, d time.Duration, args ...string) (string, string, int) {
+	t.Helper()
+	type result struct {
+		out, errs string
+		code      int
+	}
+	done := make(chan result, 1)
+	go func() {
+		var out, errb bytes.Buffer
+		code := run(append([]string{"biaslint"}, args...), &out, &errb)
+		done <- result{out.String(), errb.String(), code}
+	}()
+	select {
+	case r := <-done:
+		return r.out, r.errs, r.code
+	case <-time.After(d):
+		t.Fatalf("biaslint %v did not end within %v", args, d)
+		return "", "", 0
+	}
+}
+
+// TestHostileIncludes: includes that reach outside the allowed folders or
+// name something that is not a regular file are located errors naming the
+// path as written, with nothing of the target in them, exit 2, at once.
+func TestHostileIncludes(t *testing.T) {
+	for _, tc := range []struct {
+		name, include string
+		extra         []string // flags before the file
+		want          string
+	}{
+		{"hostile-absolute", "$TMP/outside/secret.txt", nil, `:2:10: include "$TMP/outside/secret.txt" is outside the folders`},
+		{"hostile-dotdot", "../outside/secret.txt", nil, `:2:10: include "../outside/secret.txt" is outside the folders`},
+		{"hostile-symlink", "link.lib", nil, `:2:10: include "link.lib" is a symbolic link to a file outside`},
+		{"hostile-fifo", "pipe.lib", nil, `:2:10: include "pipe.lib" is a named pipe (FIFO)`},
+		{"hostile-dev-zero", "/dev/zero", nil, `:2:10: include "/dev/zero" is outside the folders`},
+		{"hostile-dev-zero-allowed", "/dev/zero", []string{"--include-dir", "/dev"}, `:2:10: include "/dev/zero" is a device`},
+		{"hostile-folder", "models", nil, `:2:10: include "models" is a folder`},
+		{"hostile-binary", "bin.lib", nil, `top.cir:2:10: file "$TMP/board/bin.lib" is not text`},
+		{"hostile-allowed-not-netlist", "../outside/secret.txt", []string{"--include-dir", "$TMP/outside"}, `:2:10: file "$TMP/outside/secret.txt" does not read as a netlist`},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			if strings.HasPrefix(tc.include, "/dev/") {
+				if _, err := os.Stat(tc.include); err != nil {
+					t.Skip(err)
+				}
+			}
+			dir := t.TempDir()
+			top := hostileTree(t, dir, strings.ReplaceAll(tc.include, "$TMP", dir))
+			args := []string{"check"}
+			for _, a := range tc.extra {
+				args = append(args, strings.ReplaceAll(a, "$TMP", dir))
+			}
+			args = append(args, top)
+			start := time.Now()
+			out, errs, code := runWithin(t, 10*time.Second, args...)
+			took := time.Since(start)
+			errs = strings.ReplaceAll(errs, dir, "$TMP")
+			if code != exitBadInput || out != "" {
+				t.Errorf("exit %d, stdout %q; want 2 and nothing", code, out)
+			}
+			if !strings.Contains(errs, tc.want) {
+				t.Errorf("stderr does not say %q:\n%s", tc.want, errs)
+			}
+			for _, ln := range strings.Split(strings.TrimRight(errs, "\n"), "\n") {
+				if !located.MatchString(ln) {
+					t.Errorf("message line without file:line:col: %q", ln)
+				}
+			}
+			for _, part := range []string{"root:x", "secret-line", "/bin/bash", "IHDR"} {
+				if strings.Contains(errs, part) {
+					t.Errorf("the message repeats %q of the target:\n%s", part, errs)
+				}
+			}
+			t.Logf("took %v", took)
+			got := "$ biaslint " + strings.ReplaceAll(strings.Join(args, " "), dir, "$TMP") + "\nexit " + strconv.Itoa(code) + "\n" + errs
+			badGolden(t, tc.name, got)
+		})
+	}
+}
+
+// TestHostileFolder: in a folder of submissions, a netlist that is a link
+// to a file outside the folder is not read; the others are checked.
+func TestHostileFolder(t *testing.T) {
+	dir := t.TempDir()
+	class := filepath.Join(dir, "class")
+	if err := os.MkdirAll(class, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, filepath.Join(dir, "secret.txt"), []byte(hostileSecret+"\n"))
+	if err := os.Symlink(filepath.Join("..", "secret.txt"), filepath.Join(class, "alice.cir")); err != nil {
+		t.Skipf("no symbolic links: %v", err)
+	}
+	src, err := os.ReadFile(good)
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, filepath.Join(class, "bob.cir"), src)
+	out, errs, code := runWithin(t, 30*time.Second, "check", "--format", "csv", "--summary", "csv", class)
+	if code != exitBadInput {
+		t.Errorf("exit %d, want 2", code)
+	}
+	all := out + errs
+	if strings.Contains(all, "secret-line") || strings.Contains(all, "root:x") {
+		t.Errorf("the link's target leaks:\n%s", all)
+	}
+	if !strings.Contains(all, "alice.cir:1:1: netlist is a symbolic link to a file outside the folders being checked") ||
+		!strings.Contains(out, `bob.cir,"Buzzer driver`) {
+		t.Errorf("want alice.cir refused and bob.cir checked:\n%s", all)
+	}
 }

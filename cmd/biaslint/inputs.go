@@ -104,6 +104,9 @@ func includeDirs(c *cli.Context) ([]string, error) {
 
 // includeHint tells how to allow a folder an include was refused from.
 func includeHint(dir string) string {
+	if dir == "" {
+		return "pass --include-dir with the folder the link points into"
+	}
 	if strings.ContainsAny(dir, " \t'\"") {
 		dir = strconv.Quote(dir)
 	}
