@@ -227,3 +227,13 @@ func TestHostileFolder(t *testing.T) {
 		t.Errorf("want alice.cir refused and bob.cir checked:\n%s", all)
 	}
 }
+
+// TestIncludeDirFlag: --include-dir must name a folder.
+func TestIncludeDirFlag(t *testing.T) {
+	for _, d := range []string{"testdata/no-such-folder", good} {
+		out, errs, code := runCLI(t, "check", "--include-dir", d, good)
+		if code != exitBadInput || out != "" || !strings.Contains(errs, "--include-dir "+d+": not a folder") {
+			t.Errorf("--include-dir %s: exit %d, stdout %q, stderr %q", d, code, out, errs)
+		}
+	}
+}
