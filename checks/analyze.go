@@ -102,7 +102,6 @@ type analyzer struct {
 	ambient float64
 	temp    float64
 	notes   netlist.ErrorList
-	roles   map[string][2]string
 
 	// bjts are the circuit's transistors in netlist order and tmpl their
 	// facts that do not depend on the case (computed once).
@@ -122,6 +121,9 @@ type analyzer struct {
 	// min" and "hfe max" corners (0 where the corner does not apply).
 	hfeFactor [][2]float64
 	pool      *pool
+	// ratingNoted marks the models (by key) whose combined ratings have
+	// been noted.
+	ratingNoted map[string]bool
 }
 
 // Analyze solves c and computes every fact of its nominal case, then of
@@ -134,7 +136,7 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	}
 	b, errs := board.FromCircuit(c)
 	b.Merge(opt.Board, errs)
-	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts, roles: map[string][2]string{}}
+	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts}
 	a.notes.Merge(errs)
 	if a.parts == nil {
 		lib, err := rulesets.Parts()
@@ -254,15 +256,11 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 		t.Model = m.Name
 		if p, err := device.BJTParamsOf(m, a.c.Options.TNom); err == nil {
 			t.GP = ModelFacts{IS: p.IS, BF: p.BF, NF: p.NF, VAF: p.VAF, IKF: p.IKF, ISE: p.ISE, NE: p.NE,
-				BR: p.BR, NR: p.NR, VAR: p.VAR, IKR: p.IKR, ISC: p.ISC, NC: p.NC, RB: p.RB, RE: p.RE, RC: p.RC,
+				BR: p.BR, NR: p.NR, VAR: p.VAR, IKR: p.IKR, ISC: p.ISC, NC: p.NC, RB: p.RB, RBM: p.RBM, IRB: p.IRB, RE: p.RE, RC: p.RC,
 				EG: p.EG, XTI: p.XTI, XTB: p.XTB}
 		}
 	}
 	t.Rating = a.ratings(el, t.Model, t.Polarity)
-	t.Role, t.RoleFrom = a.roleOf(el, 0)
-	if t.RoleFrom == "default" {
-		a.notes.Notef(el.Pos, "%s: role taken as linear (no annotation and no PULSE, PWL or SIN drive found); write *@device %s role=switch if it switches", el.Name, el.Name)
-	}
 	t.Bleed = a.g.bleed(el)
 	t.StiffDrive = a.g.stiff(el)
 	for _, d := range a.g.drives(el).sources {
@@ -312,36 +310,24 @@ func DeratedPower(r Ratings, ta float64) float64 {
 }
 
 // ratings merges a device's ratings: the library class its model matches
-// (else the generic class, with a note), overlaid by *@part values.
+// (else the generic class, with a note), overlaid by *@part values (see
+// combineRatings, which also notes, once per model, which values came from
+// where when the user gave only some).
 func (a *analyzer) ratings(el *netlist.Element, model, polarity string) Ratings {
 	lib, ok := a.parts.Lookup(model, polarity)
 	part := a.board.Part(model)
 	if !ok {
 		lib, _ = a.parts.Generic()
 	}
-	r := Ratings{Part: lib.Class, Origin: "parts library: " + lib.Origin,
-		VCEO: lib.VCEO, VCBO: lib.VCBO, VEBO: lib.VEBO, ICMax: lib.ICMax, Pd: lib.Pd,
-		TjMax: lib.TjMax, RthJA: lib.RthJA, HFEMin: lib.HFEMin, HFEMax: lib.HFEMax}
-	if lib.Class == "" {
-		n := math.NaN()
-		r = Ratings{VCEO: n, VCBO: n, VEBO: n, ICMax: n, Pd: n, TjMax: n, RthJA: n, HFEMin: n, HFEMax: n}
-	}
+	r, note := combineRatings(lib, part)
 	if part != nil {
-		r.Part, r.Origin = part.Model, "annotation at "+part.Pos.String()
-		over := func(dst *float64, v float64) {
-			if !math.IsNaN(v) {
-				*dst = v
+		if note != "" && !a.ratingNoted[netlist.Key(model)] {
+			if a.ratingNoted == nil {
+				a.ratingNoted = map[string]bool{}
 			}
+			a.ratingNoted[netlist.Key(model)] = true
+			a.notes.Warnf(part.Pos, "%s", note)
 		}
-		over(&r.VCEO, part.VCEO)
-		over(&r.VCBO, part.VCBO)
-		over(&r.VEBO, part.VEBO)
-		over(&r.ICMax, part.ICMax)
-		over(&r.Pd, part.Pd)
-		over(&r.TjMax, part.TjMax)
-		over(&r.RthJA, part.RthJA)
-		over(&r.HFEMin, part.HFEMin)
-		over(&r.HFEMax, part.HFEMax)
 		return r
 	}
 	if !ok {

@@ -79,8 +79,8 @@ func TestThevenin(t *testing.T) {
 	if !q.Bleed || q.StiffDrive {
 		t.Errorf("bleed = %v, stiff_drive = %v; want true, false", q.Bleed, q.StiffDrive)
 	}
-	if q.Role != RoleLinear || q.RoleFrom != "default" {
-		t.Errorf("role = %s (%s), want linear by default", q.Role, q.RoleFrom)
+	if q.Role != RoleCommonEmitter || q.RoleFrom != "topology" || !q.Linear {
+		t.Errorf("role = %s (%s), want common-emitter from the topology", q.Role, q.RoleFrom)
 	}
 	// Classic approximate analysis (same textbook method):
 	// IE = (Vth - VBE)/(RE + Rth/(beta+1)); with VBE about 0.65 V (common
@@ -181,8 +181,8 @@ RE5 e5 0 2.2k
 		// Q3's base is the pin itself; with the pin open, RB1 and RBE1
 		// still bleed it to ground.
 		{"Q3", RoleSwitch, true, true, 1},
-		{"Q4", RoleLinear, true, false, 1},
-		{"Q5", RoleLinear, true, false, 0},
+		{"Q4", RoleCommonEmitter, true, false, 1},
+		{"Q5", RoleFollower, true, false, 0},
 	} {
 		q := transistor(t, a, tc.name)
 		if q.Role != tc.role || q.Bleed != tc.bleed || q.StiffDrive != tc.stif || len(q.Drives) != tc.drives {
@@ -190,8 +190,8 @@ RE5 e5 0 2.2k
 				tc.name, q.Role, q.RoleFrom, q.Bleed, q.StiffDrive, q.Drives, tc.role, tc.bleed, tc.stif, tc.drives)
 		}
 	}
-	if q := transistor(t, a, "Q5"); q.RoleFrom != "driven by Q4" {
-		t.Errorf("Q5 role from %q, want driven by Q4", q.RoleFrom)
+	if q := transistor(t, a, "Q5"); q.RoleReason != "collector at vcc, output at the emitter (net e5, load RE5 to ground)" {
+		t.Errorf("Q5 role reason %q", q.RoleReason)
 	}
 	if q := transistor(t, a, "Q2"); !math.IsInf(q.BaseRth, 1) && q.BaseRth < 1e9 {
 		// With the pin at 0 V the base sees RB2 to the pin: 1 kOhm.

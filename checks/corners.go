@@ -358,7 +358,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		for _, op := range outs[groups[gi]].res.BJTs {
 			held[netlist.Key(op.Name)] = op.Temp
 		}
-		o := tightOptions(solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: held, Guess: outs[groups[gi]].res, Linear: w.lu, Context: a.opt.Context})
+		o := tightOptions(solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: held, Guess: outs[groups[gi]].res, Context: a.opt.Context})
 		r, err := w.sys.Solve(o)
 		if err != nil {
 			errs[k] = err

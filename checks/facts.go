@@ -18,12 +18,6 @@ import (
 	"github.com/biaslint/biaslint/netlist"
 )
 
-// Role values.
-const (
-	RoleSwitch = "switch"
-	RoleLinear = "linear"
-)
-
 // Ratings are the absolute-maximum and characteristic values of a part, as
 // the parts library or a *@part annotation gives them. Missing values are NaN.
 type Ratings struct {
@@ -70,6 +64,8 @@ type ModelFacts struct {
 	ISC float64 `expr:"isc"`
 	NC  float64 `expr:"nc"`
 	RB  float64 `expr:"rb"`
+	RBM float64 `expr:"rbm"`
+	IRB float64 `expr:"irb"`
 	RE  float64 `expr:"re"`
 	RC  float64 `expr:"rc"`
 	EG  float64 `expr:"eg"`
@@ -90,10 +86,17 @@ type Transistor struct {
 	Base      string `expr:"base"`
 	Emitter   string `expr:"emitter"`
 
-	// Role is RoleSwitch or RoleLinear; RoleFrom says why ("annotation",
-	// "pulse drive", "pwl drive", "sine drive", "ac drive", "default").
-	Role     string `expr:"role"`
-	RoleFrom string `expr:"role_from"`
+	// Role is the transistor's role (RoleSwitch, RoleCommonEmitter, ...,
+	// see roles.go), decided from the topology and the nominal solve;
+	// RoleFrom says how ("annotation", "topology" or "default") and
+	// RoleReason why, in plain words ("emitter at ground, base fed by R3
+	// from V2 (DC 3.3 V), collector load K1"). Linear is true for the
+	// roles that work in forward-active when biased as designed (every
+	// role but switch, push-pull, clamp and diode).
+	Role       string `expr:"role"`
+	RoleFrom   string `expr:"role_from"`
+	RoleReason string `expr:"role_reason"`
+	Linear     bool   `expr:"linear"`
 
 	// Operating point, forward-referenced (see the file comment).
 	VBE float64 `expr:"vbe"`
@@ -173,14 +176,18 @@ type Transistor struct {
 	// DeviceTemp is the temperature the device was solved at, C.
 	// ThermalGain is the loop gain dP/dTj * RthJA at this case's operating
 	// point (dimensionless; 0 when Thermal is false, NaN when RthJA is not
-	// known). ThermalRunaway is true when no stable fixed point was found
-	// below Tj max; RunawayTj is the junction temperature from which the
-	// loop ran away, C (the operating Tj when it did not).
-	Thermal        bool    `expr:"thermal"`
-	DeviceTemp     float64 `expr:"device_temp"`
-	ThermalGain    float64 `expr:"thermal_gain"`
-	ThermalRunaway bool    `expr:"thermal_runaway"`
-	RunawayTj      float64 `expr:"runaway_tj"`
+	// known). ThermalRunaway is true when the junction runs away: the loop
+	// gain at the fixed point is at or above 1, or there is no fixed point
+	// and the loop gain reached 1 on the way up; RunawayTj is the junction
+	// temperature from which it ran away, C (the operating Tj when it did
+	// not). OverTemperature is true when the junction settles at a stable
+	// point (loop gain below 1) above Tj max; Tj is then that point.
+	Thermal         bool    `expr:"thermal"`
+	DeviceTemp      float64 `expr:"device_temp"`
+	ThermalGain     float64 `expr:"thermal_gain"`
+	ThermalRunaway  bool    `expr:"thermal_runaway"`
+	RunawayTj       float64 `expr:"runaway_tj"`
+	OverTemperature bool    `expr:"over_temperature"`
 
 	// Signal clipping (cross-case, over the quasi-static swing of one
 	// source; in a swing case the facts of that case's source, elsewhere

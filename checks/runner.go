@@ -162,14 +162,13 @@ type worker struct {
 	hasBF  []bool
 	sys    *solve.System
 	swing  *solve.System
-	lu     *solve.DenseLU
 	// dirty lists the values changed on sys and swing.
 	dirty, swingDirty []string
 	err               error
 }
 
 func newWorker(a *analyzer) *worker {
-	w := &worker{a: a, lu: solve.NewDenseLU()}
+	w := &worker{a: a}
 	c := *a.c
 	c.Models = make(map[string]*netlist.Model, len(a.c.Models)+len(a.bjts))
 	for k, m := range a.c.Models {
@@ -284,7 +283,7 @@ func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
 	} else if err := w.apply(sys, &w.dirty, sp.set); err != nil {
 		return caseOut{err: err}
 	}
-	out.res, out.th, out.err = w.a.solveThermal(sys, w.lu, sp, guess)
+	out.res, out.th, out.err = w.a.solveThermal(sys, sp, guess)
 	if sp.open != nil {
 		if oc == nil {
 			oc = w.circ // a current source opened by setting it to zero
@@ -403,6 +402,7 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 		return nil, err
 	}
+	a.assignRoles(outs[0].res)
 	// A .temp line with several temperatures: the first is the nominal
 	// case's, each other one is a case of its own (unless --temp, Temp,
 	// sets the temperature for all).
@@ -549,6 +549,9 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 		t.Thermal = sp.thermal
 		if sp.thermal && !math.IsNaN(t.Rating.RthJA) && !o.th.runaway[j] {
 			t.Tj = op.Temp // the fixed point: Ta + P*RthJA
+			if !math.IsNaN(o.th.tj[j]) {
+				t.Tj = o.th.tj[j] // beyond the followed range, estimated
+			}
 		}
 		t.RunawayTj = t.Tj
 		if sp.thermal {
@@ -557,6 +560,7 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 			if t.ThermalRunaway {
 				t.RunawayTj = o.th.runTj[j]
 			}
+			t.OverTemperature = !t.ThermalRunaway && t.Tj > t.Rating.TjMax
 		}
 		if sp.swing != nil {
 			t.Swing, t.SwingLevel = true, sp.level

@@ -10,9 +10,10 @@ package checks
 //     level equal to the source's DC value is the nominal case itself and
 //     is not repeated. Drive levels are DC states: capacitors are open, so
 //     a DC- and a capacitor-coupled drive are judged alike.
-//   - Opened drives: every PULSE, PWL or EXP source, and every source
-//     annotated driver=yes (a controller pin that floats at reset), that
-//     drives a base is opened ("VRELAY open"): a voltage source is replaced
+//   - Opened drives: every PULSE, PWL or EXP source, every source
+//     annotated driver=yes (a controller pin that floats at reset), and
+//     every plain DC source that stands for a controller pin driving a
+//     switch (see graph.pinNet), that drives a base is opened ("VRELAY open"): a voltage source is replaced
 //     by a 1 TOhm leak, a current source set to zero. floating-base is then
 //     judged by solving: the Thevenin resistance the base sees.
 //   - Signal swing: every SIN source, and every AC source with an
@@ -153,7 +154,7 @@ func (a *analyzer) openScenarios() []caseSpec {
 		}
 		_, _, lvl := levelsOf(el.Source.Wave)
 		d := a.board.Device(el.Name)
-		if !lvl && (d == nil || !d.Driver) {
+		if !lvl && (d == nil || !d.Driver) && !a.pinOfSwitch(el) {
 			continue
 		}
 		sp := caseSpec{scenario: el.Name + " open", kind: KindOpen, ambient: a.ambient, temp: a.temp,
@@ -164,6 +165,21 @@ func (a *analyzer) openScenarios() []caseSpec {
 		out = append(out, sp)
 	}
 	return out
+}
+
+// pinOfSwitch reports whether source el is a plain DC source standing for
+// a controller pin (see graph.pinNet) that drives a switch's base: a pin
+// lets go at reset like any other drive.
+func (a *analyzer) pinOfSwitch(el *netlist.Element) bool {
+	if len(el.Nodes) < 2 || (a.g.pin[nodeKey(el.Nodes[0])] != el && a.g.pin[nodeKey(el.Nodes[1])] != el) {
+		return false
+	}
+	for j := range a.tmpl {
+		if a.tmpl[j].Role == RoleSwitch && drivenBy(&a.tmpl[j], el.Name) {
+			return true
+		}
+	}
+	return false
 }
 
 // swingSource is one swept source.
@@ -349,7 +365,7 @@ func (w *worker) sweep(s *swingSource, specs []caseSpec, outs []caseOut, nominal
 		if err := w.apply(w.swing, &w.swingDirty, []setting{{key, s.centre + v}}); err != nil {
 			return nil, err
 		}
-		o := solve.Options{Temp: solve.Temp(a.temp), DeviceTemp: held, Guess: guess, Linear: w.lu, Context: a.opt.Context}
+		o := solve.Options{Temp: solve.Temp(a.temp), DeviceTemp: held, Guess: guess, Context: a.opt.Context}
 		if tight {
 			o = tightOptions(o)
 		}
@@ -413,7 +429,7 @@ func (w *worker) sweep(s *swingSource, specs []caseSpec, outs []caseOut, nominal
 		return ""
 	}
 	for j, el := range a.bjts {
-		if a.tmpl[j].Role != RoleLinear || region(centre, el.Name) != "active" {
+		if !a.tmpl[j].Linear || region(centre, el.Name) != "active" {
 			continue
 		}
 		for _, sign := range []float64{1, -1} {

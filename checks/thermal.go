@@ -15,6 +15,7 @@ package checks
 // more than thermalTol. A junction whose power falls as it heats makes the
 // iteration oscillate; each sign change of a junction's step halves its
 // step (under-relaxation), which converges for any negative loop gain.
+// Tj max does not stop the iteration: a junction may settle above it.
 //
 // The thermal loop gain of a transistor at the operating point is
 //
@@ -22,11 +23,20 @@ package checks
 //
 // taken by a forward difference of gainStep kelvin with the other
 // junctions held. Below 1 a disturbance of the junction temperature dies
-// out; at or above 1 it grows (thermal runaway). When an iterate passes
-// the transistor's Tj max there is no stable fixed point below it: the
-// case records a runaway and the junction temperature from which the
-// steps stopped shrinking (where the local loop gain reached 1), or the
-// last one below Tj max when they always shrank.
+// out and the fixed point is stable; at or above 1 it grows. The
+// judgement, per transistor:
+//
+//   - runaway: the loop gain at the fixed point is at or above 1, or the
+//     iteration passes Tj max + thermalCapMargin (or stops solving past
+//     Tj max) with a loop gain there at or above 1 (no fixed point below
+//     it: the power rises faster than the heat can leave). RunawayTj is
+//     the junction temperature from which the steps stopped shrinking
+//     (where the local loop gain reached 1), else the last iterate.
+//   - stable: otherwise. When the iteration was stopped at the cap with a
+//     loop gain g < 1 there, the fixed point lies beyond it and is
+//     estimated by one Newton step on Tj − Ta − P·RthJA,
+//     T* = T + d/(1 − g), d the unrelaxed step at T. A stable point above
+//     Tj max is an overtemperature (fact over_temperature), not a runaway.
 
 import (
 	"math"
@@ -48,6 +58,10 @@ const (
 	// gainStep is the junction-temperature step of the loop-gain
 	// difference, K.
 	gainStep = 1.0
+	// thermalCapMargin is how far past its Tj max a junction is followed,
+	// K; beyond it the fixed point (if any) is estimated, not solved, since
+	// the device equations are far outside any data sheet there.
+	thermalCapMargin = 150.0
 )
 
 // tightOptions are the tolerances of the difference solves (loop gain,
@@ -62,21 +76,24 @@ func tightOptions(o solve.Options) solve.Options {
 type thermalOut struct {
 	gain, runTj []float64
 	runaway     []bool
+	// tj is the stable junction temperature, C, where it differs from
+	// the last solved one (estimated beyond the cap); NaN elsewhere.
+	tj []float64
 	// unsettled is true when the iteration reached thermalMaxIter.
 	unsettled bool
 }
 
 // solveThermal solves one case on sys: with the electro-thermal iteration
 // when sp.thermal, else once with the transistors at sp.heldTemps.
-func (a *analyzer) solveThermal(sys *solve.System, lu solve.LinearSolver, sp *caseSpec, guess *solve.Result) (*solve.Result, thermalOut, error) {
-	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Linear: lu, Context: a.opt.Context}
+func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Result) (*solve.Result, thermalOut, error) {
+	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Context: a.opt.Context}
 	if !sp.thermal {
 		base.DeviceTemp = sp.heldTemps
 		res, err := sys.Solve(base)
 		return res, thermalOut{}, err
 	}
 	n := len(a.bjts)
-	out := thermalOut{gain: make([]float64, n), runTj: make([]float64, n), runaway: make([]bool, n)}
+	out := thermalOut{gain: make([]float64, n), runTj: make([]float64, n), runaway: make([]bool, n), tj: make([]float64, n)}
 	rth := make([]float64, n)
 	tjmax := make([]float64, n)
 	T := make([]float64, n)
@@ -92,7 +109,7 @@ func (a *analyzer) solveThermal(sys *solve.System, lu solve.LinearSolver, sp *ca
 		if math.IsNaN(tjmax[j]) {
 			tjmax[j] = defaultTjMax
 		}
-		T[j], relax[j], gainAt[j] = sp.temp, 1, math.NaN()
+		T[j], relax[j], gainAt[j], out.tj[j] = sp.temp, 1, math.NaN(), math.NaN()
 	}
 	temps := func(T []float64) map[string]float64 {
 		m := make(map[string]float64, n)
@@ -111,8 +128,13 @@ func (a *analyzer) solveThermal(sys *solve.System, lu solve.LinearSolver, sp *ca
 		return p
 	}
 	var res *solve.Result
-	settled, ran := false, false
-	for it := 0; it < thermalMaxIter && !settled && !ran; it++ {
+	// capped marks the junctions whose next iterate passed the cap; d
+	// holds their unrelaxed step there.
+	capped := make([]bool, n)
+	d := make([]float64, n)
+	settled, stopped := false, false
+	var prevT []float64
+	for it := 0; it < thermalMaxIter && !settled && !stopped; it++ {
 		opt := base
 		opt.DeviceTemp = temps(T)
 		if res != nil {
@@ -120,7 +142,20 @@ func (a *analyzer) solveThermal(sys *solve.System, lu solve.LinearSolver, sp *ca
 		}
 		r, err := sys.Solve(opt)
 		if err != nil {
-			return nil, out, err
+			hot := false
+			for j := range T {
+				hot = hot || T[j] > tjmax[j]
+			}
+			if res == nil || !hot {
+				return nil, out, err
+			}
+			// Past Tj max the circuit no longer solves: the junctions stay
+			// at the last temperatures that did.
+			for j := range T {
+				capped[j] = capped[j] || T[j] > tjmax[j]
+			}
+			T, stopped = prevT, true
+			break
 		}
 		res = r
 		p := power(res)
@@ -130,47 +165,69 @@ func (a *analyzer) solveThermal(sys *solve.System, lu solve.LinearSolver, sp *ca
 			if math.IsNaN(rth[j]) {
 				continue
 			}
-			d := sp.temp + p[j]*rth[j] - T[j]
+			d[j] = sp.temp + p[j]*rth[j] - T[j]
+			dj := d[j]
 			if it > 0 && step[j] != 0 {
-				if d*step[j] < 0 {
+				if dj*step[j] < 0 {
 					relax[j] /= 2
-				} else if math.IsNaN(gainAt[j]) && math.Abs(d) >= math.Abs(step[j]) {
+				} else if math.IsNaN(gainAt[j]) && math.Abs(dj) >= math.Abs(step[j]) {
 					gainAt[j] = T[j]
 				}
 			}
-			d *= relax[j]
-			step[j] = d
-			next[j] = T[j] + d
-			biggest = math.Max(biggest, math.Abs(d))
-			if next[j] > tjmax[j] {
-				out.runaway[j], ran = true, true
-				out.runTj[j] = gainAt[j]
-				if math.IsNaN(gainAt[j]) {
-					out.runTj[j] = T[j]
-				}
+			dj *= relax[j]
+			step[j] = dj
+			next[j] = T[j] + dj
+			biggest = math.Max(biggest, math.Abs(dj))
+			if next[j] > tjmax[j]+thermalCapMargin {
+				capped[j], stopped = true, true
 			}
 		}
-		if ran {
+		if stopped {
 			break
 		}
-		T = next
+		prevT, T = T, next
 		settled = biggest < thermalTol
 	}
-	out.unsettled = !settled && !ran
+	out.unsettled = !settled && !stopped
+	a.loopGains(sys, base, T, res, rth, out.gain, temps, power)
+	for j := range a.bjts {
+		g := out.gain[j]
+		switch {
+		case math.IsNaN(rth[j]) || rth[j] == 0:
+		case capped[j] && !(g < 1), !capped[j] && g >= 1:
+			out.runaway[j] = true
+			out.runTj[j] = gainAt[j]
+			if math.IsNaN(gainAt[j]) {
+				out.runTj[j] = T[j]
+			}
+		case capped[j]:
+			// Stable beyond the cap: one Newton step on the fixed point.
+			out.tj[j] = T[j] + d[j]/(1-g)
+		}
+	}
+	return res, out, nil
+}
+
+// loopGains sets gain[j] to the thermal loop gain dP/dTj * RthJA of every
+// transistor at junction temperatures T (res solved there), by a forward
+// difference of gainStep with the other junctions held; NaN where RthJA
+// is unknown or a solve fails, 0 where RthJA is 0.
+func (a *analyzer) loopGains(sys *solve.System, base solve.Options, T []float64, res *solve.Result, rth, gain []float64,
+	temps func([]float64) map[string]float64, power func(*solve.Result) []float64) {
 	// Loop gains at the final junction temperatures.
 	opt := tightOptions(base)
 	opt.DeviceTemp, opt.Guess = temps(T), res
 	r0, err := sys.Solve(opt)
 	if err != nil {
-		for j := range out.gain {
-			out.gain[j] = math.NaN()
+		for j := range gain {
+			gain[j] = math.NaN()
 		}
-		return res, out, nil
+		return
 	}
 	p0 := power(r0)
 	for j := range a.bjts {
 		if math.IsNaN(rth[j]) {
-			out.gain[j] = math.NaN()
+			gain[j] = math.NaN()
 			continue
 		}
 		if rth[j] == 0 {
@@ -182,10 +239,9 @@ func (a *analyzer) solveThermal(sys *solve.System, lu solve.LinearSolver, sp *ca
 		o.DeviceTemp, o.Guess = temps(Tp), r0
 		r1, err := sys.Solve(o)
 		if err != nil {
-			out.gain[j] = math.NaN()
+			gain[j] = math.NaN()
 			continue
 		}
-		out.gain[j] = (power(r1)[j] - p0[j]) / gainStep * rth[j]
+		gain[j] = (power(r1)[j] - p0[j]) / gainStep * rth[j]
 	}
-	return res, out, nil
 }

@@ -25,9 +25,20 @@ type graph struct {
 	// drive maps a net key to the drive sources attached to it (their non-
 	// ground terminals).
 	drive map[string][]*netlist.Element
-	// collectorOf maps a net key to the transistors whose collector or
+	// outputOf maps a net key to the transistors whose collector or
 	// emitter is on it (a transistor output that can drive a base).
 	outputOf map[string][]*netlist.Element
+	// pin maps a net key to the plain DC source that holds it when the
+	// source stands for a controller pin (see pinNet): such a net is a
+	// drive, not a rail.
+	pin map[string]*netlist.Element
+	// comp maps each net key to its component under resistors, inductors
+	// and capacitors with rails cut out; compDrive and compOut list the
+	// drive sources and the transistor outputs (collector or emitter) on
+	// each component's nets, in netlist order.
+	comp      map[string]string
+	compDrive map[string][]*netlist.Element
+	compOut   map[string][]*netlist.Element
 }
 
 func nodeKey(n string) string { return netlist.Key(n) }
@@ -50,21 +61,9 @@ func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
 	g := &graph{
 		c: c, at: map[string][]*netlist.Element{}, rail: map[string]bool{},
 		drive: map[string][]*netlist.Element{}, outputOf: map[string][]*netlist.Element{},
+		pin: map[string]*netlist.Element{},
 	}
-	// Union-find over supply sources and inductors finds the rails.
-	parent := map[string]string{}
-	var find func(string) string
-	find = func(x string) string {
-		for i := 0; i < len(parent)+1; i++ { // bounded: a path is never longer than the set
-			p, ok := parent[x]
-			if !ok || p == x {
-				return x
-			}
-			x = p
-		}
-		return x
-	}
-	union := func(a, b string) { parent[find(a)] = find(b) }
+	bases := map[string]bool{}
 	for _, e := range c.Elements {
 		for _, n := range e.Nodes {
 			k := nodeKey(n)
@@ -72,11 +71,27 @@ func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
 				g.at[k] = append(g.at[k], e)
 			}
 		}
-		switch {
-		case e.Kind == 'L' && len(e.Nodes) >= 2, e.Kind == 'V' && !isDriveSource(e, b) && len(e.Nodes) >= 2:
-			union(nodeKey(e.Nodes[0]), nodeKey(e.Nodes[1]))
+		if e.Kind == 'Q' && len(e.Nodes) >= 3 {
+			bases[nodeKey(e.Nodes[1])] = true
 		}
-		if isDriveSource(e, b) && len(e.Nodes) >= 2 {
+	}
+	isPin := map[*netlist.Element]bool{}
+	for _, e := range c.Elements {
+		if e.Kind == 'V' && !isDriveSource(e, b) && len(e.Nodes) >= 2 {
+			if k, ok := g.pinNet(e, bases); ok && g.pin[k] == nil {
+				g.pin[k], isPin[e] = e, true
+			}
+		}
+	}
+	// Union-find over supply sources and inductors finds the rails.
+	uf := newUnionFind()
+	for _, e := range c.Elements {
+		pin := isPin[e]
+		switch {
+		case e.Kind == 'L' && len(e.Nodes) >= 2, e.Kind == 'V' && !isDriveSource(e, b) && !pin && len(e.Nodes) >= 2:
+			uf.union(nodeKey(e.Nodes[0]), nodeKey(e.Nodes[1]))
+		}
+		if (isDriveSource(e, b) || pin) && len(e.Nodes) >= 2 {
 			for _, n := range e.Nodes[:2] {
 				if k := nodeKey(n); k != netlist.Ground {
 					g.drive[k] = append(g.drive[k], e)
@@ -90,14 +105,137 @@ func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
 			}
 		}
 	}
-	root := find(netlist.Ground)
+	root := uf.find(netlist.Ground)
 	for k := range g.at {
-		if find(k) == root {
+		if uf.find(k) == root {
 			g.rail[k] = true
 		}
 	}
 	g.rail[netlist.Ground] = true
+	g.components()
 	return g
+}
+
+// pinNet reports whether the DC voltage source e stands for a controller
+// pin (a logic output written as a plain DC source) rather than a supply,
+// and which net it holds. One terminal is on ground, and the region the
+// other net reaches through resistors and capacitors (stopping at ground)
+// holds at least one transistor base and nothing else but resistors and
+// capacitors: no collector or emitter, no other source, diode, inductor or
+// controlled element. A supply feeds collectors and loads; a pin feeds
+// base resistors, with pull-downs and RC filters on the way. The walk
+// stops at the first thing a pin cannot feed, and is bounded by the
+// circuit's size.
+func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool) {
+	a, b := nodeKey(e.Nodes[0]), nodeKey(e.Nodes[1])
+	var k string
+	switch {
+	case b == netlist.Ground && a != netlist.Ground:
+		k = a
+	case a == netlist.Ground && b != netlist.Ground:
+		k = b
+	default:
+		return "", false
+	}
+	if bases[k] {
+		return "", false // straight on a base: a bias source, stiff_drive judges it
+	}
+	toBase := false
+	seen := map[string]bool{k: true}
+	queue := []string{k}
+	for len(queue) > 0 {
+		n := queue[0]
+		queue = queue[1:]
+		for _, x := range g.at[n] {
+			switch {
+			case x == e:
+			case x.Kind == 'Q' && len(x.Nodes) >= 3:
+				if nodeKey(x.Nodes[0]) == n || nodeKey(x.Nodes[2]) == n {
+					return "", false // a collector or an emitter: a supply
+				}
+				toBase = true
+			case (x.Kind == 'R' || x.Kind == 'C') && len(x.Nodes) == 2:
+				if f := other(x, n); f != netlist.Ground && !seen[f] {
+					seen[f] = true
+					queue = append(queue, f)
+				}
+			default:
+				return "", false
+			}
+		}
+	}
+	return k, toBase
+}
+
+// components joins the nets that resistors, inductors and capacitors
+// connect, rails excepted (a rail holds its potential whatever hangs on
+// it), in one union-find pass, and records for each component the drive
+// sources and transistor outputs on its nets. drives reads them, so
+// finding what drives every base costs O(elements) in all, not a walk per
+// transistor.
+func (g *graph) components() {
+	uf := newUnionFind()
+	for _, e := range g.c.Elements {
+		if (e.Kind != 'R' && e.Kind != 'L' && e.Kind != 'C') || len(e.Nodes) < 2 {
+			continue
+		}
+		x, y := nodeKey(e.Nodes[0]), nodeKey(e.Nodes[1])
+		if g.rail[x] || g.rail[y] {
+			continue
+		}
+		uf.union(x, y)
+	}
+	// Flatten, so every later find is one step.
+	keys := make([]string, 0, len(g.at))
+	for k := range g.at {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	flat := make(map[string]string, len(keys))
+	for _, k := range keys {
+		flat[k] = uf.find(k)
+	}
+	g.comp = flat
+	g.compDrive = map[string][]*netlist.Element{}
+	g.compOut = map[string][]*netlist.Element{}
+	isDrive := map[*netlist.Element]bool{}
+	for _, l := range g.drive {
+		for _, e := range l {
+			isDrive[e] = true
+		}
+	}
+	seen := map[*netlist.Element]string{}
+	for _, e := range g.c.Elements {
+		if len(e.Nodes) < 2 || !isDrive[e] {
+			continue
+		}
+		for _, n := range e.Nodes[:2] {
+			k := nodeKey(n)
+			if g.rail[k] || k == netlist.Ground {
+				continue
+			}
+			r := g.comp[k]
+			if seen[e] != r {
+				seen[e] = r
+				g.compDrive[r] = append(g.compDrive[r], e)
+			}
+		}
+	}
+	for _, e := range g.c.Elements {
+		if e.Kind != 'Q' || len(e.Nodes) < 3 {
+			continue
+		}
+		for _, i := range []int{0, 2} {
+			k := nodeKey(e.Nodes[i])
+			if g.rail[k] {
+				continue
+			}
+			r := g.comp[k]
+			if l := g.compOut[r]; len(l) == 0 || l[len(l)-1] != e {
+				g.compOut[r] = append(g.compOut[r], e)
+			}
+		}
+	}
 }
 
 // resistive reports whether e conducts DC through resistance or a short,
@@ -194,90 +332,65 @@ type driveInfo struct {
 	upstream []*netlist.Element
 }
 
-// drives walks from the base through R, L and C (coupling capacitors
-// included), stopping at rails, and collects drive sources and upstream
-// transistor outputs it reaches.
+// drives lists the drive sources and other transistors' outputs reached
+// from q's base through resistors, inductors and capacitors (coupling
+// capacitors included) without passing a rail: the base's component.
 func (g *graph) drives(q *netlist.Element) driveInfo {
 	var d driveInfo
 	base := nodeKey(q.Nodes[1])
-	seen := map[string]bool{base: true}
-	seenEl := map[*netlist.Element]bool{}
-	queue := []string{base}
-	for len(queue) > 0 {
-		k := queue[0]
-		queue = queue[1:]
-		for _, s := range g.drive[k] {
-			if !seenEl[s] {
-				seenEl[s] = true
-				d.sources = append(d.sources, s)
-			}
-		}
-		for _, o := range g.outputOf[k] {
-			if o != q && !seenEl[o] {
-				seenEl[o] = true
-				d.upstream = append(d.upstream, o)
-			}
-		}
-		if g.rail[k] {
-			continue
-		}
-		for _, e := range g.at[k] {
-			if e.Kind != 'R' && e.Kind != 'L' && e.Kind != 'C' || len(e.Nodes) < 2 {
-				continue
-			}
-			if n := other(e, k); !seen[n] {
-				seen[n] = true
-				queue = append(queue, n)
-			}
+	if g.rail[base] {
+		return d
+	}
+	r := g.comp[base]
+	d.sources = append(d.sources, g.compDrive[r]...)
+	for _, o := range g.compOut[r] {
+		if o != q {
+			d.upstream = append(d.upstream, o)
 		}
 	}
 	sort.SliceStable(d.sources, func(i, j int) bool { return d.sources[i].Pos.Before(d.sources[j].Pos) })
 	return d
 }
 
-// roleOf decides a transistor's role: an annotation wins; otherwise a base
-// driven by a PULSE or PWL source means switch and one driven by a SIN,
-// EXP or AC source means linear; otherwise the role of an upstream
-// transistor whose output drives the base; otherwise linear ("default").
-// depth bounds the walk upstream.
-func (a *analyzer) roleOf(q *netlist.Element, depth int) (role, from string) {
-	if d := a.board.Device(q.Name); d != nil && d.Role != "" {
-		return d.Role, "annotation"
-	}
-	if r, ok := a.roles[nodeKey(q.Name)]; ok {
-		return r[0], r[1]
-	}
-	di := a.g.drives(q)
-	var lin string
-	for _, s := range di.sources {
-		if s.Source == nil {
-			continue
+// unionFind is a disjoint-set forest over net keys with path compression
+// and union by size, so n operations cost O(n α(n)).
+type unionFind struct {
+	parent map[string]string
+	size   map[string]int
+}
+
+func newUnionFind() *unionFind {
+	return &unionFind{parent: map[string]string{}, size: map[string]int{}}
+}
+
+// find returns x's root (x itself when it was never joined).
+func (u *unionFind) find(x string) string {
+	r := x
+	for i := 0; i <= len(u.parent); i++ { // bounded by the forest's size
+		p, ok := u.parent[r]
+		if !ok || p == r {
+			break
 		}
-		if w := s.Source.Wave; w != nil {
-			switch w.Kind {
-			case netlist.WavePulse, netlist.WavePWL:
-				return RoleSwitch, string(w.Kind) + " drive " + s.Name
-			case netlist.WaveSin:
-				lin = "sine drive " + s.Name
-			case netlist.WaveExp:
-				lin = "exp drive " + s.Name
-			}
-		} else if s.Source.HasAC && lin == "" {
-			lin = "ac drive " + s.Name
-		}
+		r = p
 	}
-	if lin != "" {
-		return RoleLinear, lin
+	for x != r { // compress the path
+		p := u.parent[x]
+		u.parent[x] = r
+		x = p
 	}
-	if depth < 32 {
-		a.roles[nodeKey(q.Name)] = [2]string{RoleLinear, "default"} // breaks cycles
-		for _, u := range di.upstream {
-			if r, why := a.roleOf(u, depth+1); why != "default" {
-				delete(a.roles, nodeKey(q.Name))
-				return r, "driven by " + u.Name
-			}
-		}
-		delete(a.roles, nodeKey(q.Name))
+	return r
+}
+
+// union joins the sets of x and y.
+func (u *unionFind) union(x, y string) {
+	rx, ry := u.find(x), u.find(y)
+	if rx == ry {
+		return
 	}
-	return RoleLinear, "default"
+	sx, sy := u.size[rx]+1, u.size[ry]+1
+	if sx > sy {
+		rx, ry = ry, rx
+	}
+	u.parent[rx] = ry
+	u.size[ry] = sx + sy - 1
 }

@@ -36,21 +36,7 @@ func analyzeWith(t testing.TB, src string, opt checks.Options) *checks.Analysis 
 // findings evaluates the default rule set and returns the findings of rule.
 func findings(t *testing.T, a *checks.Analysis, rule string) []rules.Finding {
 	t.Helper()
-	set, err := rules.Load("default", rules.LoadOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	fs, err := rules.Evaluate(set, a, rules.EvalOptions{Only: []string{rule}})
-	if err != nil {
-		t.Fatal(err)
-	}
-	var out []rules.Finding
-	for _, f := range fs {
-		if !f.Unjudged {
-			out = append(out, f)
-		}
-	}
-	return out
+	return findingsSet(t, a, rule, nil)
 }
 
 func caseOf(t *testing.T, a *checks.Analysis, scenario, corner string) *checks.Case {

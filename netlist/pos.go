@@ -70,7 +70,8 @@ func (s Severity) String() string {
 }
 
 // Error is one located problem with the input. Its Error method prints
-// "file:line:col: message", like go/scanner.Error.
+// "file:line:col: severity: message" (severity error, warning or note),
+// the form compilers print and CI problem matchers read.
 type Error struct {
 	Pos      Pos
 	Severity Severity
@@ -78,9 +79,6 @@ type Error struct {
 }
 
 func (e *Error) Error() string {
-	if e.Severity == SevError {
-		return e.Pos.String() + ": " + e.Msg
-	}
 	return e.Pos.String() + ": " + e.Severity.String() + ": " + e.Msg
 }
 

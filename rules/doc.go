@@ -20,7 +20,7 @@
 //	  - id: vce-overstress           # kebab-case, unique
 //	    severity: error              # error | warning | note
 //	    subject: transistor          # transistor | resistor | node
-//	    applies: role == "linear"    # optional: which devices (default all)
+//	    applies: linear              # optional: which devices (default all)
 //	    when: vce > param.vceo_share * rating.vceo    # true means violation
 //	    measure: vce / rating.vceo   # optional, larger is worse
 //	    value: vce                   # optional "value against limit" pair

@@ -58,6 +58,8 @@ type Finding struct {
 	Waived       bool        `json:"waived,omitempty"`
 	WaiverReason string      `json:"waiver_reason,omitempty"`
 	WaiverPos    netlist.Pos `json:"waiver_pos,omitempty"`
+	// WaiverExternal: the waiver is in a board file, not in the netlist.
+	WaiverExternal bool `json:"waiver_external,omitempty"`
 	// AlsoIn lists the other cases where the rule is violated on the
 	// device, and UnjudgedIn those where it could not be judged, as
 	// "scenario" or "scenario/corner".

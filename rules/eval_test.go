@@ -287,3 +287,79 @@ func TestMessageUnits(t *testing.T) {
 		t.Errorf("values %v, want %v", fs[0].Values, wantQ)
 	}
 }
+
+// Rules apply by role: each false alarm of issue 11 and its true twin, on
+// hand-set facts (values below are the ones the issue quotes, or round
+// numbers far from the thresholds).
+func TestRulesByRole(t *testing.T) {
+	set, err := LoadDefault(LoadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	as := func(role string, linear bool, f func(*checks.Transistor)) checks.Transistor {
+		q := linearQ()
+		q.Role, q.Linear = role, linear
+		f(&q)
+		return derive(q)
+	}
+	off := func(q *checks.Transistor) { q.IC, q.IB, q.VBE, q.Region = 1e-12, 1e-15, 0.1, "cutoff" }
+	tests := []struct {
+		name    string
+		q       checks.Transistor
+		must    string
+		mustNot []string
+	}{
+		// A push-pull half idling at zero and a clamp that is off are as
+		// designed; a common-emitter stage that is off is not.
+		{"push-pull idling", as("push-pull", false, off), "", []string{"cutoff-linear-stage"}},
+		{"clamp off", as("clamp", false, off), "", []string{"cutoff-linear-stage"}},
+		{"common-emitter off", as("common-emitter", true, off), "cutoff-linear-stage", nil},
+		// The issue's cut-off transistor: VCE 783 nV, IC 2e-21 A is not
+		// saturated, it carries nothing.
+		{"off with VCE near zero", as("common-emitter", true, func(q *checks.Transistor) {
+			q.VCE, q.IC, q.IB, q.VBE, q.Region = 783e-9, 2e-21, 1e-22, 0.05, "cutoff"
+		}), "cutoff-linear-stage", []string{"saturated-linear-stage"}},
+		{"conducting and saturated", as("common-emitter", true, func(q *checks.Transistor) {
+			q.VCE, q.Region = 0.1, "saturation"
+		}), "saturated-linear-stage", nil},
+		// A diode-connected mirror reference needs no degeneration; a
+		// discrete mirror output without emitter resistors gets a note.
+		{"mirror reference", as("mirror-reference", true, func(q *checks.Transistor) { q.EmitterR, q.VCE = 0, 0.65 }),
+			"", []string{"no-emitter-degeneration", "mirror-vbe-mismatch"}},
+		{"mirror output", as("mirror-output", true, func(q *checks.Transistor) { q.EmitterR = 0 }),
+			"mirror-vbe-mismatch", []string{"no-emitter-degeneration"}},
+		{"common-emitter, no RE", as("common-emitter", true, func(q *checks.Transistor) { q.EmitterR = 0 }),
+			"no-emitter-degeneration", []string{"mirror-vbe-mismatch"}},
+		// A long-tailed pair with its base on a stiff source: the 10 kOhm
+		// tail limits the current. Emitter at a rail: nothing does.
+		{"long-tailed pair", as("diff-pair", true, func(q *checks.Transistor) { q.StiffDrive, q.EmitterR = true, 10e3 }),
+			"", []string{"unlimited-base-drive"}},
+		{"stiff base, emitter at rail", as("common-emitter", true, func(q *checks.Transistor) { q.StiffDrive, q.EmitterR = true, 0 }),
+			"unlimited-base-drive", nil},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			fs, err := Evaluate(set, analysis(oneCase([]checks.Transistor{tc.q}, nil, nil)), EvalOptions{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := ids(fs)
+			has := func(id string) bool {
+				for _, f := range fs {
+					if f.Rule == id && !f.Unjudged {
+						return true
+					}
+				}
+				return false
+			}
+			if tc.must != "" && !has(tc.must) {
+				t.Errorf("%s did not fire; got %v", tc.must, got)
+			}
+			for _, id := range tc.mustNot {
+				if has(id) {
+					t.Errorf("%s fired; got %v", id, got)
+				}
+			}
+		})
+	}
+}

@@ -15,7 +15,7 @@ func ExampleEvaluate() {
 		fmt.Println(err)
 		return
 	}
-	q := checks.Transistor{Name: "Q1", Role: checks.RoleLinear, Region: "active",
+	q := checks.Transistor{Name: "Q1", Role: checks.RoleCommonEmitter, Linear: true, Region: "active",
 		VBE: 0.65, VCE: 45, VCB: 44.35, IC: 1e-3, IB: 5e-6, Beta: 200, Power: 45e-3,
 		Rating: checks.Ratings{Part: "small-signal-npn", VCEO: 40, VCBO: 60, VEBO: 6, ICMax: 0.2,
 			Pd: 0.625, TjMax: 150, RthJA: 200, HFEMin: 100, HFEMax: 300},

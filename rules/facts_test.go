@@ -38,7 +38,7 @@ func derive(t checks.Transistor) checks.Transistor {
 // common practice), hFE 200, RE = 1 kOhm.
 func linearQ() checks.Transistor {
 	return derive(checks.Transistor{Name: "Q1", Model: "GEN_NPN_SS", Polarity: "npn",
-		Collector: "c1", Base: "b1", Emitter: "e1", Role: checks.RoleLinear, RoleFrom: "default",
+		Collector: "c1", Base: "b1", Emitter: "e1", Role: checks.RoleCommonEmitter, RoleFrom: "topology", Linear: true,
 		VBE: 0.65, VCE: 5, IC: 1e-3, IB: 5e-6, Region: "active", Rating: smallSignalRating(),
 		Ambient: 25, EmitterR: 1000, BaseRth: 10e3, BaseVth: 1.7, Bleed: true,
 		Pos: netlist.Pos{File: "amp.cir", Line: 10, Col: 1}})

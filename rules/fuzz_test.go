@@ -58,9 +58,9 @@ func FuzzEvaluate(f *testing.F) {
 			Rating:   checks.Ratings{VCEO: x(4), VCBO: x(5), VEBO: x(6), ICMax: x(7), Pd: x(8), HFEMin: x(13)},
 			EmitterR: x(9), Ambient: x(10), PdDerated: x(14), Beta: x(15), Power: x(1) * x(2), VCB: x(1) - x(0),
 			Region: regions[int(flags)%len(regions)], Bleed: flags&8 != 0, StiffDrive: flags&16 != 0}
-		q.Role = checks.RoleLinear
+		q.Role, q.Linear = checks.RoleCommonEmitter, true
 		if flags&32 != 0 {
-			q.Role = checks.RoleSwitch
+			q.Role, q.Linear = checks.RoleSwitch, false
 		}
 		r := checks.Resistor{Name: "R1", R: x(9), V: x(11), I: x(2), Power: x(11) * x(2), Rating: x(8)}
 		n := checks.Node{Name: "n1", V: x(11), Peak: x(12)}

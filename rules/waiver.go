@@ -14,6 +14,9 @@ import (
 type Waiver struct {
 	Rule, Device, Reason string
 	Pos                  netlist.Pos
+	// External is true for a waiver kept outside the netlist (a board
+	// file), false for one written in it (an annotation).
+	External bool
 }
 
 // Rule ids of findings about waivers themselves.
@@ -54,7 +57,7 @@ func ApplyWaivers(findings []Finding, waivers []Waiver, knownRuleIDs map[string]
 			if f.Waived {
 				continue // the first waiver that matches keeps its reason
 			}
-			f.Waived, f.WaiverReason, f.WaiverPos = true, w.Reason, w.Pos
+			f.Waived, f.WaiverReason, f.WaiverPos, f.WaiverExternal = true, w.Reason, w.Pos, w.External
 		}
 		if matched {
 			continue

@@ -75,12 +75,12 @@ func TestParts(t *testing.T) {
 
 func TestLoadPartsErrors(t *testing.T) {
 	for _, tc := range []struct{ src, want string }{
-		{"parts:\n  - class: a\n    vceoo: 3\n", "x.yaml:2:5: parts library: unknown key \"vceoo\" at line 3"},
-		{"parts:\n  - class: a\n    polarity: nnp\n", "x.yaml:2:5: parts library: class \"a\": polarity"},
-		{"parts:\n  - class: a\n  - class: A\n", "x.yaml:3:5: parts library: class \"A\" defined twice"},
-		{"parts:\n  - class: a\n    vceo: -3\n", "x.yaml:2:5: parts library: class \"a\": vceo must not be negative"},
-		{"partz: []\n", "x.yaml:1:1: parts library: unknown key"},
-		{"parts: [\n", "x.yaml:1:1: parts library: did not find expected node content"},
+		{"parts:\n  - class: a\n    vceoo: 3\n", "x.yaml:2:5: error: parts library: unknown key \"vceoo\" at line 3"},
+		{"parts:\n  - class: a\n    polarity: nnp\n", "x.yaml:2:5: error: parts library: class \"a\": polarity"},
+		{"parts:\n  - class: a\n  - class: A\n", "x.yaml:3:5: error: parts library: class \"A\" defined twice"},
+		{"parts:\n  - class: a\n    vceo: -3\n", "x.yaml:2:5: error: parts library: class \"a\": vceo must not be negative"},
+		{"partz: []\n", "x.yaml:1:1: error: parts library: unknown key"},
+		{"parts: [\n", "x.yaml:1:1: error: parts library: did not find expected node content"},
 	} {
 		_, err := LoadParts("x.yaml", []byte(tc.src))
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {

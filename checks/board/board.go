@@ -62,7 +62,8 @@ var RatingKeys = []string{"vceo", "vcbo", "vebo", "icmax", "pd", "tjmax", "rthja
 type Device struct {
 	// Name is the flat element name as written (X1.RCOIL).
 	Name string
-	// Role is "switch", "linear" or "" (not set).
+	// Role is one of Roles, "linear" (a linear stage of the kind the
+	// topology shows), or "" (not set).
 	Role string
 	// Power is a resistor's power rating, W (NaN when not set).
 	Power float64
@@ -75,6 +76,24 @@ type Device struct {
 	// with no waveform, NaN when not set.
 	Amplitude float64
 	Pos       netlist.Pos
+}
+
+// Roles are the transistor roles an annotation or board file may set; the
+// checks package classifies transistors into the same roles. "linear" is
+// accepted besides them: a linear stage whose kind the topology decides.
+var Roles = []string{"switch", "common-emitter", "follower", "diff-pair", "mirror-reference",
+	"mirror-output", "current-source", "push-pull", "vbe-multiplier", "clamp", "diode"}
+
+func validRole(r string) bool {
+	if r == "linear" {
+		return true
+	}
+	for _, x := range Roles {
+		if x == r {
+			return true
+		}
+	}
+	return false
 }
 
 // NewDevice returns a Device with nothing set.
@@ -91,6 +110,9 @@ var DeviceKeys = []string{"role", "power", "tol", "driver", "amplitude"}
 type Waiver struct {
 	Rule, Device, Reason string
 	Pos                  netlist.Pos
+	// External is true for a waiver of the board file, false for a
+	// *@waive annotation in the netlist.
+	External bool
 }
 
 // Settings is everything a board says about itself.
@@ -221,8 +243,8 @@ func (d *Device) set(key, val string, kind netlist.Kind) string {
 	switch key {
 	case "role":
 		r := strings.ToLower(val)
-		if r != "switch" && r != "linear" {
-			return "role=" + val + " must be switch or linear"
+		if !validRole(r) {
+			return "role=" + val + " must be one of " + strings.Join(Roles, ", ") + " or linear"
 		}
 		if kind != 'Q' {
 			return "role applies to transistors only"

@@ -64,7 +64,7 @@ func TestFromCircuit(t *testing.T) {
 	all := strings.Join(msgs, "\n")
 	for _, want := range []string{
 		"b.cir:15:10: warning: *@device names Q7, which is not in the circuit",
-		"role=sometimes must be switch or linear",
+		"role=sometimes must be one of switch, common-emitter",
 		`unknown key "colour"`,
 		"gives no reason",
 		"unknown annotation *@lamp",
@@ -123,14 +123,14 @@ waivers:
 func TestBoardFileErrors(t *testing.T) {
 	c := circuit(t, annotated)
 	for _, tc := range []struct{ src, want string }{
-		{"ambient: [1]\n", "b.yaml:1:10: ambient"},
-		{"parts:\n  N: {vceo: -3}\n", "b.yaml:2:13: part N: vceo"},
-		{"parts:\n  N: {volts: 3}\n", `b.yaml:2:7: part N: unknown key "volts"`},
-		{"devices:\n  Q9: {role: switch}\n", "b.yaml:2:3: devices: Q9 is not in the circuit"},
-		{"waivers:\n  - {rule: floating-base, device: X1.Q1}\n", "b.yaml:2:5: waiver of floating-base on X1.Q1 gives no reason"},
-		{"colour: blue\n", `b.yaml:1:1: unknown key "colour"`},
+		{"ambient: [1]\n", "b.yaml:1:10: error: ambient"},
+		{"parts:\n  N: {vceo: -3}\n", "b.yaml:2:13: error: part N: vceo"},
+		{"parts:\n  N: {volts: 3}\n", `b.yaml:2:7: error: part N: unknown key "volts"`},
+		{"devices:\n  Q9: {role: switch}\n", "b.yaml:2:3: error: devices: Q9 is not in the circuit"},
+		{"waivers:\n  - {rule: floating-base, device: X1.Q1}\n", "b.yaml:2:5: error: waiver of floating-base on X1.Q1 gives no reason"},
+		{"colour: blue\n", `b.yaml:1:1: error: unknown key "colour"`},
 		{"parts: {N: [\n", "b.yaml:"},
-		{"- 1\n- 2\n", "b.yaml:1:1: a board file is a mapping"},
+		{"- 1\n- 2\n", "b.yaml:1:1: error: a board file is a mapping"},
 	} {
 		_, err := Parse("b.yaml", []byte(tc.src), c)
 		if err == nil || !strings.Contains(err.Error(), tc.want) {

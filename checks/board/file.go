@@ -45,14 +45,14 @@ func Load(path string, c *netlist.Circuit) (*Settings, error) {
 func ReadFile(path string) ([]byte, error) {
 	fi, err := os.Stat(path)
 	if err != nil {
-		return nil, fmt.Errorf("%s: cannot read board file: %v", path, unwrapPathErr(err))
+		return nil, fmt.Errorf("%s: error: cannot read board file: %v", path, unwrapPathErr(err))
 	}
 	if fi.Size() > MaxFileSize {
-		return nil, fmt.Errorf("%s: board file is %d bytes, over the %d-byte limit", path, fi.Size(), MaxFileSize)
+		return nil, fmt.Errorf("%s: error: board file is %d bytes, over the %d-byte limit", path, fi.Size(), MaxFileSize)
 	}
 	src, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("%s: cannot read board file: %v", path, unwrapPathErr(err))
+		return nil, fmt.Errorf("%s: error: cannot read board file: %v", path, unwrapPathErr(err))
 	}
 	return src, nil
 }
@@ -158,6 +158,7 @@ func Parse(file string, src []byte, c *netlist.Circuit) (*Settings, error) {
 				case strings.TrimSpace(wv.Reason) == "":
 					errs.Addf(wv.Pos, "waiver of %s on %s gives no reason; a waiver must say why", wv.Rule, wv.Device)
 				default:
+					wv.External = true
 					s.Waivers = append(s.Waivers, wv)
 				}
 			}

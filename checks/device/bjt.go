@@ -51,7 +51,9 @@ type BJTParams struct {
 	IKR  float64 // reverse beta high-current knee, A (default none: +Inf)
 	ISC  float64 // base-collector leakage saturation current, A (default 0)
 	NC   float64 // base-collector leakage emission coefficient (default 2)
-	RB   float64 // base resistance, ohm, taken as constant (default 0)
+	RB   float64 // zero-bias base resistance, ohm (default 0)
+	RBM  float64 // minimum base resistance at high current, ohm (default RB)
+	IRB  float64 // current where the base resistance falls halfway to RBM, A (default none: +Inf)
 	RE   float64 // emitter resistance, ohm (default 0)
 	RC   float64 // collector resistance, ohm (default 0)
 	EG   float64 // energy gap for the temperature dependence of IS, eV (default 1.11)
@@ -66,16 +68,16 @@ func DefaultBJTParams() BJTParams {
 	inf := math.Inf(1)
 	return BJTParams{
 		IS: 1e-16, BF: 100, NF: 1, VAF: inf, IKF: inf, ISE: 0, NE: 1.5,
-		BR: 1, NR: 1, VAR: inf, IKR: inf, ISC: 0, NC: 2,
+		BR: 1, NR: 1, VAR: inf, IKR: inf, ISC: 0, NC: 2, IRB: inf,
 		EG: 1.11, XTI: 3, XTB: 0, TNOM: 27,
 	}
 }
 
 // BJTParamsOf reads the DC Gummel-Poon parameters of m. Absent parameters
 // take their defaults, with TNOM defaulting to tnom (°C); parameters the DC
-// model does not use (capacitances, transit times, ...) are ignored, and so
-// are IRB and RBM: RB is a constant resistance. VAF, VAR, IKF and IKR of
-// zero mean "none", as in SPICE. Out-of-range values are an error.
+// model does not use (capacitances, transit times, noise) are ignored. RBM
+// defaults to RB (a constant base resistance). VAF, VAR, IKF, IKR and IRB
+// of zero mean "none", as in SPICE. Out-of-range values are an error.
 func BJTParamsOf(m *netlist.Model, tnom float64) (BJTParams, error) {
 	d := DefaultBJTParams()
 	r := &reader{m: m}
@@ -94,6 +96,7 @@ func BJTParamsOf(m *netlist.Model, tnom float64) (BJTParams, error) {
 		ISC:  r.nonNegative("ISC", d.ISC),
 		NC:   r.positive("NC", d.NC),
 		RB:   r.nonNegative("RB", d.RB),
+		IRB:  r.infinite("IRB"),
 		RE:   r.nonNegative("RE", d.RE),
 		RC:   r.nonNegative("RC", d.RC),
 		EG:   r.positive("EG", d.EG),
@@ -101,7 +104,14 @@ func BJTParamsOf(m *netlist.Model, tnom float64) (BJTParams, error) {
 		XTB:  r.get("XTB", d.XTB),
 		TNOM: r.get("TNOM", tnom),
 	}
+	p.RBM = r.nonNegative("RBM", p.RB)
 	return p, r.err
+}
+
+// VariableRB reports whether the base resistance depends on the bias: RB
+// is set and RBM differs from it or IRB is given.
+func (p *BJTParams) VariableRB() bool {
+	return p.RB > 0 && (p.RBM != p.RB || !math.IsInf(p.IRB, 1))
 }
 
 // BJT is a Gummel-Poon bipolar transistor instance at one temperature.
@@ -119,16 +129,19 @@ type BJT struct {
 	//	ISE = Area · ISE · f1^(1/NE) · (T/Tnom)^(−XTB)
 	//	ISC = Area · ISC · f1^(1/NC) · (T/Tnom)^(−XTB)
 	//	BF, BR  times (T/Tnom)^XTB
-	//	IKF, IKR times Area;  RB, RE, RC divided by Area
+	//	IKF, IKR, IRB times Area;  RB, RBM, RE, RC divided by Area
 	//
 	// (Nagel 1975; EG itself is held constant). The others equal Params.
 	Scaled BJTParams
 	// VT is the thermal voltage k·T/q at Temp, V.
 	VT float64
-	// GMin is the conductance across each junction, S.
+	// GMin is the conductance placed inside each junction current, S
+	// (the SPICE3 convention; see Eval).
 	GMin float64
 
 	vcritBE, vcritBC float64
+	// onBE, onBC are the on-thresholds of Region at Temp, V.
+	onBE, onBC float64
 }
 
 // NewBJT returns the transistor of model m (type npn or pnp) with area
@@ -165,7 +178,9 @@ func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
 	s.BR = p.BR * bfac
 	s.IKF = area * p.IKF
 	s.IKR = area * p.IKR
+	s.IRB = area * p.IRB
 	s.RB = p.RB / area
+	s.RBM = p.RBM / area
 	s.RE = p.RE / area
 	s.RC = p.RC / area
 	if !(s.IS > 0) || math.IsInf(s.IS, 0) || math.IsInf(s.ISE, 0) || math.IsInf(s.ISC, 0) {
@@ -175,6 +190,10 @@ func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
 	b := &BJT{Polarity: pol, Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin}
 	b.vcritBE = Vcrit(s.NF*vt, s.IS)
 	b.vcritBC = Vcrit(s.NR*vt, s.IS)
+	// The current each junction carries at OnVoltage at TNOM.
+	isNom, vtNom := area*p.IS, ThermalVoltage(tnom)
+	b.onBE = onThreshold(s.NF*vt, s.IS, isNom*math.Expm1(OnVoltage/(p.NF*vtNom)))
+	b.onBC = onThreshold(s.NR*vt, s.IS, isNom*math.Expm1(OnVoltage/(p.NR*vtNom)))
 	return b, nil
 }
 
@@ -188,6 +207,10 @@ type BJTEval struct {
 	DIBdVBE, DIBdVBC float64
 	// QB is the normalised base charge.
 	QB float64
+	// RBB is the base resistance in effect, ohm (0 without RB), and
+	// DRBBdVBE, DRBBdVBC its derivatives with respect to the junction
+	// voltages, ohm/V (zero for a constant RB).
+	RBB, DRBBdVBE, DRBBdVBC float64
 	// Mag is the sum of the magnitudes of the terms that make up IC and
 	// IB, A: IC and IB cannot be computed more accurately than about
 	// machine epsilon times Mag (in saturation IC is a small difference
@@ -203,18 +226,34 @@ func (e BJTEval) IE() float64 { return -(e.IC + e.IB) }
 // In forward-referenced quantities (multiplied by the polarity sign, so
 // that an NPN and a PNP read alike) the Gummel-Poon DC equations are
 //
-//	Ibe = IS·(exp(vbe/(NF·vt)) − 1)        Ibc = IS·(exp(vbc/(NR·vt)) − 1)
+//	Ibe = IS·(exp(vbe/(NF·vt)) − 1) + GMIN·vbe
+//	Ibc = IS·(exp(vbc/(NR·vt)) − 1) + GMIN·vbc
 //	Ile = ISE·(exp(vbe/(NE·vt)) − 1)       Ilc = ISC·(exp(vbc/(NC·vt)) − 1)
 //	q1 = 1/(1 − vbc/VAF − vbe/VAR)         q2 = Ibe/IKF + Ibc/IKR
 //	qb = q1/2 · (1 + √(1 + 4·q2))
-//	IC = (Ibe − Ibc)/qb − Ibc/BR − Ilc − GMIN·vbc
-//	IB = Ibe/BF + Ile + Ibc/BR + Ilc + GMIN·(vbe + vbc)
+//	IC = (Ibe − Ibc)/qb − Ibc/BR − Ilc
+//	IB = Ibe/BF + Ile + Ibc/BR + Ilc
 //
-// with GMIN a conductance across each junction (it adds to the base
-// current and, across B-C, to the collector current). The exponentials are
-// continued linearly beyond a large argument, and where 1 − vbc/VAF −
-// vbe/VAR falls below 0.05 q1 is continued by its tangent, so Eval is
-// finite for every finite input.
+// GMIN sits inside the two ideal junction currents, as SPICE3 places it
+// (a GMIN·v term added to each junction's diode current, not a separate
+// conductance across the terminals), so it is carried through qb and the
+// betas like the junction current itself: in cut-off at VBE = 0 and
+// VCB = V the collector leaks (IS + GMIN·V)·(1/qb + 1/BR).
+//
+// The base resistance between the base terminal and the internal base is
+// (SPICE2, Nagel 1975; Massobrio & Antognetti, Semiconductor Device
+// Modeling with SPICE, ch. 2)
+//
+//	rbb = RBM + (RB − RBM)/qb                                without IRB
+//	rbb = RBM + 3·(RB − RBM)·(tan z − z)/(z·tan² z)          with IRB, where
+//	z   = (−1 + √(1 + 144·IB/(π²·IRB))) / ((24/π²)·√(IB/IRB))
+//
+// (IB the base current above, taken as zero when negative; z runs from 0
+// to π/2 as IB grows, so rbb falls from RB to RBM). RBM defaults to RB.
+//
+// The exponentials are continued linearly beyond a large argument, and
+// where 1 − vbc/VAF − vbe/VAR falls below 0.05 q1 is continued by its
+// tangent, so Eval is finite for every finite input.
 func (b *BJT) Eval(vbe, vbc float64) BJTEval {
 	sg := b.Polarity.Sign()
 	ve, vc := sg*vbe, sg*vbc
@@ -222,6 +261,8 @@ func (b *BJT) Eval(vbe, vbc float64) BJTEval {
 	vt := b.VT
 	ibe, gbe := junction(p.IS, ve, p.NF*vt)
 	ibc, gbc := junction(p.IS, vc, p.NR*vt)
+	ibe, gbe = ibe+b.GMin*ve, gbe+b.GMin
+	ibc, gbc = ibc+b.GMin*vc, gbc+b.GMin
 	ile, gle := junction(p.ISE, ve, p.NE*vt)
 	ilc, glc := junction(p.ISC, vc, p.NC*vt)
 
@@ -251,19 +292,72 @@ func (b *BJT) Eval(vbe, vbc float64) BJTEval {
 	dqbvc := dq1vc*(1+sq)/2 + q1*dsqvc/2
 
 	it := (ibe - ibc) / qb
-	ic := it - ibc/p.BR - ilc - b.GMin*vc
-	ib := ibe/p.BF + ile + ibc/p.BR + ilc + b.GMin*(ve+vc)
-	return BJTEval{
+	ic := it - ibc/p.BR - ilc
+	ib := ibe/p.BF + ile + ibc/p.BR + ilc
+	ev := BJTEval{
 		IC:      sg * ic,
 		IB:      sg * ib,
 		DICdVBE: (gbe - it*dqbve) / qb,
-		DICdVBC: (-gbc-it*dqbvc)/qb - gbc/p.BR - glc - b.GMin,
-		DIBdVBE: gbe/p.BF + gle + b.GMin,
-		DIBdVBC: gbc/p.BR + glc + b.GMin,
+		DICdVBC: (-gbc-it*dqbvc)/qb - gbc/p.BR - glc,
+		DIBdVBE: gbe/p.BF + gle,
+		DIBdVBC: gbc/p.BR + glc,
 		QB:      qb,
 		Mag: math.Abs(ibe)/qb + math.Abs(ibc)/qb + math.Abs(ibe)/p.BF + 2*math.Abs(ibc)/p.BR +
-			math.Abs(ile) + 2*math.Abs(ilc) + b.GMin*(math.Abs(ve)+2*math.Abs(vc)),
+			math.Abs(ile) + 2*math.Abs(ilc),
 	}
+	if p.RB > 0 {
+		var dve, dvc float64
+		ev.RBB, dve, dvc = b.baseResistance(qb, dqbve, dqbvc, ib, ev.DIBdVBE, ev.DIBdVBC)
+		ev.DRBBdVBE, ev.DRBBdVBC = sg*dve, sg*dvc
+	}
+	return ev
+}
+
+// baseResistance returns rbb and its derivatives with respect to the
+// forward-referenced junction voltages, from qb or from the base current
+// ib (forward-referenced) and their derivatives; see Eval.
+func (b *BJT) baseResistance(qb, dqbve, dqbvc, ib, dibve, dibvc float64) (r, dve, dvc float64) {
+	p := &b.Scaled
+	if !b.Params.VariableRB() {
+		return p.RB, 0, 0
+	}
+	span := p.RB - p.RBM
+	if math.IsInf(p.IRB, 1) {
+		f := span / (qb * qb)
+		return p.RBM + span/qb, -f * dqbve, -f * dqbvc
+	}
+	x := ib / p.IRB
+	if !(x > 0) {
+		return p.RB, 0, 0
+	}
+	f, dfdx := irbLaw(x)
+	return p.RBM + 3*span*f, 3 * span * dfdx * dibve / p.IRB, 3 * span * dfdx * dibvc / p.IRB
+}
+
+// irbLaw returns f = (tan z − z)/(z·tan² z) with z(x) of the IRB law at
+// x = IB/IRB > 0 (see Eval), and df/dx. f runs from 1/3 at x → 0 to 0 as
+// x → ∞. z is computed as (a/c)·√x/(1 + √(1 + a·x)), a = 144/π², c =
+// 24/π², which equals the published form without its cancellation at
+// small x; below z = 1e-3 f is its series 1/3 − 4z²/45.
+func irbLaw(x float64) (f, dfdx float64) {
+	const a = 144 / (math.Pi * math.Pi)
+	const c = 24 / (math.Pi * math.Pi)
+	s := math.Sqrt(x)
+	r := math.Sqrt(1 + a*x)
+	z := a / c * s / (1 + r)
+	dzdx := a / c * ((1+r)/(2*s) - s*a/(2*r)) / ((1 + r) * (1 + r))
+	var dfdz float64
+	if z < 1e-3 {
+		f, dfdz = 1.0/3-4*z*z/45, -8*z/45
+	} else {
+		t := math.Tan(z)
+		num, den := t-z, z*t*t
+		f = num / den
+		dnum := t * t
+		dden := t*t + 2*z*t*(1+t*t)
+		dfdz = (dnum*den - num*dden) / (den * den)
+	}
+	return f, dfdz * dzdx
 }
 
 // Limit applies junction-voltage limiting (PNJLim) to both junctions of a

@@ -314,3 +314,185 @@ func TestClassify(t *testing.T) {
 		}
 	}
 }
+
+// qbHand is the normalised base charge of the Gummel-Poon model (Gummel &
+// Poon 1970 in the SPICE2 form of Nagel 1975), by hand, for an NPN with
+// GMIN placed inside the junction currents as SPICE3 does.
+func qbHand(is, vaf, var_, ikf, ikr, gmin, vt, vbe, vbc float64) float64 {
+	ibe := is*(math.Exp(vbe/vt)-1) + gmin*vbe
+	ibc := is*(math.Exp(vbc/vt)-1) + gmin*vbc
+	q1 := 1 / (1 - vbc/vaf - vbe/var_)
+	q2 := ibe/ikf + ibc/ikr
+	return q1 / 2 * (1 + math.Sqrt(1+4*q2))
+}
+
+func TestBaseResistanceFromQB(t *testing.T) {
+	// Without IRB, rbb = RBM + (RB − RBM)/qb (SPICE2, Nagel 1975;
+	// Massobrio & Antognetti, Semiconductor Device Modeling with SPICE,
+	// ch. 2). Two bias points: low injection (qb near q1) and past the
+	// IKF knee, where qb is large and rbb approaches RBM.
+	m := model(netlist.NPN)
+	for k, v := range map[string]float64{"IS": 1e-14, "BF": 100, "VAF": 60, "VAR": 20, "IKF": 0.01, "IKR": 0.005, "RB": 300, "RBM": 40} {
+		with(m, k, v)
+	}
+	b, err := NewBJT(m, 1, 27, Options{TNom: 27, GMin: 1e-12})
+	if err != nil {
+		t.Fatal(err)
+	}
+	vt := 1.380649e-23 * 300.15 / 1.602176634e-19 // SI 2019 constants
+	for _, v := range [][2]float64{{0.60, -4.4}, {0.80, -2.2}} {
+		qb := qbHand(1e-14, 60, 20, 0.01, 0.005, 1e-12, vt, v[0], v[1])
+		want := 40 + (300-40)/qb
+		ev := b.Eval(v[0], v[1])
+		if !near(ev.RBB, want, 1e-12) || !near(ev.QB, qb, 1e-12) {
+			t.Errorf("at VBE %g VBC %g: rbb %g qb %g; by hand rbb %g qb %g", v[0], v[1], ev.RBB, ev.QB, want, qb)
+		}
+	}
+	// RBM defaults to RB: a constant base resistance.
+	c, _ := NewBJT(with(with(model(netlist.NPN), "RB", 300), "IKF", 0.01), 1, 27, DefaultOptions())
+	if ev := c.Eval(0.8, -2); ev.RBB != 300 || ev.DRBBdVBE != 0 || c.Params.VariableRB() {
+		t.Errorf("RB 300 without RBM or IRB: rbb %g, slope %g; want a constant 300", ev.RBB, ev.DRBBdVBE)
+	}
+}
+
+// irbHand is the IRB law of the base resistance exactly as published
+// (SPICE2, Nagel 1975; Massobrio & Antognetti, ch. 2):
+//
+//	z = (−1 + √(1 + 144·IB/(π²·IRB))) / ((24/π²)·√(IB/IRB))
+//	rbb = RBM + 3·(RB − RBM)·(tan z − z)/(z·tan² z)
+func irbHand(rb, rbm, irb, ib float64) float64 {
+	pi2 := math.Pi * math.Pi
+	z := (-1 + math.Sqrt(1+144*ib/(pi2*irb))) / (24 / pi2 * math.Sqrt(ib/irb))
+	return rbm + 3*(rb-rbm)*(math.Tan(z)-z)/(z*math.Tan(z)*math.Tan(z))
+}
+
+func TestBaseResistanceIRBLaw(t *testing.T) {
+	m := model(netlist.NPN)
+	for k, v := range map[string]float64{"IS": 1e-14, "BF": 100, "VAF": 60, "RB": 300, "RBM": 40, "IRB": 50e-6} {
+		with(m, k, v)
+	}
+	b, err := NewBJT(m, 1, 27, Options{TNom: 27, GMin: 1e-12})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// IB about 4 µA (below IRB) and about 350 µA (far above it).
+	for _, v := range [][2]float64{{0.65, -4}, {0.78, -3}} {
+		ev := b.Eval(v[0], v[1])
+		want := irbHand(300, 40, 50e-6, ev.IB)
+		if !near(ev.RBB, want, 1e-9) {
+			t.Errorf("at VBE %g (IB %g): rbb %g, published IRB law %g", v[0], ev.IB, ev.RBB, want)
+		}
+	}
+	// At IB = IRB the resistance is halfway between RB and RBM (the
+	// definition of IRB): 3·(tan z − z)/(z·tan² z) = 1/2 there.
+	if got := irbHand(300, 40, 50e-6, 50e-6); math.Abs(got-170) > 2 {
+		t.Errorf("rbb at IB = IRB = %g, want about (300+40)/2 = 170", got)
+	}
+	f, _ := irbLaw(1)
+	if got := 40 + 3*260*f; !near(got, irbHand(300, 40, 1, 1), 1e-12) {
+		t.Errorf("irbLaw(1) gives %g, published form %g", got, irbHand(300, 40, 1, 1))
+	}
+	// Small IB: rbb → RB; the series branch agrees with the published form.
+	for _, x := range []float64{1e-9, 1e-7, 1e-6, 1.2e-7} {
+		f, _ := irbLaw(x)
+		if !near(40+3*260*f, irbHand(300, 40, 1, x), 1e-8) {
+			t.Errorf("irbLaw(%g) = %g, published form %g", x, 40+3*260*f, irbHand(300, 40, 1, x))
+		}
+	}
+}
+
+func TestBaseResistanceJacobian(t *testing.T) {
+	// ∂rbb/∂vbe and ∂rbb/∂vbc against central differences, with qb (no
+	// IRB) and with the IRB law, NPN and PNP.
+	for _, typ := range []netlist.ModelType{netlist.NPN, netlist.PNP} {
+		for _, irb := range []float64{0, 2e-5} {
+			m := model(typ)
+			for k, v := range map[string]float64{"IS": 1e-14, "BF": 80, "VAF": 40, "VAR": 10, "IKF": 0.01, "IKR": 0.002,
+				"ISE": 1e-13, "NE": 1.6, "RB": 500, "RBM": 25, "IRB": irb} {
+				with(m, k, v)
+			}
+			b, err := NewBJT(m, 1, 40, Options{TNom: 27, GMin: 1e-12})
+			if err != nil {
+				t.Fatal(err)
+			}
+			s := b.Polarity.Sign()
+			const h = 1e-7
+			for _, v := range [][2]float64{{0.6, -3}, {0.72, -0.5}, {0.8, 0.6}} {
+				vbe, vbc := s*v[0], s*v[1]
+				ev := b.Eval(vbe, vbc)
+				dbe := (b.Eval(vbe+h, vbc).RBB - b.Eval(vbe-h, vbc).RBB) / (2 * h)
+				dbc := (b.Eval(vbe, vbc+h).RBB - b.Eval(vbe, vbc-h).RBB) / (2 * h)
+				if math.Abs(ev.DRBBdVBE-dbe) > 1e-5*math.Abs(dbe)+1e-4 || math.Abs(ev.DRBBdVBC-dbc) > 1e-5*math.Abs(dbc)+1e-4 {
+					t.Errorf("%s IRB %g at %v: ∂rbb/∂vbe %g ∂rbb/∂vbc %g; differences %g %g", typ, irb, v, ev.DRBBdVBE, ev.DRBBdVBC, dbe, dbc)
+				}
+			}
+		}
+	}
+}
+
+func TestGMINInsideJunctions(t *testing.T) {
+	// Cut-off leakage at VBE = 0, VCB = 10 V with GMIN inside each junction
+	// current (SPICE3 placement; T. Quarles, The SPICE3 Implementation
+	// Guide, UCB/ERL M89/44, 1989, from memory): Ibc = −IS − GMIN·10 V,
+	// Ibe = 0, q1 = 1/(1 + VCB/VAF), so
+	//   IC = (IS + GMIN·VCB)·(1/qb + 1/BR) = (1e-15 + 1e-11)·(1.2 + 1) = 22.0022 pA
+	//   IB = −(IS + GMIN·VCB)/BR = −10.001 pA
+	// with IS = 1e-15 A, GMIN = 1e-12 S, VAF = 50 V, BR = 1.
+	m := model(netlist.NPN)
+	for k, v := range map[string]float64{"IS": 1e-15, "BF": 100, "BR": 1, "VAF": 50} {
+		with(m, k, v)
+	}
+	b, err := NewBJT(m, 1, 27, Options{TNom: 27, GMin: 1e-12})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ev := b.Eval(0, -10)
+	is := 1e-15 * (1 - math.Exp(-10/b.VT)) // IS·(1 − exp(−10/vt)), equal to IS in float64
+	wantIC := (is + 1e-12*10) * (1.2 + 1)
+	if !near(ev.IC, wantIC, 1e-12) || math.Abs(ev.IC-22.0022e-12) > 1e-17 {
+		t.Errorf("cut-off IC at VCB 10 V = %g, want %g (22.0022 pA)", ev.IC, wantIC)
+	}
+	if want := -(is + 1e-11); !near(ev.IB, want, 1e-12) {
+		t.Errorf("cut-off IB = %g, want %g", ev.IB, want)
+	}
+}
+
+func TestDiodeRecombinationAndHighInjection(t *testing.T) {
+	// The extended junction-diode DC equations (SPICE-class, from memory):
+	// I = Inrm·Kinj + Irec·Kgen + GMIN·vd with Inrm = IS·(exp(vd/(N·vt)) − 1),
+	// Kinj = √(IKF/(IKF + Inrm)), Irec = ISR·(exp(vd/(NR·vt)) − 1),
+	// Kgen = ((1 − vd/VJ)² + 0.005)^(M/2).
+	m := model(netlist.Diode)
+	for k, v := range map[string]float64{"IS": 1e-14, "N": 1, "ISR": 1e-10, "NR": 2, "IKF": 0.01, "VJ": 0.7, "M": 0.4} {
+		with(m, k, v)
+	}
+	d, err := NewDiode(m, 1, 27, Options{TNom: 27, GMin: 1e-12})
+	if err != nil {
+		t.Fatal(err)
+	}
+	vt := 1.380649e-23 * 300.15 / 1.602176634e-19
+	hand := func(v float64) float64 {
+		inrm := 1e-14 * (math.Exp(v/vt) - 1)
+		irec := 1e-10 * (math.Exp(v/(2*vt)) - 1)
+		kgen := math.Pow((1-v/0.7)*(1-v/0.7)+0.005, 0.4/2)
+		return inrm*math.Sqrt(0.01/(0.01+inrm)) + irec*kgen + 1e-12*v
+	}
+	// 0.3 V: recombination dominates; 0.8 V: past the IKF knee.
+	for _, v := range []float64{0.3, 0.8, -2} {
+		i, g := d.Eval(v)
+		if !near(i, hand(v), 1e-10) {
+			t.Errorf("I(%g) = %g, by hand %g", v, i, hand(v))
+		}
+		const h = 1e-7
+		if fd := (hand(v+h) - hand(v-h)) / (2 * h); math.Abs(g-fd) > 1e-5*math.Abs(fd)+1e-12 {
+			t.Errorf("g(%g) = %g, difference %g", v, g, fd)
+		}
+	}
+	// High injection: well above IKF the current doubles per 2·N·vt·ln 2,
+	// i.e. grows as √(IKF·IS)·exp(vd/(2·N·vt)).
+	i1, _ := d.Eval(0.9)
+	i2, _ := d.Eval(0.9 + 2*vt*math.Log(2))
+	if r := i2 / i1; math.Abs(r-2) > 0.02 {
+		t.Errorf("current ratio over 2·vt·ln2 above IKF = %g, want about 2", r)
+	}
+}

@@ -15,6 +15,11 @@ type DiodeParams struct {
 	RS   float64 // series resistance, ohm (default 0)
 	BV   float64 // reverse breakdown voltage, V, positive (default none: +Inf)
 	IBV  float64 // reverse current at VD = −BV, A (default 1e-3)
+	ISR  float64 // recombination saturation current, A (default 0: none)
+	NR   float64 // recombination emission coefficient (default 2)
+	IKF  float64 // high-injection knee current, A (default none: +Inf)
+	VJ   float64 // junction potential of the recombination generation factor, V (default 1)
+	M    float64 // grading coefficient of the generation factor (default 0.5)
 	EG   float64 // energy gap, eV (default 1.11)
 	XTI  float64 // temperature exponent of IS (default 3)
 	TNOM float64 // nominal temperature, °C (default 27)
@@ -22,12 +27,15 @@ type DiodeParams struct {
 
 // DefaultDiodeParams returns the SPICE-class defaults listed in DiodeParams.
 func DefaultDiodeParams() DiodeParams {
-	return DiodeParams{IS: 1e-14, N: 1, RS: 0, BV: math.Inf(1), IBV: 1e-3, EG: 1.11, XTI: 3, TNOM: 27}
+	return DiodeParams{IS: 1e-14, N: 1, RS: 0, BV: math.Inf(1), IBV: 1e-3, ISR: 0, NR: 2, IKF: math.Inf(1),
+		VJ: 1, M: 0.5, EG: 1.11, XTI: 3, TNOM: 27}
 }
 
 // DiodeParamsOf reads the DC diode parameters of m. Absent parameters take
-// their defaults (TNOM defaults to tnom, °C); a BV of zero means no
-// breakdown. Parameters the DC model does not use are ignored.
+// their defaults (TNOM defaults to tnom, °C); a BV or IKF of zero means
+// none. Parameters the DC model does not use (TT, CJO, FC, KF, AF) are
+// ignored; VJ and M enter the DC current only through the recombination
+// term, when ISR is given.
 func DiodeParamsOf(m *netlist.Model, tnom float64) (DiodeParams, error) {
 	d := DefaultDiodeParams()
 	r := &reader{m: m}
@@ -37,6 +45,11 @@ func DiodeParamsOf(m *netlist.Model, tnom float64) (DiodeParams, error) {
 		RS:   r.nonNegative("RS", d.RS),
 		BV:   r.infinite("BV"),
 		IBV:  r.positive("IBV", d.IBV),
+		ISR:  r.nonNegative("ISR", d.ISR),
+		NR:   r.positive("NR", d.NR),
+		IKF:  r.infinite("IKF"),
+		VJ:   r.positive("VJ", d.VJ),
+		M:    r.nonNegative("M", d.M),
 		EG:   r.positive("EG", d.EG),
 		XTI:  r.get("XTI", d.XTI),
 		TNOM: r.get("TNOM", tnom),
@@ -53,14 +66,16 @@ type Diode struct {
 	Temp float64
 	// Scaled are the parameters at Temp and Area (Nagel 1975):
 	//
-	//	IS = Area · IS · exp( ((T/Tnom − 1)·EG/vt(T) + XTI·ln(T/Tnom)) / N )
-	//	IBV = Area · IBV;  RS = RS / Area
+	//	IS  = Area · IS  · exp( ((T/Tnom − 1)·EG/vt(T) + XTI·ln(T/Tnom)) / N )
+	//	ISR = Area · ISR · exp( ((T/Tnom − 1)·EG/vt(T) + XTI·ln(T/Tnom)) / NR )
+	//	IBV, IKF times Area;  RS = RS / Area
 	//
 	// BV is not temperature scaled.
 	Scaled DiodeParams
 	// VT is the thermal voltage at Temp, V.
 	VT float64
-	// GMin is the conductance across the junction, S.
+	// GMin is the conductance inside the junction current, S (GMIN·vd is
+	// added to the diode current, as SPICE3 does).
 	GMin float64
 
 	vcrit, vcritBV float64
@@ -86,6 +101,8 @@ func NewDiode(m *netlist.Model, area, tempC float64, opt Options) (*Diode, error
 	s := p
 	s.IS = area * p.IS * satFactor(t, tnom, p.EG, p.XTI, p.N)
 	s.IBV = area * p.IBV
+	s.ISR = area * p.ISR * satFactor(t, tnom, p.EG, p.XTI, p.NR)
+	s.IKF = area * p.IKF
 	s.RS = p.RS / area
 	if !(s.IS > 0) || math.IsInf(s.IS, 0) {
 		return nil, fmt.Errorf("model %s: saturation current at %g °C is out of range (IS %s)", m.Name, tempC, rangeText(s.IS))
@@ -97,16 +114,44 @@ func NewDiode(m *netlist.Model, area, tempC float64, opt Options) (*Diode, error
 }
 
 // Eval returns the current from anode to cathode through the junction and
-// its conductance at junction voltage vd:
+// its conductance at junction voltage vd. With the extended junction-diode
+// DC equations of SPICE-class simulators (from memory: a normal current
+// with a high-injection factor, a recombination current with a generation
+// factor, and reverse breakdown)
 //
-//	I = IS·(exp(vd/(N·vt)) − 1) − IBV·(exp(−(vd + BV)/(N·vt)) − exp(−BV/(N·vt))) + GMIN·vd
+//	Inrm = IS·(exp(vd/(N·vt)) − 1)          Kinj = √(IKF/(IKF + Inrm))    (1 without IKF)
+//	Irec = ISR·(exp(vd/(NR·vt)) − 1)        Kgen = ((1 − vd/VJ)² + 0.005)^(M/2)
+//	I = Inrm·Kinj + Irec·Kgen − IBV·(exp(−(vd + BV)/(N·vt)) − exp(−BV/(N·vt))) + GMIN·vd
 //
-// The breakdown term is present only when BV is set; it carries IBV at
-// vd = −BV and vanishes at vd = 0. Exponentials are guarded as in BJT.Eval.
+// Well above IKF the normal current grows as √(IKF·Inrm), with twice the
+// emission coefficient (high injection). The recombination term is
+// present only when ISR is set, the breakdown term only when BV is set
+// (it carries IBV at vd = −BV and vanishes at vd = 0). Exponentials are
+// guarded as in BJT.Eval.
 func (d *Diode) Eval(vd float64) (i, g float64) {
 	p := &d.Scaled
 	nvt := p.N * d.VT
 	i, g = junction(p.IS, vd, nvt)
+	if !math.IsInf(p.IKF, 1) {
+		// Kinj = √(IKF/(IKF + Inrm)); Inrm ≥ −IS keeps the sum positive
+		// while IS < IKF, and it is floored for the rest.
+		s := math.Max(p.IKF+i, 1e-3*p.IKF)
+		k := math.Sqrt(p.IKF / s)
+		dk := 0.0
+		if p.IKF+i > 1e-3*p.IKF {
+			dk = -k / (2 * s)
+		}
+		i, g = i*k, g*k+i*dk*g
+	}
+	if p.ISR > 0 {
+		ir, gr := junction(p.ISR, vd, p.NR*d.VT)
+		u := 1 - vd/p.VJ
+		w := u*u + 0.005
+		kg := math.Pow(w, p.M/2)
+		dkg := p.M / 2 * kg / w * 2 * u * (-1 / p.VJ)
+		i += ir * kg
+		g += gr*kg + ir*dkg
+	}
 	if !math.IsInf(p.BV, 1) {
 		e, de := limExp(-(vd + p.BV) / nvt)
 		i -= p.IBV * (e - math.Exp(-p.BV/nvt))

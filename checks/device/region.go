@@ -1,5 +1,7 @@
 package device
 
+import "math"
+
 // Region is the operating region of a bipolar transistor.
 type Region string
 
@@ -40,9 +42,36 @@ const (
 //	cutoff      vbe < OnVoltage (and vbc < OnVoltage), or ic < CutoffCurrent
 //	active      otherwise: vbe ≥ OnVoltage, vbc < OnVoltage, vce > SatVCE, ic ≥ CutoffCurrent
 func Classify(p Polarity, vbe, vbc, ic float64) Region {
+	return classify(p, vbe, vbc, ic, OnVoltage, OnVoltage)
+}
+
+// Region classifies the transistor's operating point like Classify, with
+// the on-thresholds moved with the device temperature so that a junction
+// counts as conducting from the same current at any temperature: the B-E
+// threshold is the voltage at which the ideal B-E current IS(T)·(exp(v/(NF·vt(T))) − 1)
+// equals what it carries at OnVoltage at the model's TNOM (likewise B-C
+// with NR). At TNOM the thresholds are OnVoltage; they fall about 2 mV/K
+// as IS rises (Nagel 1975 scaling), so a hot junction that conducts is not
+// taken for one in cut-off.
+func (b *BJT) Region(vbe, vbc, ic float64) Region {
+	return classify(b.Polarity, vbe, vbc, ic, b.onBE, b.onBC)
+}
+
+// onThreshold returns the junction voltage at which a junction of
+// emission-scaled thermal voltage nvt and saturation current is carries
+// the current ion.
+func onThreshold(nvt, is, ion float64) float64 {
+	v := nvt * math.Log1p(ion/is)
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return OnVoltage
+	}
+	return v
+}
+
+func classify(p Polarity, vbe, vbc, ic, onBE, onBC float64) Region {
 	s := p.Sign()
 	vbe, vbc, ic = s*vbe, s*vbc, s*ic
-	beOn, bcOn := vbe >= OnVoltage, vbc >= OnVoltage
+	beOn, bcOn := vbe >= onBE, vbc >= onBC
 	switch {
 	case beOn && (bcOn || vbe-vbc <= SatVCE):
 		return Saturation

@@ -58,7 +58,7 @@ type ConvergenceError struct {
 
 func (e *ConvergenceError) Error() string {
 	if e.Pos.IsValid() || e.Pos.File != "" {
-		return e.Pos.String() + ": " + e.Detail()
+		return e.Pos.String() + ": error: " + e.Detail()
 	}
 	return e.Detail()
 }
@@ -166,7 +166,13 @@ func (s *System) newWork(opt Options) (*work, error) {
 	}
 	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
 	if w.lin == nil {
-		w.lin = NewDenseLU()
+		if s.lin == nil {
+			s.lin = NewLU()
+		}
+		w.lin = s.lin
+	}
+	if r, ok := w.lin.(interface{ Repivot() }); ok {
+		r.Repivot()
 	}
 	if w.bjt, w.dio, err = s.devices(opt, st); err != nil {
 		return nil, err
@@ -387,7 +393,7 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 		}
 		m := &matrixSink{lin: w.lin, rhs: w.rhs}
 		w.stampLinear(m)
-		w.stampDevices(m, nil, true)
+		w.stampDevices(m, x, true)
 		w.stampPoly(m, x, true)
 		w.iters++
 		if err := w.lin.Factor(); err != nil {

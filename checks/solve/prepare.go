@@ -56,6 +56,9 @@ type System struct {
 	// ground by GMIN; notes says so.
 	leaks []int
 	notes netlist.ErrorList
+	// lin is the System's own linear solver, used when Options.Linear is
+	// nil: its pattern and ordering are the System's, whatever else ran.
+	lin *LU
 }
 
 // Notes returns the notes Prepare made about the circuit (nodes tied to
@@ -91,10 +94,11 @@ func nodeCount(k netlist.Kind) (lo, hi int, ok bool) {
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-// MaxUnknowns bounds the size of the system Prepare accepts: the dense LU
-// holds n*n float64s (2000 unknowns: 32 MB for the matrix), so memory stays
-// bounded for any input. A sparse factorisation will lift it.
-const MaxUnknowns = 2000
+// MaxUnknowns bounds the size of the system Prepare accepts. The sparse
+// LU needs memory in proportion to the entries of the matrix and its
+// factors (a few hundred bytes an unknown on circuit matrices), so the
+// bound keeps one netlist's solve within a few hundred megabytes.
+const MaxUnknowns = 250000
 
 // Prepare checks the structure of c and numbers its unknowns. Every
 // problem found is reported, located at its element, in a netlist.ErrorList
@@ -122,7 +126,7 @@ func Prepare(c *netlist.Circuit) (*System, error) {
 	s.number()
 	if s.n > MaxUnknowns {
 		errs.Addf(netlist.Pos{File: c.File, Line: 1, Col: 1},
-			"the circuit has %d unknowns (node voltages and branch currents), more than the %d the dense linear solver takes; split the netlist into smaller blocks",
+			"the circuit has %d unknowns (node voltages and branch currents), more than the %d the linear solver takes; split the netlist into smaller blocks",
 			s.n, MaxUnknowns)
 		return nil, errs.Err()
 	}

@@ -118,7 +118,7 @@ func (s *System) result(w *work, x []float64, m Method) *Result {
 			Temp: b.Temp, Pos: el.e.Pos,
 		}
 		op.Power = op.VCE*op.IC + op.VBE*op.IB
-		op.Region = device.Classify(b.Polarity, op.JunctionVBE, op.JunctionVBC, op.IC)
+		op.Region = b.Region(op.JunctionVBE, op.JunctionVBC, op.IC)
 		r.BJTs = append(r.BJTs, op)
 	}
 	for j, el := range s.diodes {

@@ -97,6 +97,7 @@ func (w *work) stampLinear(k sink) {
 			branch(k, n[0], n[1], el.br)
 		case 'V':
 			branch(k, n[0], n[1], el.br)
+			k.a(el.br, el.br, 0) // the place of an opened source's leak
 			k.b(el.br, w.lambda*el.value)
 		case 'I':
 			// SPICE: the source current flows from n+ through the source to n−.
@@ -130,8 +131,12 @@ func (w *work) stampLinear(k sink) {
 		}
 	}
 	for i, el := range w.s.bjts {
-		p := &w.bjt[i].Scaled
+		b := w.bjt[i]
+		p := &b.Scaled
 		for t, r := range [3]float64{p.RC, p.RB, p.RE} {
+			if t == 1 && b.Params.VariableRB() {
+				continue // bias-dependent: stamped with the device (baseResistor)
+			}
 			if r > 0 {
 				conductance(k, el.nodes[t], el.inner[t], 1/r)
 			}
@@ -140,10 +145,10 @@ func (w *work) stampLinear(k sink) {
 	for _, i := range w.s.leaks {
 		k.a(i, i, w.st.gmin)
 	}
-	if w.gshunt > 0 {
-		for i := 0; i < w.s.nNodes; i++ {
-			k.a(i, i, w.gshunt)
-		}
+	// The shunts are stamped (as zeros) in every solve, so that the
+	// matrix pattern does not depend on whether GMIN stepping ran.
+	for i := 0; i < w.s.nNodes; i++ {
+		k.a(i, i, w.gshunt)
 	}
 }
 
@@ -191,6 +196,9 @@ func (w *work) stampDevices(k sink, x []float64, lin bool) {
 				k.mag(i, m)
 			}
 		}
+		if w.bjt[j].Params.VariableRB() {
+			w.baseResistor(k, j, x, lin)
+		}
 	}
 	for j, el := range w.s.diodes {
 		i, g := w.evD[j][0], w.evD[j][1]
@@ -227,4 +235,46 @@ func bjtRow(k sink, row int, sign float64, t terminals, i, dbe, dbc, vbe0, vbc0 
 		ieq -= dbe*vbe0 + dbc*vbc0
 	}
 	k.b(row, -sign*ieq)
+}
+
+// baseResistor stamps the bias-dependent base resistance of transistor j
+// (device.BJT.Eval: rbb from qb, or the IRB law from IB): the current
+// i = (V(b) − V(b'))/rbb(vbe', vbc') from the base terminal b to the
+// internal base b', linearised as
+//
+//	i ≈ gx·u + u0·(∂gx/∂vbe·(vbe − vbe0) + ∂gx/∂vbc·(vbc − vbc0)),   gx = 1/rbb,
+//
+// with u = V(b) − V(b') and ∂gx/∂v = −gx²·∂rbb/∂v, the junction voltages
+// taken at their last evaluation. Without lin only i is stamped, with its
+// rounding scale.
+func (w *work) baseResistor(k sink, j int, x []float64, lin bool) {
+	el, ev := w.s.bjts[j], &w.evB[j]
+	bx, bi := el.nodes[1], el.inner[1]
+	c, e := el.inner[0], el.inner[2]
+	u := volt(x, bx) - volt(x, bi)
+	gx := 1 / ev.RBB
+	dbe, dbc := -gx*gx*ev.DRBBdVBE, -gx*gx*ev.DRBBdVBC
+	i := gx * u
+	ieq := i
+	if lin {
+		conductance(k, bx, bi, gx)
+		// u0·∂gx/∂v terms: vbe = V(b') − V(e'), vbc = V(b') − V(c').
+		for _, r := range [2]struct {
+			row  int
+			sign float64
+		}{{bx, 1}, {bi, -1}} {
+			k.a(r.row, bi, r.sign*u*(dbe+dbc))
+			k.a(r.row, e, -r.sign*u*dbe)
+			k.a(r.row, c, -r.sign*u*dbc)
+		}
+		vbe0, vbc0 := w.jb[j][0], w.jb[j][1]
+		ieq = -u * (dbe*vbe0 + dbc*vbc0)
+	}
+	k.b(bx, -ieq)
+	k.b(bi, ieq)
+	if !lin {
+		m := math.Abs(i) + gx*(math.Abs(volt(x, bx))+math.Abs(volt(x, bi)))
+		k.mag(bx, m)
+		k.mag(bi, m)
+	}
 }

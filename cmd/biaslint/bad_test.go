@@ -114,7 +114,7 @@ var badCases = []badCase{
 	netlistCase("limit-errors", 2, "(and 10 more errors)"),
 	{name: "limit-file-size", gen: genBigFile, code: 2, want: []string{"$TMP/big.cir:1:1:", "limit"}},
 	{name: "limit-line-length", gen: genLongLine, code: 2, want: []string{"$TMP/line.cir:3:1:", "limit of 1048576 bytes"}},
-	{name: "limit-solver-size", gen: genLadder, code: 2, want: []string{"$TMP/ladder.cir:1:1:", "2102 unknowns", "2000"}},
+	{name: "limit-solver-size", gen: genArray, code: 2, want: []string{"$TMP/array.cir:1:1:", "270000 unknowns", "250000"}},
 	{name: "limit-include-depth", gen: genIncludeChain, code: 2, want: []string{"$TMP/inc16.inc:2:10:", "limit of 16"}},
 	// Annotations: legal netlists whose annotations are odd give located warnings.
 	netlistCase("annotation-bad", 0, ":8:11:", "4.7.7k", "Q9", "amplifier", "*@colour"),
@@ -249,16 +249,17 @@ func genLongLine(t *testing.T, dir string) []string {
 	return []string{"check", path}
 }
 
-// genLadder writes a resistor ladder of 2100 sections: 2102 unknowns,
-// past the dense solver's 2000.
-func genLadder(t *testing.T, dir string) []string {
+// genArray writes 45000 transistors whose model has RB, RC and RE, each
+// on nets of its own: three node and three internal-node unknowns each,
+// 270000 in all, past the solver's 250000, in a file of about 1.3 MB.
+func genArray(t *testing.T, dir string) []string {
 	var b strings.Builder
-	b.WriteString("Attenuator ladder too large for the dense solver\nV1 n0 0 1\n")
-	for i := 0; i < 2100; i++ {
-		fmt.Fprintf(&b, "R%d n%d n%d 1k\n", i, i, i+1)
+	b.WriteString("Transistor array too large for the solver\n.model QR NPN(RB=100 RC=10 RE=1)\n")
+	for i := 0; i < 45000; i++ {
+		fmt.Fprintf(&b, "Q%d c%d b%d e%d QR\n", i, i, i, i)
 	}
-	b.WriteString("RL n2100 0 1k\n.end\n")
-	path := filepath.Join(dir, "ladder.cir")
+	b.WriteString(".end\n")
+	path := filepath.Join(dir, "array.cir")
 	writeFile(t, path, []byte(b.String()))
 	return []string{"op", path}
 }
@@ -364,7 +365,7 @@ func TestReportNonFinite(t *testing.T) {
 	for _, v := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
 		f := rules.Finding{Rule: "r", Severity: rules.SeverityError, Device: "Q1", Message: "m",
 			Value: v, Limit: v, HasLimit: true, Values: []rules.Quantity{{Value: v}}}
-		r := &report.Report{Files: []report.File{{Path: "x.cir", Findings: []rules.Finding{f}}}, Version: version}
+		r := &report.Report{Files: []report.File{{Path: "x.cir", Findings: []rules.Finding{f}}}, Version: toolVersion()}
 		for name, write := range map[string]func(*bytes.Buffer) error{
 			"json":  func(b *bytes.Buffer) error { return report.JSON(b, r) },
 			"sarif": func(b *bytes.Buffer) error { return report.SARIF(b, r) },

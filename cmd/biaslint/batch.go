@@ -121,10 +121,10 @@ func expand(args []string) ([]argFile, error) {
 			return nil
 		})
 		if err != nil {
-			return fmt.Errorf("%s: cannot read directory: %v", dir, err)
+			return fmt.Errorf("%s: error: cannot read directory: %v", dir, err)
 		}
 		if len(found) == 0 {
-			return fmt.Errorf("%s: no netlist files (%s) in this directory", dir, strings.Join(NetlistExts, " "))
+			return fmt.Errorf("%s: error: no netlist files (%s) in this directory", dir, strings.Join(NetlistExts, " "))
 		}
 		sort.Strings(found)
 		for _, p := range found {
@@ -135,6 +135,13 @@ func expand(args []string) ([]argFile, error) {
 		return nil
 	}
 	for _, a := range args {
+		if a == "-" { // standard input, read once however often named
+			root, searched = "", false
+			if err := add(a); err != nil {
+				return nil, err
+			}
+			continue
+		}
 		fi, err := os.Stat(a)
 		root, searched = "", false
 		switch {
@@ -151,10 +158,10 @@ func expand(args []string) ([]argFile, error) {
 		default:
 			matches, gerr := filepath.Glob(a)
 			if gerr != nil {
-				return nil, fmt.Errorf("%s: bad pattern: %v", a, gerr)
+				return nil, fmt.Errorf("%s: error: bad pattern: %v", a, gerr)
 			}
 			if len(matches) == 0 {
-				return nil, fmt.Errorf("%s: no file matches", a)
+				return nil, fmt.Errorf("%s: error: no file matches", a)
 			}
 			sort.Strings(matches)
 			for _, m := range matches {

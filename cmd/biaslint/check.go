@@ -22,9 +22,6 @@ import (
 	"github.com/biaslint/biaslint/rulesets"
 )
 
-// version is the tool version written into SARIF reports.
-const version = "0.1.0"
-
 var (
 	rulesetFlag = &cli.StringSliceFlag{
 		Name:  "ruleset",
@@ -71,7 +68,9 @@ func checkCommand() *cli.Command {
 			&cli.IntFlag{Name: "monte-carlo", Usage: "add `N` Monte Carlo runs drawing every resistor and supply within its tolerance"},
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
+			configFlag, noConfigFlag,
 		},
+		Before: applyProjectFile,
 		Action: runCheck,
 	}
 }
@@ -152,7 +151,7 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 	}
 	src, err := os.ReadFile(path)
 	if err != nil {
-		return nil, badInput(fmt.Errorf("%s: cannot read parts library: %v", path, err))
+		return nil, badInput(fmt.Errorf("%s: error: cannot read parts library: %v", path, err))
 	}
 	user, err := rulesets.LoadParts(path, src)
 	if err != nil {
@@ -201,7 +200,7 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 			return nil, badInput(err)
 		}
 	}
-	run.report.Version = version
+	run.report.Version = toolVersion()
 	run.report.RuleSet = set
 	opt, err := worstCaseOptions(c, set)
 	if err != nil {
@@ -275,7 +274,7 @@ func (run *checkRun) one(c *cli.Context, circ *netlist.Circuit, opt checks.Optio
 	}
 	var waivers []rules.Waiver
 	for _, w := range an.Board.Waivers {
-		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos})
+		waivers = append(waivers, rules.Waiver{Rule: w.Rule, Device: w.Device, Reason: w.Reason, Pos: w.Pos, External: w.External})
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
@@ -304,6 +303,12 @@ func runCheck(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	switch {
+	case len(run.report.Failed()) > 0: // some file could not be judged (finish says which)
+		run.report.ExitCode = exitBadInput
+	case run.report.AtOrAbove(failOn):
+		run.report.ExitCode = exitFindings
+	}
 	var out bytes.Buffer
 	switch format {
 	case "json":
@@ -328,8 +333,8 @@ func runCheck(c *cli.Context) error {
 	if err := run.finish(c, format == "text" && c.String("output") == "" && c.String("summary") != "csv"); err != nil {
 		return err
 	}
-	if run.report.AtOrAbove(failOn) {
-		return &statusError{code: exitFindings}
+	if run.report.ExitCode != exitOK {
+		return &statusError{code: run.report.ExitCode}
 	}
 	return nil
 }

@@ -147,15 +147,15 @@ func TestHostileIncludes(t *testing.T) {
 		extra         []string // flags before the file
 		want          string
 	}{
-		{"hostile-absolute", "$TMP/outside/secret.txt", nil, `:2:10: include "$TMP/outside/secret.txt" is outside the folders`},
-		{"hostile-dotdot", "../outside/secret.txt", nil, `:2:10: include "../outside/secret.txt" is outside the folders`},
-		{"hostile-symlink", "link.lib", nil, `:2:10: include "link.lib" is a symbolic link to a file outside`},
-		{"hostile-fifo", "pipe.lib", nil, `:2:10: include "pipe.lib" is a named pipe (FIFO)`},
-		{"hostile-dev-zero", "/dev/zero", nil, `:2:10: include "/dev/zero" is outside the folders`},
-		{"hostile-dev-zero-allowed", "/dev/zero", []string{"--include-dir", "/dev"}, `:2:10: include "/dev/zero" is a device`},
-		{"hostile-folder", "models", nil, `:2:10: include "models" is a folder`},
-		{"hostile-binary", "bin.lib", nil, `top.cir:2:10: file "$TMP/board/bin.lib" is not text`},
-		{"hostile-allowed-not-netlist", "../outside/secret.txt", []string{"--include-dir", "$TMP/outside"}, `:2:10: file "$TMP/outside/secret.txt" does not read as a netlist`},
+		{"hostile-absolute", "$TMP/outside/secret.txt", nil, `:2:10: error: include "$TMP/outside/secret.txt" is outside the folders`},
+		{"hostile-dotdot", "../outside/secret.txt", nil, `:2:10: error: include "../outside/secret.txt" is outside the folders`},
+		{"hostile-symlink", "link.lib", nil, `:2:10: error: include "link.lib" is a symbolic link to a file outside`},
+		{"hostile-fifo", "pipe.lib", nil, `:2:10: error: include "pipe.lib" is a named pipe (FIFO)`},
+		{"hostile-dev-zero", "/dev/zero", nil, `:2:10: error: include "/dev/zero" is outside the folders`},
+		{"hostile-dev-zero-allowed", "/dev/zero", []string{"--include-dir", "/dev"}, `:2:10: error: include "/dev/zero" is a device`},
+		{"hostile-folder", "models", nil, `:2:10: error: include "models" is a folder`},
+		{"hostile-binary", "bin.lib", nil, `top.cir:2:10: error: file "$TMP/board/bin.lib" is not text`},
+		{"hostile-allowed-not-netlist", "../outside/secret.txt", []string{"--include-dir", "$TMP/outside"}, `:2:10: error: file "$TMP/outside/secret.txt" does not read as a netlist`},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			if strings.HasPrefix(tc.include, "/dev/") {
@@ -222,7 +222,7 @@ func TestHostileFolder(t *testing.T) {
 	if strings.Contains(all, "secret-line") || strings.Contains(all, "root:x") {
 		t.Errorf("the link's target leaks:\n%s", all)
 	}
-	if !strings.Contains(all, "alice.cir:1:1: netlist is a symbolic link to a file outside the folders being checked") ||
+	if !strings.Contains(all, "alice.cir:1:1: error: netlist is a symbolic link to a file outside the folders being checked") ||
 		!strings.Contains(out, `bob.cir,"Buzzer driver`) {
 		t.Errorf("want alice.cir refused and bob.cir checked:\n%s", all)
 	}

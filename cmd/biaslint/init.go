@@ -19,7 +19,8 @@ const (
 const initRuleSet = `# A team rule set for biaslint, written by 'biaslint init'.
 #
 # It starts from the built-in default rules (extends: default) and changes
-# only what is written here. Use it with
+# only what is written here. The project file biaslint.yaml beside it
+# names it, so plain 'biaslint check board.cir' uses it; elsewhere use
 #
 #     biaslint check --ruleset biaslint-team.yaml board.cir
 #
@@ -81,7 +82,9 @@ const initBoard = `## A board file for biaslint, written by 'biaslint init'.
 ##
 ## It says what the netlist cannot: the ambient the board runs in, the
 ## ratings of its parts, the role of a transistor, the power rating of a
-## resistor, and waivers with their reasons. Use it with
+## resistor, and waivers with their reasons. The project file
+## biaslint.yaml beside it names it, so plain 'biaslint check board.cir'
+## uses it; elsewhere use
 ##
 ##     biaslint check --board board.yaml board.cir
 ##
@@ -112,9 +115,10 @@ ambient: 25
 func initCommand() *cli.Command {
 	return &cli.Command{
 		Name:  "init",
-		Usage: "write a starter team rule set (" + initRuleSetFile + ") and a board-file template (" + initBoardFile + ") here",
-		Description: "Refuses, writing nothing, when either file already exists. Both files are commented; " +
-			"edit them, then pass --ruleset " + initRuleSetFile + " and --board " + initBoardFile + " to check.",
+		Usage: "write a project file (" + ProjectFile + "), a starter team rule set (" + initRuleSetFile + ") and a board-file template (" + initBoardFile + ") here",
+		Description: "Refuses, writing nothing, when any of the files already exists. All three are commented. " +
+			ProjectFile + " names the other two, and check, report, plot, rules and explain pick it up in this folder " +
+			"and every folder below it (up to the repository root), so plain 'biaslint check' uses them.",
 		Action: runInit,
 	}
 }
@@ -123,7 +127,7 @@ func runInit(c *cli.Context) error {
 	if c.NArg() > 0 {
 		return badInput(errors.New("biaslint init: takes no arguments; it writes into the current directory"))
 	}
-	files := []struct{ name, text string }{{initRuleSetFile, initRuleSet}, {initBoardFile, initBoard}}
+	files := []struct{ name, text string }{{ProjectFile, projectFileTemplate()}, {initRuleSetFile, initRuleSet}, {initBoardFile, initBoard}}
 	for _, f := range files {
 		if _, err := os.Lstat(f.name); err == nil {
 			return badInput(fmt.Errorf("biaslint init: %s already exists; nothing written (move it away to start afresh)", f.name))
@@ -149,6 +153,8 @@ func runInit(c *cli.Context) error {
 			return badInput(fmt.Errorf("biaslint init: cannot write %s: %v", f.name, err))
 		}
 	}
-	fmt.Fprintf(c.App.Writer, "wrote %s and %s\n", initRuleSetFile, initBoardFile)
+	fmt.Fprintf(c.App.Writer, "wrote %s, %s and %s\n", ProjectFile, initRuleSetFile, initBoardFile)
+	fmt.Fprintf(c.App.Writer, "%s names the other two; 'biaslint check' picks it up in this folder and the folders below it\n"+
+		"(up to the repository root), so the team rule set and the board file apply without flags.\n", ProjectFile)
 	return nil
 }

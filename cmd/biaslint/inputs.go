@@ -3,6 +3,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"strconv"
@@ -19,20 +20,48 @@ var demoFlag = &cli.BoolFlag{
 	Usage: "run on the demo board built into the binary instead of FILE arguments",
 }
 
-// input is one netlist to read: a file on disk, or the embedded demo.
+// input is one netlist to read: a file on disk, the embedded demo, or
+// text already read (standard input), in src.
 type input struct {
 	name string
 	opts *netlist.LoadOptions
+	src  []byte
 }
 
 func (in input) read() (*netlist.Circuit, error) {
+	if in.src != nil {
+		return netlist.ReadSource(in.name, in.src, in.opts)
+	}
 	return netlist.Read(in.name, in.opts)
 }
 
 // load parses the input without flattening it, so a caller can tell a
 // library file from a circuit first.
 func (in input) load() (*netlist.Deck, error) {
+	if in.src != nil {
+		return netlist.Parse(in.name, in.src, in.opts)
+	}
 	return netlist.Load(in.name, in.opts)
+}
+
+// stdinName is how a netlist read from standard input ("-" as FILE) is
+// named in positions and reports. Its includes are resolved from the
+// current directory, as filepath.Dir of this name is ".".
+const stdinName = "<stdin>"
+
+// stdin is where "-" reads from; tests replace it.
+var stdin io.Reader = os.Stdin
+
+// readStdin reads standard input, up to the netlist file-size limit.
+func readStdin() ([]byte, error) {
+	src, err := io.ReadAll(io.LimitReader(stdin, netlist.DefaultMaxFileSize+1))
+	if err != nil {
+		return nil, fmt.Errorf("%s: error: cannot read standard input: %v", stdinName, err)
+	}
+	if len(src) > netlist.DefaultMaxFileSize {
+		return nil, fmt.Errorf("%s:1:1: error: standard input is larger than the limit of %d bytes (16 MiB)", stdinName, netlist.DefaultMaxFileSize)
+	}
+	return src, nil
 }
 
 // fileArgs returns a command's FILE arguments: all of them, except for
@@ -76,7 +105,18 @@ func inputsOf(c *cli.Context) ([]input, error) {
 			// A folder argument: its files may include from all of it.
 			o.IncludeDirs = append([]string{f.root}, dirs...)
 		}
-		ins = append(ins, input{name: f.path, opts: o})
+		if f.path != "-" {
+			ins = append(ins, input{name: f.path, opts: o})
+			continue
+		}
+		src, err := readStdin()
+		if err != nil {
+			return nil, badInput(err)
+		}
+		if src == nil {
+			src = []byte{}
+		}
+		ins = append(ins, input{name: stdinName, opts: o, src: src})
 	}
 	return ins, nil
 }

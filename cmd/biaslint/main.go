@@ -119,9 +119,11 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		Usage: "solve and judge the DC bias of every BJT in a netlist",
 		Description: "biaslint reads SPICE-syntax netlists, solves each bipolar transistor's DC operating point " +
 			"(modified nodal analysis, Newton-Raphson, Gummel-Poon equations) and reports it.",
+		Version:         toolVersion(),
 		Writer:          stdout,
 		ErrWriter:       stderr,
-		HideHelpCommand: true,
+		HideHelpCommand: true, // ours is helpCommand
+		Action:          noCommand,
 		Commands: []*cli.Command{
 			checkCommand(),
 			opCommand(),
@@ -130,6 +132,9 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			reportCommand(),
 			plotCommand(),
 			initCommand(),
+			versionCommand(),
+			completionCommand(),
+			helpCommand(),
 		},
 		// Usage errors are exit status 2, like bad input.
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
@@ -137,6 +142,9 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		},
 		ExitErrHandler: func(c *cli.Context, err error) {},
 	}
+	// --version prints what "biaslint version" prints.
+	cli.VersionFlag = &cli.BoolFlag{Name: "version", Usage: "print biaslint's version and the commit it was built from"}
+	cli.VersionPrinter = func(c *cli.Context) { fmt.Fprintln(c.App.Writer, readBuildInfo()) }
 	for _, cmd := range app.Commands {
 		name := cmd.Name
 		cmd.OnUsageError = func(c *cli.Context, err error, isSubcommand bool) error {

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
 
@@ -98,9 +97,11 @@ func runOp(c *cli.Context) error {
 	case "json":
 		enc := json.NewEncoder(&out)
 		enc.SetIndent("", "  ")
+		enc.SetEscapeHTML(false)
 		if err := enc.Encode(struct {
-			Results []opFile `json:"results"`
-		}{results}); err != nil {
+			FormatVersion int      `json:"format_version"`
+			Results       []opFile `json:"results"`
+		}{report.FormatVersion, results}); err != nil {
 			return badInput(err)
 		}
 	default:
@@ -180,7 +181,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		if len(r.BJTs) == 0 {
 			fmt.Fprintln(w, "  no bipolar transistors")
 		} else {
-			tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+			tw := report.NewTabWriter(w)
 			fmt.Fprintln(tw, "  transistor\tmodel\tregion\tVBE\tVCE\tIC\tIB\tIC/IB\tpower\tTj")
 			for _, q := range r.BJTs {
 				tjText := "-"
@@ -196,7 +197,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			tw.Flush()
 		}
 		w.WriteString("\n")
-		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		tw := report.NewTabWriter(w)
 		fmt.Fprintln(tw, "  node\tvoltage")
 		for _, n := range r.nodeOrder {
 			fmt.Fprintf(tw, "  %s\t%s\n", report.Printable(n), units.Format(r.Nodes[n], "V"))

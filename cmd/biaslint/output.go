@@ -22,7 +22,7 @@ var (
 	colorFlag = &cli.StringFlag{
 		Name:  "color",
 		Value: "auto",
-		Usage: "colour in text output: auto (only on a terminal, off when NO_COLOR is set), always, never",
+		Usage: "colour in text output: auto (only on a terminal, and not when NO_COLOR is set to anything but the empty string), always, never",
 	}
 	formatFlagUsage = "output format"
 	outputFlag      = &cli.StringFlag{
@@ -57,13 +57,17 @@ func useColor(c *cli.Context, w io.Writer) (bool, error) {
 	case "never":
 		return false, nil
 	case "auto", "":
-		if _, ok := os.LookupEnv("NO_COLOR"); ok {
-			return false, nil
-		}
 		f, ok := w.(*os.File)
-		return ok && (isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd())), nil
+		return autoColor(os.Getenv("NO_COLOR"), ok && (isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd()))), nil
 	}
 	return false, badInput(fmt.Errorf("biaslint: --color must be auto, always or never, not %q", c.String("color")))
+}
+
+// autoColor is --color auto: colour on a terminal, unless NO_COLOR is set
+// to anything but the empty string (no-color.org: an empty NO_COLOR
+// does not count). --color always still wins over NO_COLOR.
+func autoColor(noColor string, terminal bool) bool {
+	return terminal && noColor == ""
 }
 
 // palette returns colour functions that are identity when colour is off.

@@ -20,6 +20,7 @@ func plotCommand() *cli.Command {
 			"DEVICE is the flat name as in reports (X1.Q2).",
 		ArgsUsage: "DEVICE FILE",
 		Flags:     analysisFlags(),
+		Before:    applyProjectFile,
 		Action:    runPlot,
 	}
 }

@@ -34,6 +34,7 @@ func reportCommand() *cli.Command {
 		ArgsUsage: "FILE...",
 		Flags: append(analysisFlags(),
 			&cli.StringFlag{Name: "title", Usage: "heading of the page (default \"biaslint review\")"}),
+		Before: applyProjectFile,
 		Action: runReport,
 	}
 }

@@ -119,7 +119,7 @@ func TestInit(t *testing.T) {
 	dir := t.TempDir()
 	t.Chdir(dir)
 	out, errs, code := runCLI(t, "init")
-	if code != exitOK || !strings.Contains(out, "wrote biaslint-team.yaml and board.yaml") {
+	if code != exitOK || !strings.Contains(out, "wrote biaslint.yaml, biaslint-team.yaml and board.yaml") {
 		t.Fatalf("init: exit %d, %q %q", code, out, errs)
 	}
 	// The rule set loads, extends the default and tightens it.

@@ -15,8 +15,9 @@ func rulesCommand() *cli.Command {
 	return &cli.Command{
 		Name:  "rules",
 		Usage: "list the active rules and parameters, after extends and overrides",
-		Flags: []cli.Flag{rulesetFlag, setFlag, outputFlag,
+		Flags: []cli.Flag{rulesetFlag, setFlag, outputFlag, configFlag, noConfigFlag,
 			&cli.BoolFlag{Name: "facts", Usage: "list the facts rule expressions can use, per subject, instead"}},
+		Before: applyProjectFile,
 		Action: func(c *cli.Context) error {
 			var out bytes.Buffer
 			if c.Bool("facts") {
@@ -94,7 +95,8 @@ func explainCommand() *cli.Command {
 		Name:      "explain",
 		Usage:     "print a rule's rationale, condition and fix",
 		ArgsUsage: "RULE",
-		Flags:     []cli.Flag{rulesetFlag, setFlag, outputFlag},
+		Flags:     []cli.Flag{rulesetFlag, setFlag, outputFlag, configFlag, noConfigFlag},
+		Before:    applyProjectFile,
 		Action: func(c *cli.Context) error {
 			if c.NArg() != 1 {
 				return badInput(fmt.Errorf("biaslint explain: name one rule id (see 'biaslint rules')"))

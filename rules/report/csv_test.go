@@ -94,7 +94,7 @@ func TestSummaryUnchecked(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := "file,title,transistors,errors,warnings,notes,waived,top_rule,status,problem\n" +
-		"bad.cir,,0,0,0,0,0,,input-errors,\"bad.cir:3:8: bad value \"\"4.7.7k\"\" (and 1 more)\"\n" +
+		"bad.cir,,0,0,0,0,0,,input-errors,\"bad.cir:3:8: error: bad value \"\"4.7.7k\"\" (and 1 more)\"\n" +
 		"lib.spi,,0,0,0,0,0,,library,\"library (only .subckt, .model, .param or .lib definitions, no circuit): listed, not checked on its own\"\n" +
 		"good.cir,,0,0,0,0,0,,checked,\n"
 	if b.String() != want {

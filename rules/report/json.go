@@ -60,21 +60,34 @@ type jsonFile struct {
 	Summary     Counts        `json:"summary"`
 }
 
-// jsonBJT is one transistor's nominal operating point (forward-referenced
-// facts, SI units) and its hottest junction over every case. A value that
-// is not known (a missing rating) is left out.
+// jsonBJT is one transistor in the case that matters for its role
+// (forward-referenced facts, SI units): a switch at its on level (the
+// nominal-corner drive level where it carries the most collector current),
+// every other role at the nominal point; with its worst case over every
+// case and its hottest junction. A value that is not known (a missing
+// rating) is left out.
 type jsonBJT struct {
-	Name      string   `json:"name"`
-	Model     string   `json:"model"`
-	Polarity  string   `json:"polarity"`
-	Role      string   `json:"role"`
-	Region    string   `json:"region"`
-	VCE       *float64 `json:"vce,omitempty"`
-	IC        *float64 `json:"ic,omitempty"`
-	Power     *float64 `json:"power,omitempty"`
-	Tj        *float64 `json:"tj,omitempty"`
-	TjMax     *float64 `json:"tj_worst,omitempty"`
-	TjMaxCase string   `json:"tj_worst_case,omitempty"`
+	Name       string   `json:"name"`
+	Model      string   `json:"model"`
+	Polarity   string   `json:"polarity"`
+	Role       string   `json:"role"`
+	RoleFrom   string   `json:"role_from"`
+	RoleReason string   `json:"role_reason"`
+	Case       string   `json:"case"`
+	Region     string   `json:"region"`
+	VCE        *float64 `json:"vce,omitempty"`
+	IC         *float64 `json:"ic,omitempty"`
+	Power      *float64 `json:"power,omitempty"`
+	Tj         *float64 `json:"tj,omitempty"`
+	// Worst is the quantity that matters most for the role at its worst
+	// case: "beta" (a conducting switch's largest forced beta), "vce" (a
+	// linear stage's smallest VCE) or "ic" (the largest IC of a push-pull
+	// half, a clamp or a diode).
+	Worst      string   `json:"worst,omitempty"`
+	WorstValue *float64 `json:"worst_value,omitempty"`
+	WorstCase  string   `json:"worst_case,omitempty"`
+	TjMax      *float64 `json:"tj_worst,omitempty"`
+	TjMaxCase  string   `json:"tj_worst_case,omitempty"`
 }
 
 func finite(v float64) *float64 {
@@ -84,39 +97,103 @@ func finite(v float64) *float64 {
 	return &v
 }
 
-// bjtsOf lists the transistors of an analysis for the JSON report.
+// switchOnIC is the collector current above which a switch counts as on
+// when its worst forced beta is sought, A (the default rule set's
+// switch_on_current).
+const switchOnIC = 100e-6
+
+// bjtsOf lists the transistors of an analysis for the reports, each in
+// the case that matters for its role (see jsonBJT).
 func bjtsOf(an *checks.Analysis) []jsonBJT {
 	out := []jsonBJT{}
 	if an == nil || len(an.Cases) == 0 {
 		return out
 	}
 	at := map[string]int{}
+	shown := map[string]float64{}
 	hottest := map[string]float64{}
-	for i, t := range an.Cases[0].Transistors {
-		at[t.Name] = i
-		out = append(out, jsonBJT{Name: t.Name, Model: t.Model, Polarity: t.Polarity, Role: t.Role, Region: t.Region,
-			VCE: finite(t.VCE), IC: finite(t.IC), Power: finite(t.Power), Tj: finite(t.Tj)})
+	worst := map[string]float64{}
+	row := func(t *checks.Transistor, c *checks.Case) jsonBJT {
+		return jsonBJT{Name: t.Name, Model: t.Model, Polarity: t.Polarity, Role: t.Role, RoleFrom: t.RoleFrom,
+			RoleReason: t.RoleReason, Case: rules.CaseName(c.Scenario, c.Corner), Region: t.Region,
+			VCE: finite(t.VCE), IC: finite(t.IC), Power: finite(t.Power), Tj: finite(t.Tj)}
 	}
-	for _, c := range an.Cases {
-		for _, t := range c.Transistors {
+	nom := &an.Cases[0]
+	for i := range nom.Transistors {
+		t := &nom.Transistors[i]
+		at[t.Name] = i
+		out = append(out, row(t, nom))
+		shown[t.Name] = t.IC
+	}
+	for ci := range an.Cases {
+		c := &an.Cases[ci]
+		for k := range c.Transistors {
+			t := &c.Transistors[k]
 			i, ok := at[t.Name]
-			if !ok || math.IsNaN(t.Tj) || math.IsInf(t.Tj, 0) {
+			if !ok {
 				continue
 			}
-			if h, seen := hottest[t.Name]; !seen || t.Tj > h {
-				hottest[t.Name] = t.Tj
-				out[i].TjMax, out[i].TjMaxCase = finite(t.Tj), rules.CaseName(c.Scenario, c.Corner)
+			// A switch at its on level: the first nominal-corner drive level
+			// that carries materially more collector current (half as much
+			// again) than the case shown so far; a switch already on at
+			// nominal stays there.
+			if t.Role == checks.RoleSwitch && c.Kind == checks.KindLevel && c.Corner == "" && t.IC > 1.5*shown[t.Name] && t.IC > switchOnIC {
+				shown[t.Name] = t.IC
+				w, wv, wc, tm, tmc := out[i].Worst, out[i].WorstValue, out[i].WorstCase, out[i].TjMax, out[i].TjMaxCase
+				out[i] = row(t, c)
+				out[i].Worst, out[i].WorstValue, out[i].WorstCase, out[i].TjMax, out[i].TjMaxCase = w, wv, wc, tm, tmc
+			}
+			if !math.IsNaN(t.Tj) && !math.IsInf(t.Tj, 0) {
+				// Junctions within a microkelvin are a tie: the earlier case
+				// stays, so rounding-level differences do not move the label.
+				if h, seen := hottest[t.Name]; !seen || t.Tj > h+1e-6 {
+					hottest[t.Name] = t.Tj
+					out[i].TjMax, out[i].TjMaxCase = finite(t.Tj), rules.CaseName(c.Scenario, c.Corner)
+				}
+			}
+			if c.Kind == checks.KindSwing || c.Kind == checks.KindOpen {
+				continue // the worst case of the bias, not of a signal or a fault
+			}
+			var q string
+			var v float64
+			switch {
+			case t.Role == checks.RoleSwitch:
+				if !(t.IC > switchOnIC) || math.IsNaN(t.Beta) {
+					continue
+				}
+				q, v = "beta", t.Beta
+			case t.Linear:
+				q, v = "vce", -t.VCE // smallest VCE
+			default:
+				q, v = "ic", t.IC
+			}
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				continue
+			}
+			if w, seen := worst[t.Name]; !seen || v > w {
+				worst[t.Name] = v
+				if q == "vce" {
+					v = -v
+				}
+				out[i].Worst, out[i].WorstValue, out[i].WorstCase = q, finite(v), rules.CaseName(c.Scenario, c.Corner)
 			}
 		}
 	}
 	return out
 }
 
+// FormatVersion is the version of the JSON report shapes (check and op),
+// written as "format_version". It changes when a field is removed or
+// changes meaning; fields may be added within a version. The shapes are
+// described by the JSON Schemas in rules/report/schema.
+const FormatVersion = 1
+
 type jsonReport struct {
-	RuleSet string     `json:"ruleset"`
-	Ambient float64    `json:"ambient"`
-	Results []jsonFile `json:"results"`
-	Summary Counts     `json:"summary"`
+	FormatVersion int        `json:"format_version"`
+	RuleSet       string     `json:"ruleset"`
+	Ambient       float64    `json:"ambient"`
+	Results       []jsonFile `json:"results"`
+	Summary       Counts     `json:"summary"`
 }
 
 func toJSON(f rules.Finding) jsonFinding {
@@ -151,7 +228,7 @@ func toJSON(f rules.Finding) jsonFinding {
 // findings (with reasons), input notes and counts, then the run's counts.
 // Values are SI; the shape is documented in the README.
 func JSON(w io.Writer, r *Report) error {
-	out := jsonReport{Ambient: r.Ambient, Results: []jsonFile{}}
+	out := jsonReport{FormatVersion: FormatVersion, Ambient: r.Ambient, Results: []jsonFile{}}
 	if r.RuleSet != nil {
 		out.RuleSet = r.RuleSet.Name
 	}
@@ -178,5 +255,6 @@ func JSON(w io.Writer, r *Report) error {
 	out.Summary = r.Counts()
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	return enc.Encode(out)
 }

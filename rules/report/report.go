@@ -94,6 +94,9 @@ type Report struct {
 	Ambient float64
 	// Version is the tool's version, for SARIF.
 	Version string
+	// ExitCode is the exit status the run ends with (0, or 1 when a
+	// finding reached --fail-on), for SARIF's invocation record.
+	ExitCode int
 }
 
 // Counts tallies findings by severity; waived findings count only as waived.

@@ -1,6 +1,8 @@
 package report
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"io"
 	"net/url"
@@ -59,13 +61,29 @@ type sarifSuppression struct {
 }
 
 type sarifResult struct {
-	RuleID       string             `json:"ruleId"`
-	RuleIndex    int                `json:"ruleIndex"`
-	Level        string             `json:"level"`
-	Message      sarifText          `json:"message"`
-	Locations    []sarifLocation    `json:"locations"`
-	Suppressions []sarifSuppression `json:"suppressions,omitempty"`
-	Properties   map[string]any     `json:"properties,omitempty"`
+	RuleID              string             `json:"ruleId"`
+	RuleIndex           int                `json:"ruleIndex"`
+	Level               string             `json:"level"`
+	Message             sarifText          `json:"message"`
+	Locations           []sarifLocation    `json:"locations"`
+	PartialFingerprints map[string]string  `json:"partialFingerprints,omitempty"`
+	Suppressions        []sarifSuppression `json:"suppressions,omitempty"`
+	Properties          map[string]any     `json:"properties,omitempty"`
+}
+
+// sarifNotification is a message about the run itself: here a warning or
+// note about reading the input.
+type sarifNotification struct {
+	Level     string          `json:"level"`
+	Message   sarifText       `json:"message"`
+	Locations []sarifLocation `json:"locations,omitempty"`
+}
+
+// sarifInvocation records how the run ended.
+type sarifInvocation struct {
+	ExecutionSuccessful        bool                `json:"executionSuccessful"`
+	ExitCode                   int                 `json:"exitCode"`
+	ToolExecutionNotifications []sarifNotification `json:"toolExecutionNotifications,omitempty"`
 }
 
 type sarifLog struct {
@@ -83,51 +101,62 @@ type sarifRun struct {
 			Rules          []sarifRule `json:"rules"`
 		} `json:"driver"`
 	} `json:"tool"`
+	Invocations []sarifInvocation `json:"invocations"`
 	Results     []sarifResult     `json:"results"`
-	Invocations []sarifInvocation `json:"invocations,omitempty"`
 }
 
-// sarifInvocation carries the problems with the run's inputs as tool
-// execution notifications: a file that could not be judged (its located
-// errors, level error), a file left out on purpose (level note), and the
-// warnings about reading a file (a case that could not be judged, say).
-type sarifInvocation struct {
-	ExecutionSuccessful bool                `json:"executionSuccessful"`
-	Notifications       []sarifNotification `json:"toolExecutionNotifications,omitempty"`
-}
+// FingerprintKey names biaslint's entry in a SARIF result's
+// partialFingerprints; the suffix is the version of the recipe.
+const FingerprintKey = "biaslintFinding/v1"
 
-type sarifNotification struct {
-	Level     string          `json:"level"`
-	Message   sarifText       `json:"message"`
-	Locations []sarifLocation `json:"locations,omitempty"`
-}
-
-// fileNotifications lists the notifications of the files that were not
-// checked, in report order; nil when every file was.
-func fileNotifications(r *Report) []sarifNotification {
-	var out []sarifNotification
-	at := func(file string, line, col int) []sarifLocation {
-		var loc sarifLocation
-		loc.PhysicalLocation.ArtifactLocation.URI = fileURI(file)
-		if line > 0 {
-			loc.PhysicalLocation.Region = &sarifRegion{StartLine: line, StartColumn: col}
-		}
-		return []sarifLocation{loc}
+// Fingerprint identifies a finding across runs for code-review systems:
+// the SHA-256 (first 128 bits, hex) of the rule id, the device's flat
+// name and its nets, lower-cased and NUL-separated. Line numbers, values
+// and messages are left out on purpose, so the same finding keeps its
+// fingerprint when lines above it are edited or its value moves.
+func Fingerprint(f rules.Finding) string {
+	h := sha256.New()
+	for _, part := range append([]string{f.Rule, f.Device}, f.Nets...) {
+		h.Write([]byte(strings.ToLower(part)))
+		h.Write([]byte{0})
 	}
+	return hex.EncodeToString(h.Sum(nil)[:16])
+}
+
+// physical locates a file position for SARIF; the region is left out
+// when the position names no line.
+func physical(file string, p netlist.Pos) sarifLocation {
+	var loc sarifLocation
+	loc.PhysicalLocation.ArtifactLocation.URI = fileURI(file)
+	if p.Line > 0 {
+		loc.PhysicalLocation.Region = &sarifRegion{StartLine: p.Line, StartColumn: p.Col}
+	}
+	return loc
+}
+
+// ruleHelp is a rule's help text: the fix, the condition it fires on and
+// where to read more.
+func ruleHelp(ru *rules.Rule) string {
+	var parts []string
+	if fix := strings.TrimSpace(ru.Fix); fix != "" {
+		parts = append(parts, "Fix: "+strings.Join(strings.Fields(fix), " "))
+	}
+	if ru.When != "" {
+		parts = append(parts, "Fires when: "+strings.Join(strings.Fields(ru.When), " "))
+	}
+	parts = append(parts, "Run 'biaslint explain "+ru.ID+"' for the rationale, the value against the limit and the parameters.")
+	return strings.Join(parts, "\n\n")
+}
+
+// statusNotifications lists, in report order, the notifications of the
+// files that were not checked: each located error of a file that could not
+// be judged (level error), or one line with its status (a file left out on
+// purpose, level note). The notes about reading each file are added by
+// SARIF itself.
+func statusNotifications(r *Report) []sarifNotification {
+	var out []sarifNotification
 	for i := range r.Files {
 		f := &r.Files[i]
-		// Warnings about the input (a case that was not judged, an odd
-		// annotation) go with the file's notifications.
-		for _, e := range f.Notes {
-			if e.Severity != netlist.SevWarning {
-				continue
-			}
-			file := e.Pos.File
-			if file == "" {
-				file = f.Path
-			}
-			out = append(out, sarifNotification{Level: "warning", Message: sarifText{e.Msg}, Locations: at(file, e.Pos.Line, e.Pos.Col)})
-		}
 		if f.Status.Of() == StatusChecked {
 			continue
 		}
@@ -136,7 +165,8 @@ func fileNotifications(r *Report) []sarifNotification {
 			if f.Status.Failed() {
 				lvl = "error"
 			}
-			out = append(out, sarifNotification{Level: lvl, Message: sarifText{f.Path + ": " + StatusText(f)}, Locations: at(f.Path, 0, 0)})
+			out = append(out, sarifNotification{Level: lvl, Message: sarifText{f.Path + ": " + StatusText(f)},
+				Locations: []sarifLocation{physical(f.Path, netlist.Pos{})}})
 			continue
 		}
 		for _, e := range f.Errors {
@@ -144,7 +174,7 @@ func fileNotifications(r *Report) []sarifNotification {
 			if file == "" {
 				file = f.Path
 			}
-			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: at(file, e.Pos.Line, e.Pos.Col)})
+			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)}})
 		}
 	}
 	return out
@@ -169,16 +199,20 @@ func firstSentence(s string) string {
 }
 
 // SARIF writes the findings as one SARIF 2.1.0 run: the active rules'
-// metadata in the driver's rules array (rationale, fix, default level,
-// condition), one result per finding located at the device's netlist line,
-// and waived findings as results with an in-source suppression carrying the
-// waiver's reason.
+// metadata in the driver's rules array (rationale, help with the fix and
+// condition, default level), one result per finding located at the
+// device's netlist line with a partial fingerprint (see Fingerprint),
+// waived findings as results with a suppression carrying the waiver's
+// reason (inSource for a netlist annotation, external for a board file),
+// and one invocation with the exit code and the input warnings and notes
+// as tool-execution notifications.
 func SARIF(w io.Writer, r *Report) error {
 	var run sarifRun
 	run.Tool.Driver.Name = "biaslint"
 	run.Tool.Driver.Version = r.Version
 	run.Tool.Driver.Rules = []sarifRule{}
 	run.Results = []sarifResult{}
+	inv := sarifInvocation{ExecutionSuccessful: true, ExitCode: r.ExitCode}
 	index := map[string]int{}
 	addRule := func(sr sarifRule) int {
 		if i, ok := index[sr.ID]; ok {
@@ -199,9 +233,7 @@ func SARIF(w io.Writer, r *Report) error {
 			if ru.Rationale != "" {
 				sr.FullDescription = &sarifText{strings.TrimSpace(ru.Rationale)}
 			}
-			if ru.Fix != "" {
-				sr.Help = &sarifText{strings.TrimSpace(ru.Fix)}
-			}
+			sr.Help = &sarifText{ruleHelp(ru)}
 			addRule(sr)
 		}
 	}
@@ -210,17 +242,14 @@ func SARIF(w io.Writer, r *Report) error {
 			idx := addRule(sarifRule{ID: x.Rule, ShortDescription: sarifText{x.Rule},
 				DefaultConfiguration: sarifConfig{Level: level(x.Severity)}})
 			res := sarifResult{RuleID: x.Rule, RuleIndex: idx, Level: level(x.Severity), Message: sarifText{x.Message}}
-			var loc sarifLocation
 			file := x.Pos.File
 			if file == "" {
 				file = f.Path
 			}
-			loc.PhysicalLocation.ArtifactLocation.URI = fileURI(file)
-			if x.Pos.Line > 0 {
-				loc.PhysicalLocation.Region = &sarifRegion{StartLine: x.Pos.Line, StartColumn: x.Pos.Col}
-			}
+			loc := physical(file, x.Pos)
 			loc.LogicalLocations = []sarifLogical{{Name: x.Device, Kind: "element"}}
 			res.Locations = []sarifLocation{loc}
+			res.PartialFingerprints = map[string]string{FingerprintKey: Fingerprint(x)}
 			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner)}
 			if x.HasLimit {
 				props["value"], props["limit"], props["unit"] = x.Value, x.Limit, x.Unit
@@ -230,16 +259,30 @@ func SARIF(w io.Writer, r *Report) error {
 			}
 			res.Properties = props
 			if x.Waived {
-				res.Suppressions = []sarifSuppression{{Kind: "inSource", Justification: x.WaiverReason}}
+				kind := "inSource"
+				if x.WaiverExternal {
+					kind = "external"
+				}
+				res.Suppressions = []sarifSuppression{{Kind: kind, Justification: x.WaiverReason}}
 			}
 			run.Results = append(run.Results, res)
 		}
+		for _, n := range f.Notes {
+			file := n.Pos.File
+			if file == "" {
+				file = f.Path
+			}
+			note := sarifNotification{Level: n.Severity.String(), Message: sarifText{n.Msg}}
+			note.Locations = []sarifLocation{physical(file, n.Pos)}
+			inv.ToolExecutionNotifications = append(inv.ToolExecutionNotifications, note)
+		}
 	}
-	if ns := fileNotifications(r); len(ns) > 0 {
-		run.Invocations = []sarifInvocation{{ExecutionSuccessful: len(r.Failed()) == 0, Notifications: ns}}
-	}
+	inv.ToolExecutionNotifications = append(inv.ToolExecutionNotifications, statusNotifications(r)...)
+	inv.ExecutionSuccessful = len(r.Failed()) == 0
+	run.Invocations = []sarifInvocation{inv}
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	return enc.Encode(sarifLog{Schema: SARIFSchema, Version: "2.1.0", Runs: []sarifRun{run}})
 }
 

@@ -188,9 +188,10 @@ func alsoIn(cases []string) string {
 	return fmt.Sprintf("%s and %d more %s", strings.Join(cases[:maxAlsoIn], ", "), more, word)
 }
 
-// writeTransistors prints the transistor table of one file: the nominal
-// operating point (forward-referenced) and the hottest junction over every
-// case, with the case it occurs in.
+// writeTransistors prints the transistor table of one file: each
+// transistor's role and the case that matters for it (a switch at its on
+// level, every other role at nominal; see bjtsOf), its worst case and the
+// hottest junction over every case; then why each has its role.
 func writeTransistors(ew *errWriter, f *File) {
 	bjts := bjtsOf(f.Analysis)
 	if len(bjts) == 0 {
@@ -198,7 +199,7 @@ func writeTransistors(ew *errWriter, f *File) {
 	}
 	var b bytes.Buffer
 	tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "  transistor\trole\tregion\tIC\tVCE\tpower\thottest Tj")
+	fmt.Fprintln(tw, "  transistor\trole\tcase\tregion\tIC\tVCE\tpower\tworst case\thottest Tj")
 	val := func(v *float64, unit string) string {
 		if v == nil {
 			return "-"
@@ -210,7 +211,24 @@ func writeTransistors(ew *errWriter, f *File) {
 		if t.TjMaxCase != "" {
 			hot += " (" + t.TjMaxCase + ")"
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\t%s\t%s\n", t.Name, t.Role, t.Region, val(t.IC, "A"), val(t.VCE, "V"), val(t.Power, "W"), hot)
+		worst := "-"
+		switch t.Worst {
+		case "beta":
+			worst = "forced beta " + val(t.WorstValue, "")
+		case "vce":
+			worst = "VCE " + val(t.WorstValue, "V")
+		case "ic":
+			worst = "IC " + val(t.WorstValue, "A")
+		}
+		if t.WorstCase != "" {
+			worst += " (" + t.WorstCase + ")"
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n", t.Name, t.Role, t.Case, t.Region,
+			val(t.IC, "A"), val(t.VCE, "V"), val(t.Power, "W"), worst, hot)
+	}
+	fmt.Fprintln(tw)
+	for _, t := range bjts {
+		fmt.Fprintf(tw, "  %s\t%s: %s\n", t.Name, t.Role, t.RoleReason)
 	}
 	tw.Flush()
 	ew.printf("\n%s", b.String())
