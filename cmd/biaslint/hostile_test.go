@@ -237,3 +237,25 @@ func TestIncludeDirFlag(t *testing.T) {
 		}
 	}
 }
+
+// TestProjectIncludeDir: include-dir in the project file allows a folder,
+// named relative to the project file, as --include-dir does.
+func TestProjectIncludeDir(t *testing.T) {
+	top := projectTree(t, map[string]string{
+		"models/parts.lib":       ".model SHARED NPN (IS=1e-14 BF=200)\n",
+		"boards/bench/stage.cir": "Stage using the shared models\n.include ../../models/parts.lib\nV1 vcc 0 12\nR1 vcc b 82k\nR2 b 0 15k\nRC vcc c 4.7k\nRE e 0 1k\nQ1 c b e SHARED\n.end\n",
+	})
+	t.Chdir(filepath.Join(top, "boards", "bench"))
+	if _, errs, code := runCLI(t, "check", "stage.cir"); code != exitBadInput || !strings.Contains(errs, "is outside the folders") {
+		t.Fatalf("without the project setting: exit %d, %s", code, errs)
+	}
+	writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte("include-dir: [models]\n"))
+	if _, errs, code := runCLI(t, "check", "stage.cir"); code == exitBadInput {
+		t.Errorf("with include-dir in the project file: exit 2: %s", errs)
+	}
+	// A folder that does not exist is reported as --include-dir would be.
+	writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte("include-dir: no-such-folder\n"))
+	if _, errs, code := runCLI(t, "check", "stage.cir"); code != exitBadInput || !strings.Contains(errs, "not a folder") {
+		t.Errorf("a missing folder: exit %d, %s", code, errs)
+	}
+}

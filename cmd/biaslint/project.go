@@ -49,8 +49,9 @@ var (
 // resolved against the project file's folder.
 var (
 	projectKeys = []string{"ruleset", "set", "only", "skip", "parts", "board", "fail-on", "ambient",
-		"ambient-range", "corners", "thermal", "monte-carlo", "seed", "distribution"}
-	pathKeys = map[string]bool{"parts": true, "board": true}
+		"ambient-range", "corners", "thermal", "monte-carlo", "seed", "distribution",
+		"include-dir", "file-timeout", "file-elements", "file-mib"}
+	pathKeys = map[string]bool{"parts": true, "board": true, "include-dir": true}
 )
 
 // findProjectFile looks for ProjectFile in dir and its parents, stopping
@@ -163,7 +164,7 @@ func readProjectFile(path, shown string) ([]projectSetting, error) {
 					s.values = append(s.values, v.Content[j].Value+"="+val)
 				}
 			}
-		case v.Kind == yaml.SequenceNode && (key == "ruleset" || key == "only" || key == "skip"):
+		case v.Kind == yaml.SequenceNode && (key == "ruleset" || key == "only" || key == "skip" || key == "include-dir"):
 			for _, item := range v.Content {
 				if val, ok := scalar(item); ok {
 					s.values = append(s.values, val)
