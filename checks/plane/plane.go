@@ -1,6 +1,7 @@
 package plane
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"sort"
@@ -433,7 +434,12 @@ func caseName(c checks.Case) string {
 // case's derated power, and the saturation edge at its nominal
 // temperature. A load line that cannot be found leaves Load nil with the
 // reason in LoadNote; a transistor not in the analysis is an error.
-func Of(an *checks.Analysis, name string) (Plane, error) {
+func Of(an *checks.Analysis, name string) (Plane, error) { return OfContext(context.Background(), an, name) }
+
+// OfContext is Of whose load-line solves stop when ctx is done
+// (solve.Options.Context; nil for never): the plane is then returned
+// without a load line, with the reason in LoadNote.
+func OfContext(ctx context.Context, an *checks.Analysis, name string) (Plane, error) {
 	if an == nil || len(an.Cases) == 0 || an.Circuit == nil {
 		return Plane{}, fmt.Errorf("no analysis")
 	}
@@ -462,7 +468,7 @@ func Of(an *checks.Analysis, name string) (Plane, error) {
 	}
 	pl.Swings = trajectories(pl.Points)
 
-	opt := solve.Options{DeviceTemp: map[string]float64{}}
+	opt := solve.Options{DeviceTemp: map[string]float64{}, Context: ctx}
 	devTemp := nom.Ambient
 	if r := nom.Solution; r != nil {
 		opt.Temp = solve.Temp(r.Temp)
@@ -503,13 +509,20 @@ func Of(an *checks.Analysis, name string) (Plane, error) {
 
 // All computes the plane of every transistor of the nominal case, in
 // order.
-func All(an *checks.Analysis) []Plane {
+func All(an *checks.Analysis) []Plane { return AllContext(context.Background(), an) }
+
+// AllContext is All that stops when ctx is done (nil for never): the
+// planes made so far are returned, and ctx.Err() says it stopped.
+func AllContext(ctx context.Context, an *checks.Analysis) []Plane {
 	if an == nil || len(an.Cases) == 0 {
 		return nil
 	}
 	var out []Plane
 	for _, t := range an.Cases[0].Transistors {
-		if pl, err := Of(an, t.Name); err == nil {
+		if ctx != nil && ctx.Err() != nil {
+			break
+		}
+		if pl, err := OfContext(ctx, an, t.Name); err == nil {
 			out = append(out, pl)
 		}
 	}
