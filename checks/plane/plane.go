@@ -434,7 +434,9 @@ func caseName(c checks.Case) string {
 // case's derated power, and the saturation edge at its nominal
 // temperature. A load line that cannot be found leaves Load nil with the
 // reason in LoadNote; a transistor not in the analysis is an error.
-func Of(an *checks.Analysis, name string) (Plane, error) { return OfContext(context.Background(), an, name) }
+func Of(an *checks.Analysis, name string) (Plane, error) {
+	return OfContext(context.Background(), an, name)
+}
 
 // OfContext is Of whose load-line solves stop when ctx is done
 // (solve.Options.Context; nil for never): the plane is then returned
