@@ -118,7 +118,21 @@ func withinAny(path string, dirs []string) bool {
 }
 
 // allowed returns the folders for messages.
-func (p *includePolicy) allowed() string { return strings.Join(p.shown, ", ") }
+// Only the netlist's own folder is named: the others are the checking
+// machine's settings (a course's model folder, say), and the message goes
+// back to whoever wrote the netlist.
+func (p *includePolicy) allowed() string {
+	if len(p.shown) == 0 {
+		return "none"
+	}
+	s := p.shown[0]
+	if n := len(p.shown) - 1; n == 1 {
+		s += " and 1 more folder"
+	} else if n > 1 {
+		s += fmt.Sprintf(" and %d more folders", n)
+	}
+	return s
+}
 
 // check returns the path to open for path, or a refusal. In file-system
 // mode the path returned has its links resolved, so the file checked is the

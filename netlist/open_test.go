@@ -79,6 +79,9 @@ func TestIncludePolicy(t *testing.T) {
 		{"fifo", "pipe.lib", nil, []string{":2:10:", "named pipe (FIFO), not a regular file"}},
 		{"folder", "sub", nil, []string{":2:10:", "a folder, not a regular file"}},
 		{"dev zero outside", "/dev/zero", nil, []string{":2:10:", "is outside the folders"}},
+		// Folders other than the netlist's own are counted, not named: they
+		// are the checking machine's settings.
+		{"other folders not named", "/etc/passwd", []string{outside, filepath.Join(root, "board", "sub")}, []string{"/board and 2 more folders)", "to allow it, add /etc to LoadOptions.IncludeDirs"}},
 		{"dev zero allowed", "/dev/zero", []string{"/dev"}, []string{":2:10:", "a device, not a regular file"}},
 		{"dev null allowed", "/dev/null", []string{"/dev"}, []string{":2:10:", "a device, not a regular file"}},
 	} {
@@ -105,6 +108,9 @@ func TestIncludePolicy(t *testing.T) {
 				return
 			}
 			mustMention(t, err, tc.want...)
+			if len(tc.dirs) > 0 && strings.Contains(err.Error(), tc.dirs[0]+")") {
+				t.Errorf("the message names an allowed folder other than the netlist's: %v", err)
+			}
 			if strings.Contains(err.Error(), "confidential") || strings.Contains(err.Error(), "root:x") {
 				t.Errorf("the message repeats the refused file's text: %v", err)
 			}
