@@ -95,7 +95,7 @@ func withBudget(path string, d time.Duration, check func(ctx context.Context) er
 
 // overBudget is the report entry of a file whose check ran out of time.
 func overBudget(path, title string, d time.Duration) (report.File, error) {
-	why := fmt.Sprintf("checking took longer than the limit of %v per file (--file-timeout)", d)
+	why := fmt.Sprintf("checking took longer than the limit of %v per file (raise it with --file-timeout)", d)
 	f := report.File{Path: path, Title: title, Status: report.StatusOverBudget, StatusDetail: why,
 		Errors: []*netlist.Error{{Pos: netlist.Pos{File: path, Line: 1, Col: 1}, Msg: "not checked: " + why}}}
 	return f, fmt.Errorf("%s:1:1: error: not checked: %s", path, why)

@@ -20,7 +20,7 @@ func TestFileTimeout(t *testing.T) {
 	if code != exitBadInput || out != "" {
 		t.Errorf("exit %d, stdout %q; want 2 and nothing", code, out)
 	}
-	if want := demo + ":1:1: error: not checked: checking took longer than the limit of 1ns per file (--file-timeout)"; strings.TrimSpace(errs) != want {
+	if want := demo + ":1:1: error: not checked: checking took longer than the limit of 1ns per file (raise it with --file-timeout)"; strings.TrimSpace(errs) != want {
 		t.Errorf("stderr %q, want %q", errs, want)
 	}
 
