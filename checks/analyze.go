@@ -22,6 +22,17 @@ import (
 // DefaultAmbient is the ambient temperature when nothing sets one, C.
 const DefaultAmbient = 25
 
+// Where the circuit temperature of the nominal case came from
+// (Analysis.TempFrom). The convention, the same for check and op: Temp
+// (--temp) when given, else the netlist's .temp or .options temp=, else
+// the ambient. The models' TNOM (27 C unless a card sets it) is only the
+// temperature their parameters were written for.
+const (
+	TempFromOption  = "--temp"
+	TempFromNetlist = ".temp"
+	TempFromAmbient = "ambient"
+)
+
 // DefaultResistorPower is the power rating assumed for a resistor with none
 // given, W: the common 1/4 W through-hole and 1206 class (common practice).
 const DefaultResistorPower = 0.25
@@ -94,14 +105,15 @@ var DefaultAmbientRange = [2]float64{0, 70}
 
 // analyzer carries the state of one Analyze call.
 type analyzer struct {
-	c       *netlist.Circuit
-	opt     Options
-	board   *board.Settings
-	parts   *rulesets.Library
-	g       *graph
-	ambient float64
-	temp    float64
-	notes   netlist.ErrorList
+	c        *netlist.Circuit
+	opt      Options
+	board    *board.Settings
+	parts    *rulesets.Library
+	g        *graph
+	ambient  float64
+	temp     float64
+	tempFrom string
+	notes    netlist.ErrorList
 
 	// bjts are the circuit's transistors in netlist order and tmpl their
 	// facts that do not depend on the case (computed once).
@@ -152,12 +164,12 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	if opt.Ambient != nil {
 		a.ambient = *opt.Ambient
 	}
-	a.temp = a.ambient
+	a.temp, a.tempFrom = a.ambient, TempFromAmbient
 	if c.Options.TempSet {
-		a.temp = c.Options.Temp
+		a.temp, a.tempFrom = c.Options.Temp, TempFromNetlist
 	}
 	if opt.Temp != nil {
-		a.temp = *opt.Temp
+		a.temp, a.tempFrom = *opt.Temp, TempFromOption
 	}
 	if opt.MonteCarlo < 0 || opt.MonteCarlo > MaxMonteCarlo {
 		return nil, fmt.Errorf("Monte Carlo runs %d: want 0 to %d", opt.MonteCarlo, MaxMonteCarlo)
@@ -188,6 +200,7 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 		return nil, err
 	}
 	an.Board = b
+	an.Temp, an.TempFrom = a.temp, a.tempFrom
 	a.notes.Sort()
 	an.Notes = a.notes.List
 	return an, nil

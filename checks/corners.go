@@ -382,7 +382,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		}
 		failed[k/per] = true
 		pos, msg := errorPlace(err, a.c.File)
-		a.notes.Warnf(pos, "case %s: its resistor corners are not judged (the other cases are): their sensitivities could not be solved: %s",
+		a.notes.Warnf(pos, "the resistor corners of case %s are unjudged (every other case is judged): their sensitivities could not be solved: %s",
 			rulesCaseName(&specs[groups[k/per]]), msg)
 	}
 	for gi := range groups {

@@ -97,6 +97,12 @@ type Transistor struct {
 	RoleFrom   string `expr:"role_from"`
 	RoleReason string `expr:"role_reason"`
 	Linear     bool   `expr:"linear"`
+	// Darlington is true for the output transistor of a Darlington pair
+	// (its base on another transistor's emitter of the same polarity,
+	// collectors joined). It cannot saturate: its VCE stays about one VBE
+	// above its driver's VCE(sat), so a Darlington switch is judged by its
+	// driver.
+	Darlington bool `expr:"darlington"`
 
 	// Operating point, forward-referenced (see the file comment).
 	VBE float64 `expr:"vbe"`
@@ -109,7 +115,8 @@ type Transistor struct {
 	Beta float64 `expr:"beta"`
 	// Power is the dissipation VCE*IC + VBE*IB, W.
 	Power float64 `expr:"power"`
-	// Region is "active", "saturation", "cutoff" or "reverse".
+	// Region is "active", "saturation", "cutoff" or "reverse", or
+	// RegionNotPhysical in a case whose operating point is not physical.
 	Region string `expr:"region"`
 
 	// Model parameters and ratings.
@@ -268,6 +275,11 @@ type Case struct {
 	// (what the solver tried); such a case has no subjects and no
 	// Solution, and every other case is judged as usual.
 	Unjudged string
+	// Unphysical lists the devices whose operating point in this case is
+	// not physical (solve.Result.Unphysical); the transistors' currents,
+	// voltages, power and temperatures are NaN, and the case has no
+	// resistor or net subjects.
+	Unphysical []solve.Unphysical
 }
 
 // Analysis is everything checks learned about one circuit.
@@ -282,4 +294,9 @@ type Analysis struct {
 	// Notes are located notes and warnings about the analysis (e.g. a
 	// device checked against generic ratings).
 	Notes []*netlist.Error
+	// Temp is the circuit temperature of the nominal case, C, and
+	// TempFrom where it came from (TempFromOption, TempFromNetlist or
+	// TempFromAmbient).
+	Temp     float64
+	TempFrom string
 }

@@ -37,12 +37,19 @@ package checks
 //     is at a rail, a load sits in the collector, no signal reaches the
 //     base, and the base is fed through resistors (and capacitors) from a
 //     controller pin (a plain DC source that feeds only base networks,
-//     see graph.pinNet) or through a resistor from a switch's collector.
+//     see graph.pinNet) into a coil, diode or other load only a switch
+//     drives, or into a resistor with the nominal solve showing it
+//     saturated or off (in forward-active it is a stage biased from a DC
+//     source); or through a resistor from a switch's collector; or through
+//     a resistor from another drive (a controlled source standing for a
+//     comparator) with the nominal solve showing it saturated or off. A
+//     Darlington's driver counts its output's emitter as its own, and the
+//     output (fact darlington) takes the driver's role.
 //   - follower: collector at a rail, emitter not.
 //   - current-source: emitter through a resistor to a rail, collector not
 //     at a rail, and the collector feeds other transistors' emitters (a
-//     tail) or the base is held by a diode or a voltage source with no
-//     signal.
+//     tail) or the base is held by a diode, a diode-connected transistor,
+//     a rail or a voltage source, with no signal.
 //   - common-emitter: the rest with a collector load.
 //
 // A transistor that matches nothing is taken as common-emitter by
@@ -90,6 +97,8 @@ var linearRoles = map[string]bool{
 // "topology", "default") and the reason in plain words.
 type roleOut struct {
 	role, from, reason string
+	// darlington is true for the output transistor of a Darlington pair.
+	darlington bool
 }
 
 // nominalOp is the part of the nominal solve the classification reads,
@@ -283,6 +292,19 @@ func (x *roleIndex) load(j int) *netlist.Element {
 	return nil
 }
 
+// switchedLoad returns an element on j's collector node that only a
+// switch drives (a coil, a diode or LED, anything but a resistor, a
+// capacitor or a transistor), or nil: a stage from a DC source into a
+// plain resistor may be a textbook amplifier biased from a VBB source.
+func (x *roleIndex) switchedLoad(j int) *netlist.Element {
+	for _, e := range x.elems[x.c[j]] {
+		if e.Kind != 'R' && e.Kind != 'C' && e.Kind != 'Q' {
+			return e
+		}
+	}
+	return nil
+}
+
 // names joins transistor names.
 func (x *roleIndex) names(l []int) string {
 	var s []string
@@ -302,7 +324,7 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 	set := make([]bool, n)
 	mark := func(j int, role, reason string) {
 		if !set[j] {
-			out[j], set[j] = roleOut{role, "topology", reason}, true
+			out[j], set[j] = roleOut{role: role, from: "topology", reason: reason}, true
 		}
 	}
 	annotated := make([]string, n)
@@ -416,31 +438,57 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 			mark(j, RoleClamp, fmt.Sprintf("off at nominal (VBE %s, IC %s), %s", units.Format(ops[j].vbe, "V"), units.Format(ops[j].ic, "A"), why))
 		}
 	}
-	// Switches driven by a PULSE or PWL source, or from a controller pin.
+	// Switches driven by a PULSE or PWL source, or from a controller pin,
+	// or (by the nominal solve) hard on or off from another drive. A
+	// Darlington's driver counts its output's emitter as its own.
+	var work []int
+	markSwitch := func(j int, reason string) {
+		if set[j] {
+			return
+		}
+		mark(j, RoleSwitch, reason)
+		work = append(work, j)
+		if o := x.darlington(j); o >= 0 && !set[o] {
+			mark(o, RoleSwitch, fmt.Sprintf("Darlington output of switch %s (base on its emitter, collectors joined), emitter at %s", bjts[j].Name, x.netName(x.e[o])))
+			work = append(work, o)
+		}
+	}
 	for j, q := range bjts {
 		if set[j] {
 			continue
 		}
 		if w := x.steppedDrive(q); w != "" {
-			mark(j, RoleSwitch, w)
+			markSwitch(j, w)
 			continue
 		}
-		if !x.rail[x.e[j]] || x.rail[x.c[j]] || x.load(j) == nil || x.signal(q) {
+		e := x.e[j]
+		em := "emitter at " + x.netName(e)
+		if o := x.darlington(j); o >= 0 {
+			e = x.e[o]
+			em = fmt.Sprintf("emitter on the base of Darlington output %s (its emitter at %s)", bjts[o].Name, x.netName(e))
+		}
+		if !x.rail[e] || x.rail[x.c[j]] || x.load(j) == nil || x.signal(q) {
 			continue
 		}
-		if p, r := x.pinDrive(q, j); p != nil {
-			mark(j, RoleSwitch, fmt.Sprintf("emitter at %s, base fed by %s from %s (DC %s), collector load %s",
-				x.netName(x.e[j]), r.Name, p.Name, units.Format(p.Source.DC, "V"), x.load(j).Name))
+		if p, r := x.pinDrive(q, j); p != nil && (x.switchedLoad(j) != nil || ops[j].known && ops[j].region != "active") {
+			ld := x.switchedLoad(j)
+			if ld == nil {
+				ld = x.load(j)
+			}
+			markSwitch(j, fmt.Sprintf("%s, base fed by %s from %s (DC %s), collector load %s",
+				em, r.Name, p.Name, units.Format(p.Source.DC, "V"), ld.Name))
+		} else if d, r := x.otherDrive(q, j); d != nil && ops[j].known && ops[j].region != "active" {
+			markSwitch(j, fmt.Sprintf("%s, base fed by %s from %s, collector load %s, %s at nominal",
+				em, r.Name, d.Name, x.load(j).Name, ops[j].region))
 		}
 	}
 	// Switch chains: a base fed from a switch's collector, on a work list.
-	var work []int
 	for j := range bjts {
-		if out[j].role == RoleSwitch || annotated[j] == RoleSwitch {
+		if annotated[j] == RoleSwitch && !set[j] {
 			work = append(work, j)
 		}
 	}
-	for steps := 0; len(work) > 0 && steps <= n; steps++ {
+	for steps := 0; len(work) > 0 && steps <= 2*n; steps++ {
 		s := work[0]
 		work = work[1:]
 		for _, r := range x.res[x.c[s]] {
@@ -449,9 +497,8 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 				if set[j] || !x.rail[x.e[j]] || x.rail[x.c[j]] || x.load(j) == nil {
 					continue
 				}
-				mark(j, RoleSwitch, fmt.Sprintf("emitter at %s, base fed by %s from the collector of switch %s, collector load %s",
+				markSwitch(j, fmt.Sprintf("emitter at %s, base fed by %s from the collector of switch %s, collector load %s",
 					x.netName(x.e[j]), r.Name, bjts[s].Name, x.load(j).Name))
-				work = append(work, j)
 			}
 		}
 	}
@@ -491,7 +538,12 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 	}
 	for j := range bjts {
 		if !set[j] {
-			out[j] = roleOut{RoleCommonEmitter, "default", "no known topology: collector and emitter both at rails or on one net"}
+			out[j] = roleOut{role: RoleCommonEmitter, from: "default", reason: "no known topology: collector and emitter both at rails or on one net"}
+		}
+	}
+	for j := range bjts {
+		if o := x.darlington(j); o >= 0 {
+			out[o].darlington = true
 		}
 	}
 	// An annotation wins; "linear" keeps a linear role the topology found.
@@ -512,7 +564,7 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 		if r == found.role {
 			why += "; topology agrees: " + found.reason
 		}
-		out[j] = roleOut{r, "annotation", why}
+		out[j] = roleOut{r, "annotation", why, found.darlington}
 	}
 	return out
 }
@@ -557,17 +609,51 @@ func (x *roleIndex) fedByCollector(j int) int {
 	return -1
 }
 
+// darlington returns the output transistor of a Darlington pair that j
+// drives (same polarity, its base on j's emitter, collectors joined), or
+// -1.
+func (x *roleIndex) darlington(j int) int {
+	if x.rail[x.e[j]] {
+		return -1
+	}
+	for _, o := range others(x.baseAt[x.e[j]], j) {
+		if x.pol[o] == x.pol[j] && x.c[o] == x.c[j] {
+			return o
+		}
+	}
+	return -1
+}
+
+// otherDrive returns a drive other than a stepped source or a pin (a
+// controlled source's output, a current source, a driver=yes source)
+// that reaches q's base through resistors, and the base resistor, or nil.
+func (x *roleIndex) otherDrive(q *netlist.Element, j int) (*netlist.Element, *netlist.Element) {
+	rb := x.baseResistor(j)
+	if rb == nil {
+		return nil, nil
+	}
+	if ds := x.g.drives(q).sources; len(ds) > 0 {
+		return ds[0], rb
+	}
+	return nil, nil
+}
+
+// baseResistor is the first resistor on j's base whose far end is not a
+// rail (the resistor a drive comes through), or nil.
+func (x *roleIndex) baseResistor(j int) *netlist.Element {
+	for _, r := range x.res[x.b[j]] {
+		if !x.rail[x.far(r, x.b[j])] {
+			return r
+		}
+	}
+	return nil
+}
+
 // pinDrive returns the controller pin (see graph.pinNet) that drives q's
 // base through resistors and capacitors, and the base resistor on the way
 // (the first one on the base that does not go to a rail), or nil.
 func (x *roleIndex) pinDrive(q *netlist.Element, j int) (*netlist.Element, *netlist.Element) {
-	var rb *netlist.Element
-	for _, r := range x.res[x.b[j]] {
-		if !x.rail[x.far(r, x.b[j])] {
-			rb = r
-			break
-		}
-	}
+	rb := x.baseResistor(j)
 	if rb == nil {
 		return nil, nil
 	}
@@ -660,6 +746,7 @@ func (a *analyzer) assignRoles(nom *solve.Result) {
 		t := &a.tmpl[j]
 		t.Role, t.RoleFrom, t.RoleReason = r.role, r.from, r.reason
 		t.Linear = linearRoles[r.role]
+		t.Darlington = r.darlington
 		if r.from == "default" {
 			a.notes.Notef(a.bjts[j].Pos, "%s: role taken as common-emitter (%s); write *@device %s role=... to set it", a.bjts[j].Name, r.reason, a.bjts[j].Name)
 		}

@@ -83,7 +83,8 @@ Q@14 @b13 @e13 @o13 CN
 
 // classifyBoard reads a generated board and returns what classify needs:
 // the graph, the transistors, their polarities and a nominal solve that
-// has every transistor conducting 1 mA except each cell's clamp (off).
+// has every transistor conducting 1 mA (the switches saturated) except
+// each cell's clamp (off).
 func classifyBoard(tb testing.TB, cells int) (*graph, []*netlist.Element, []string, []nominalOp, *board.Settings) {
 	tb.Helper()
 	c, err := netlist.ReadSource("gen.cir", []byte(boardCells(cells)), &netlist.LoadOptions{ReadFile: netlist.NoFiles})
@@ -105,6 +106,9 @@ func classifyBoard(tb testing.TB, cells int) (*graph, []*netlist.Element, []stri
 		}
 		pol = append(pol, p)
 		op := nominalOp{known: true, ic: 1e-3, vbe: 0.65, region: "active"}
+		if strings.HasSuffix(e.Name, "_1") || strings.HasSuffix(e.Name, "_2") {
+			op.region = "saturation" // the pin switch and its high-side switch are on
+		}
 		if strings.HasSuffix(e.Name, "14") {
 			op = nominalOp{known: true, ic: 1e-12, vbe: 0.05, region: "cutoff"}
 		}
@@ -179,5 +183,42 @@ RE3 e3 0 1k
 	}
 	if q := transistor(t, a, "Q3"); q.Linear {
 		t.Errorf("Q3 annotated clamp is linear")
+	}
+}
+
+// A plain DC source is a controller pin only when its net reaches bases
+// and nothing else through resistors and capacitors.
+func TestPinNet(t *testing.T) {
+	const tail = "RL vcc c 1k\nQ1 c b 0 N\n.model N NPN\n"
+	for _, tc := range []struct {
+		name, src string
+		pin       bool
+	}{
+		{"base resistor", "VCC vcc 0 5\nVP p 0 3.3\nRB p b 1k\n" + tail, true},
+		{"pull-down and RC filter", "VCC vcc 0 5\nVP p 0 3.3\nRPD p 0 100k\nR1 p f 1k\nC1 f 0 1n\nR2 f b 1k\n" + tail, true},
+		{"straight on the base", "VCC vcc 0 5\nVP b 0 0.7\n" + tail, false},
+		{"also feeds a collector", "VCC vcc 0 5\nVP p 0 3.3\nRB p b 1k\nR2 p c2 1k\nQ2 c2 b 0 N\n" + tail, false},
+		{"also feeds a diode", "VCC vcc 0 5\nVP p 0 3.3\nRB p b 1k\nD1 p x DD\nRX x 0 1k\n.model DD D\n" + tail, false},
+		{"a supply with a divider and an emitter resistor", "VCC vcc 0 5\nVP p 0 3.3\nR1 p b 10k\nR2 b 0 10k\nRE e p 1k\nRC vcc c 1k\nQ1 c b e N\n.model N NPN\n", false},
+		{"not on ground", "VCC vcc 0 5\nVP p vcc 3.3\nRB p b 1k\n" + tail, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			c := circuit(t, "pin test\n"+tc.src)
+			b, _ := board.FromCircuit(c)
+			g := newGraph(c, b)
+			var vp *netlist.Element
+			for _, e := range c.Elements {
+				if e.Name == "VP" {
+					vp = e
+				}
+			}
+			got := g.pin["p"] == vp || g.pin["b"] == vp
+			if got != tc.pin {
+				t.Errorf("VP is a pin: %v, want %v", got, tc.pin)
+			}
+			if got && g.rail["p"] {
+				t.Errorf("a pin's net is a rail")
+			}
+		})
 	}
 }

@@ -21,6 +21,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"strings"
 	"sync"
 
 	"github.com/biaslint/biaslint/checks/solve"
@@ -464,16 +465,45 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 	}
 	an := &Analysis{Circuit: a.c}
+	// Cases that were not solved, grouped by where and why.
+	failed := map[string]*unjudgedCases{}
+	var failOrder []string
+	unphysical := map[string][]string{} // device key -> case names
+	var why []solve.Unphysical
 	for i := range specs {
 		an.Cases = append(an.Cases, a.caseFacts(&specs[i], &outs[i]))
+		for _, u := range an.Cases[i].Unphysical {
+			k := netlist.Key(u.Device)
+			if unphysical[k] == nil {
+				why = append(why, u)
+			}
+			unphysical[k] = append(unphysical[k], rulesCaseName(&specs[i]))
+		}
 		if e := outs[i].err; e != nil {
 			pos, msg := errorPlace(e, a.c.File)
-			a.notes.Warnf(pos, "case %s is not judged (the other cases are): %s", rulesCaseName(&specs[i]), msg)
+			k := pos.String() + "\x00" + msg
+			if failed[k] == nil {
+				failed[k] = &unjudgedCases{pos: pos, msg: msg}
+				failOrder = append(failOrder, k)
+			}
+			failed[k].cases = append(failed[k].cases, rulesCaseName(&specs[i]))
 		}
 		if outs[i].th.unsettled {
 			a.notes.Notef(netlist.Pos{File: a.c.File}, "case %s: the electro-thermal iteration did not settle in %d steps; junction temperatures are the last iterate's",
 				rulesCaseName(&specs[i]), thermalMaxIter)
 		}
+	}
+	for _, k := range failOrder {
+		f := failed[k]
+		a.notes.Warnf(f.pos, "%s unjudged (every other case is judged): %s", caseList(f.cases), f.msg)
+	}
+	for _, u := range why {
+		cases := unphysical[netlist.Key(u.Device)]
+		in := "case " + cases[0]
+		if len(cases) > 1 {
+			in = fmt.Sprintf("%d cases (%s and others)", len(cases), cases[0])
+		}
+		a.notes.Warnf(u.Pos, "the operating point is not physical in %s: %s. Its currents, power and temperatures are not reported; give the junction a series resistance", in, u.Why)
 	}
 	a.crossCase(an, specs, swings)
 	return an, nil
@@ -511,6 +541,30 @@ func valueOf(sp *caseSpec, key string, nominal float64) float64 {
 	}
 	return nominal
 }
+
+// unjudgedCases are the cases that failed at one place for one reason.
+type unjudgedCases struct {
+	pos   netlist.Pos
+	msg   string
+	cases []string
+}
+
+// caseList names cases for a message: "case A is", "cases A and B are",
+// "cases A, B, C, D and 5 more are".
+func caseList(cases []string) string {
+	if len(cases) == 1 {
+		return "case " + cases[0] + " is"
+	}
+	const shown = 4
+	if len(cases) <= shown {
+		return "cases " + strings.Join(cases[:len(cases)-1], ", ") + " and " + cases[len(cases)-1] + " are"
+	}
+	return fmt.Sprintf("cases %s and %d more are", strings.Join(cases[:shown], ", "), len(cases)-shown)
+}
+
+// RegionNotPhysical is the region of every transistor in a case whose
+// operating point is not physical (Case.Unphysical).
+const RegionNotPhysical = "not physical"
 
 // errorPlace splits a solver error into its position (the circuit's file
 // when it has none) and its message without the position.
@@ -573,6 +627,22 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 			t.BaseFloats = math.IsInf(t.BaseRth, 1)
 		}
 		cs.Transistors = append(cs.Transistors, t)
+	}
+	if !res.Physical() {
+		// Not physical (solve/verify.go): the currents, and with them every
+		// power, temperature and voltage they set, have no meaning. The
+		// transistors' region says so (a rule on the drive, such as
+		// unlimited-base-drive, still says what to fix); resistors and
+		// nets are left out of the case.
+		for k := range cs.Transistors {
+			t := &cs.Transistors[k]
+			n := math.NaN()
+			t.VBE, t.VCE, t.VCB, t.IC, t.IB, t.IE, t.Beta, t.Power = n, n, n, n, n, n, n, n
+			t.Tj, t.RunawayTj, t.ThermalGain, t.ThermalRunaway = n, n, n, false
+			t.Region = RegionNotPhysical
+		}
+		cs.Unphysical = res.Unphysical
+		return cs
 	}
 	for _, el := range a.c.Elements {
 		if el.Kind == 'R' && len(el.Nodes) == 2 {

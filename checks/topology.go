@@ -33,12 +33,10 @@ type graph struct {
 	// drive, not a rail.
 	pin map[string]*netlist.Element
 	// comp maps each net key to its component under resistors, inductors
-	// and capacitors with rails cut out; compDrive and compOut list the
-	// drive sources and the transistor outputs (collector or emitter) on
-	// each component's nets, in netlist order.
+	// and capacitors with rails cut out; compDrive lists the drive sources
+	// on each component's nets, in netlist order.
 	comp      map[string]string
 	compDrive map[string][]*netlist.Element
-	compOut   map[string][]*netlist.Element
 }
 
 func nodeKey(n string) string { return netlist.Key(n) }
@@ -170,7 +168,7 @@ func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool)
 // components joins the nets that resistors, inductors and capacitors
 // connect, rails excepted (a rail holds its potential whatever hangs on
 // it), in one union-find pass, and records for each component the drive
-// sources and transistor outputs on its nets. drives reads them, so
+// sources on its nets. drives reads them, so
 // finding what drives every base costs O(elements) in all, not a walk per
 // transistor.
 func (g *graph) components() {
@@ -197,7 +195,6 @@ func (g *graph) components() {
 	}
 	g.comp = flat
 	g.compDrive = map[string][]*netlist.Element{}
-	g.compOut = map[string][]*netlist.Element{}
 	isDrive := map[*netlist.Element]bool{}
 	for _, l := range g.drive {
 		for _, e := range l {
@@ -221,20 +218,9 @@ func (g *graph) components() {
 			}
 		}
 	}
-	for _, e := range g.c.Elements {
-		if e.Kind != 'Q' || len(e.Nodes) < 3 {
-			continue
-		}
-		for _, i := range []int{0, 2} {
-			k := nodeKey(e.Nodes[i])
-			if g.rail[k] {
-				continue
-			}
-			r := g.comp[k]
-			if l := g.compOut[r]; len(l) == 0 || l[len(l)-1] != e {
-				g.compOut[r] = append(g.compOut[r], e)
-			}
-		}
+	for r, l := range g.compDrive {
+		sort.SliceStable(l, func(i, j int) bool { return l[i].Pos.Before(l[j].Pos) })
+		g.compDrive[r] = l
 	}
 }
 
@@ -326,30 +312,22 @@ func (g *graph) stiff(q *netlist.Element) bool {
 // driveInfo is what drives a transistor's base.
 type driveInfo struct {
 	// sources are the drive sources reached from the base through
-	// resistors, inductors and capacitors, not through rails.
+	// resistors, inductors and capacitors, not through rails, in netlist
+	// order. The slice is shared by every base of the component: do not
+	// modify it.
 	sources []*netlist.Element
-	// upstream are other transistors whose collector or emitter is reached.
-	upstream []*netlist.Element
 }
 
-// drives lists the drive sources and other transistors' outputs reached
-// from q's base through resistors, inductors and capacitors (coupling
-// capacitors included) without passing a rail: the base's component.
+// drives lists the drive sources reached from q's base through
+// resistors, inductors and capacitors (coupling capacitors included)
+// without passing a rail: those of the base's component, sorted once in
+// components.
 func (g *graph) drives(q *netlist.Element) driveInfo {
-	var d driveInfo
 	base := nodeKey(q.Nodes[1])
 	if g.rail[base] {
-		return d
+		return driveInfo{}
 	}
-	r := g.comp[base]
-	d.sources = append(d.sources, g.compDrive[r]...)
-	for _, o := range g.compOut[r] {
-		if o != q {
-			d.upstream = append(d.upstream, o)
-		}
-	}
-	sort.SliceStable(d.sources, func(i, j int) bool { return d.sources[i].Pos.Before(d.sources[j].Pos) })
-	return d
+	return driveInfo{sources: g.compDrive[g.comp[base]]}
 }
 
 // unionFind is a disjoint-set forest over net keys with path compression

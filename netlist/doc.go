@@ -59,7 +59,11 @@
 //
 // Values take SPICE suffixes and IEC 60062 RKM codes (see package units; a
 // value read as an RKM code gets a note, since classic readers read 4k7 as
-// 4k). Expressions use github.com/expr-lang/expr with the functions sqrt,
+// 4k). Where a value's letters change its meaning in a way people often
+// get wrong (1M on a resistor is one milliohm, 4.7x drops the x, 1F on a
+// resistor is a femtoohm, 10uH on a capacitor), the value is read as SPICE
+// reads it with an alert (Error.Alert), directly or through the parameter
+// it names (letters.go). Expressions use github.com/expr-lang/expr with the functions sqrt,
 // exp, log (natural), ln, log10, abs, min, max, pow, pwr, sin, cos, tan,
 // asin, acos, atan, atan2, sinh, cosh, tanh, floor, ceil, int, round, sgn,
 // hypot and the constant pi; number literals inside take suffixes too

@@ -103,6 +103,8 @@ type flattener struct {
 	globals map[string]bool
 	opts    LoadOptions
 	full    bool // the element limit was reached
+	// alerted marks the values whose letters were noted (letters.go).
+	alerted map[Pos]bool
 }
 
 // options evaluates .temp and .options.
@@ -302,6 +304,9 @@ func (f *flattener) element(s *ElementStmt, def *Subckt, e *env) *Element {
 	ok := true
 	if s.Value != nil {
 		el.Value, ok = f.ev.eval(*s.Value, e)
+		if ok {
+			f.valueLetters(s.Kind, s.Name.Text, *s.Value, e)
+		}
 	}
 	switch s.Kind {
 	case 'V', 'I':
@@ -454,6 +459,9 @@ func (f *flattener) source(s *ElementStmt, e *env) (*Source, bool) {
 	}
 	if st.DC != nil {
 		src.DC, src.HasDC = get(st.DC), true
+		if ok {
+			f.valueLetters(s.Kind, s.Name.Text, *st.DC, e)
+		}
 	}
 	if st.ACMag != nil {
 		src.ACMag, src.HasAC = get(st.ACMag), true

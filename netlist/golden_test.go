@@ -158,6 +158,10 @@ func dump(c *Circuit, err error) string {
 		}
 	}
 	for _, e := range c.Notes {
+		if e.Alert {
+			p("  %s [alert]\n", e)
+			continue
+		}
 		p("  %s\n", e)
 	}
 	return b.String()

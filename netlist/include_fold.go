@@ -9,7 +9,7 @@ import (
 // This file resolves an include name that differs from the file on disk
 // only in letter case: netlists written on systems whose file names ignore
 // case (.include 'Stage.inc' for stage.inc) are read on systems that do
-// not. The slash direction is already folded by resolvePath.
+// not. The slash direction is folded by resolvePath; slashNote says so.
 
 // maxFoldEntries bounds how many directory entries one folded lookup reads
 // per path component.
@@ -76,4 +76,13 @@ func osReadDir(dir string) ([]string, error) {
 	}
 	defer f.Close()
 	return f.Readdirnames(maxFoldEntries)
+}
+
+// slashNote notes an include name written with backslashes on a system
+// whose separator is '/': it is read with '/' for each '\'.
+func slashNote(errs quoted, pos Pos, name string, depth int) {
+	if filepath.Separator == '/' && strings.ContainsRune(name, '\\') {
+		errs.Notef(pos, "include file \"%s\" is read as \"%s\": each '\\' is taken as '/'",
+			pathText(name, depth), pathText(strings.ReplaceAll(name, `\`, "/"), depth))
+	}
 }

@@ -76,6 +76,10 @@ type Error struct {
 	Pos      Pos
 	Severity Severity
 	Msg      string
+	// Alert marks a note about a reading that people often get wrong (1M
+	// on a resistor is one milliohm): reports show it even when they
+	// leave other notes out.
+	Alert bool
 }
 
 func (e *Error) Error() string {
@@ -114,20 +118,30 @@ func (l *ErrorList) Notef(pos Pos, format string, args ...any) {
 	l.add(pos, SevNote, fmt.Sprintf(format, args...))
 }
 
+// Alertf appends a note that every report shows: the input was read as
+// SPICE reads it, but people often mean something else by it.
+func (l *ErrorList) Alertf(pos Pos, format string, args ...any) {
+	l.put(&Error{Pos: pos, Severity: SevNote, Msg: fmt.Sprintf(format, args...), Alert: true})
+}
+
 func (l *ErrorList) add(pos Pos, sev Severity, msg string) {
+	l.put(&Error{Pos: pos, Severity: sev, Msg: msg})
+}
+
+func (l *ErrorList) put(e *Error) {
 	n := 0
-	for _, e := range l.List {
-		if e.Severity == sev {
+	for _, x := range l.List {
+		if x.Severity == e.Severity {
 			n++
 		}
 	}
 	if n >= MaxErrors {
-		if sev == SevError {
+		if e.Severity == SevError {
 			l.dropped++
 		}
 		return
 	}
-	l.List = append(l.List, &Error{Pos: pos, Severity: sev, Msg: msg})
+	l.List = append(l.List, e)
 }
 
 // Merge appends every entry of m to l.
@@ -136,7 +150,8 @@ func (l *ErrorList) Merge(m *ErrorList) {
 		return
 	}
 	for _, e := range m.List {
-		l.add(e.Pos, e.Severity, e.Msg)
+		c := *e
+		l.put(&c)
 	}
 	l.dropped += m.dropped
 }

@@ -68,6 +68,11 @@ func (q quoted) Notef(pos Pos, format string, args ...any) {
 	q.ErrorList.Notef(pos, format, shortArgs(args)...)
 }
 
+// Alertf is ErrorList.Alertf with string arguments shortened.
+func (q quoted) Alertf(pos Pos, format string, args ...any) {
+	q.ErrorList.Alertf(pos, format, shortArgs(args)...)
+}
+
 // sprintf is fmt.Sprintf with string arguments shortened.
 func sprintf(format string, args ...any) string { return fmt.Sprintf(format, shortArgs(args)...) }
 

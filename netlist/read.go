@@ -460,10 +460,14 @@ func (f *fileState) include(l *logical) bool {
 				if rel, err := filepath.Rel(filepath.Dir(f.name), disk); err == nil {
 					shown = filepath.ToSlash(rel)
 				}
-				r.errs.Notef(t[1].pos, "include file %q is read as %q: the names differ only in letter case", pathText(t[1].text, f.depth), pathText(shown, f.depth))
+				r.errs.Notef(t[1].pos, "include file \"%s\" is read as \"%s\": the names differ only in letter case",
+					pathText(t[1].text, f.depth), pathText(shown, f.depth))
 				name, src, err = disk, src2, nil
 			}
 		}
+	}
+	if err == nil {
+		slashNote(r.errs, t[1].pos, t[1].text, f.depth)
 	}
 	if err != nil {
 		if msg, ok := refused(err, f.depth > 0); ok {

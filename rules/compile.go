@@ -269,6 +269,30 @@ type program struct {
 	facts []string
 }
 
+// uses reports whether the program's text names fact name (of any type;
+// facts lists only the float ones).
+func (p *program) uses(name string) bool {
+	if p == nil {
+		return false
+	}
+	for i := strings.Index(p.src, name); i >= 0; {
+		end := i + len(name)
+		if (i == 0 || !identByte(p.src[i-1])) && (end == len(p.src) || !identByte(p.src[end])) {
+			return true
+		}
+		j := strings.Index(p.src[i+1:], name)
+		if j < 0 {
+			break
+		}
+		i += 1 + j
+	}
+	return false
+}
+
+func identByte(c byte) bool {
+	return c == '_' || c == '.' || ('a' <= c && c <= 'z') || ('A' <= c && c <= 'Z') || ('0' <= c && c <= '9')
+}
+
 // compiled holds a rule's programs.
 type compiled struct {
 	applies, when, measure, value, limit *program

@@ -65,6 +65,10 @@ type Finding struct {
 	// "scenario" or "scenario/corner".
 	AlsoIn     []string `json:"also_in,omitempty"`
 	UnjudgedIn []string `json:"unjudged_in,omitempty"`
+
+	// lead orders the finding first at its position: it names the drive
+	// of a device whose operating point is not physical, the cause.
+	lead bool
 }
 
 // CaseName names a case as AlsoIn writes it: "scenario" or "scenario/corner".
@@ -136,6 +140,16 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 				if !ok {
 					continue
 				}
+				if unphysical(c) {
+					// A case whose operating point is not physical for
+					// this device judges only what its facts still say
+					// (the drive, the topology); what they cannot say is
+					// not a note, the analysis's warning explains it.
+					if o.unjudged {
+						continue
+					}
+					o.f.lead = r.c.when.uses("stiff_drive")
+				}
 				k := key{r.ID, string(s.kind), netlist.Key(s.name)}
 				if _, seen := results[k]; !seen {
 					order = append(order, k)
@@ -186,11 +200,18 @@ func pickWorst(os []outcome) Finding {
 	return f
 }
 
+// unphysical reports whether case c is not physical: some device's point
+// is not, and the currents it sets spread through the whole circuit.
+func unphysical(c *checks.Case) bool { return len(c.Unphysical) > 0 }
+
 func sortFindings(fs []Finding) {
 	sort.SliceStable(fs, func(i, j int) bool {
 		a, b := fs[i], fs[j]
 		if a.Pos != b.Pos {
 			return a.Pos.Before(b.Pos)
+		}
+		if a.lead != b.lead {
+			return a.lead
 		}
 		if a.Rule != b.Rule {
 			return a.Rule < b.Rule

@@ -1,6 +1,7 @@
 package rules
 
 import (
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -249,5 +250,38 @@ func TestFacts(t *testing.T) {
 	}
 	if _, ok := have["pos"]; ok {
 		t.Error("pos is not a fact")
+	}
+}
+
+// --set values are checked against the parameter's unit and range: a
+// share written as a plain number above 1 (80 for 80 %) would be 8000 %
+// and switch the rule off, so it is refused with the percentage meant.
+func TestSetRange(t *testing.T) {
+	for _, tc := range []struct {
+		name, value string
+		want        float64 // the parameter's value when accepted
+		err         string  // else text the error names
+	}{
+		{"vceo_share", "80%", 0.8, ""},
+		{"vceo_share", "0.8", 0.8, ""},
+		{"vceo_share", "1", 1, ""},
+		{"vceo_share", "80", 0, "write 80%"},
+		{"vceo_share", "-5%", 0, "cannot be negative"},
+		{"linear_ic_min", "-1uA", 0, "cannot be negative"},
+		{"linear_ic_min", "10u", 10e-6, ""},
+	} {
+		s, err := Load("default", LoadOptions{Set: map[string]string{tc.name: tc.value}})
+		switch {
+		case tc.err != "":
+			if err == nil || !strings.Contains(err.Error(), tc.err) {
+				t.Errorf("--set %s=%s: err %v, want one naming %q", tc.name, tc.value, err, tc.err)
+			}
+		case err != nil:
+			t.Errorf("--set %s=%s: %v", tc.name, tc.value, err)
+		default:
+			if p, _ := s.Param(tc.name); math.Abs(p.Value-tc.want) > 1e-15 {
+				t.Errorf("--set %s=%s: value %g, want %g", tc.name, tc.value, p.Value, tc.want)
+			}
+		}
 	}
 }

@@ -366,6 +366,9 @@ func (l *loader) merge(parent *merged, rs *rawSet) *merged {
 		}
 		if rp.text != "" {
 			v, err := parseQuantity(rp.text, old.Unit)
+			if err == nil {
+				err = checkRange(rp.text, v, old.Unit)
+			}
 			if err != nil {
 				l.errs.Addf(rp.pos, "parameter %s: %v", rp.name, err)
 				continue
@@ -439,6 +442,9 @@ func (l *loader) finish(m *merged, opts LoadOptions) (*RuleSet, error) {
 			continue
 		}
 		v, err := parseQuantity(opts.Set[name], p.Unit)
+		if err == nil {
+			err = checkRange(opts.Set[name], v, p.Unit)
+		}
 		if err != nil {
 			l.errs.Addf(setPos, "parameter %s: %v", name, err)
 			continue
@@ -517,6 +523,35 @@ func parseQuantity(text, unit string) (float64, error) {
 		return 0, fmt.Errorf("bad value %q", text)
 	}
 	return v, nil
+}
+
+// checkRange checks an override value v, written text, against its
+// parameter's unit: a share (unit %) written as a plain number above 1 is
+// refused with the percentage it probably means (80 would be 8000 %, and
+// would switch the rule off), and a share, a resistance, current, power,
+// capacitance, inductance, time, frequency or thermal resistance below
+// zero, or a temperature below absolute zero, has no meaning.
+func checkRange(text string, v float64, unit string) error {
+	t := strings.TrimSpace(text)
+	switch unit {
+	case "%":
+		if !strings.HasSuffix(t, "%") && math.Abs(v) > 1 {
+			return fmt.Errorf("%q is a share: write %s%% (a plain number is a fraction, so %s would be %s %%)",
+				text, t, t, strconv.FormatFloat(v*100, 'g', -1, 64))
+		}
+		if v < 0 {
+			return fmt.Errorf("%q: a share cannot be negative", text)
+		}
+	case "Ohm", "A", "W", "F", "H", "s", "Hz", "K/W":
+		if v < 0 {
+			return fmt.Errorf("%q: a value in %s cannot be negative", text, unit)
+		}
+	case "C":
+		if v < -273.15 {
+			return fmt.Errorf("%q is below absolute zero (-273.15 C)", text)
+		}
+	}
+	return nil
 }
 
 func plainNumber(s string) (float64, error) {

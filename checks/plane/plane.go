@@ -458,8 +458,8 @@ func OfContext(ctx context.Context, an *checks.Analysis, name string) (Plane, er
 	pl := Plane{Device: t.Name, Model: t.Model, Polarity: t.Polarity, Ambient: nom.Ambient}
 	for i, cs := range an.Cases {
 		for _, x := range cs.Transistors {
-			if netlist.Key(x.Name) != netlist.Key(t.Name) {
-				continue
+			if netlist.Key(x.Name) != netlist.Key(t.Name) || math.IsNaN(x.VCE) || math.IsNaN(x.IC) {
+				continue // another device, or a case that is not physical
 			}
 			op := OpPoint{Point: Point{x.VCE, x.IC}, Kind: KindOf(i, cs), Case: caseName(cs), Region: x.Region, Power: x.Power}
 			if op.Kind == Swing {

@@ -31,6 +31,7 @@ func (w *work) jacobian(x []float64) *mat.Dense {
 	d := &denseSink{m: mat.NewDense(n, n, nil), rhs: make([]float64, n)}
 	w.stampLinear(d)
 	w.stampDevices(d, x, true)
+	w.stampPoly(d, x, true)
 	return d.m
 }
 
@@ -42,5 +43,6 @@ func (w *work) residual(x []float64) []float64 {
 	r := &residualSink{x: x, r: make([]float64, n), m: make([]float64, n)}
 	w.stampLinear(r)
 	w.stampDevices(r, x, false)
+	w.stampPoly(r, x, false)
 	return r.r
 }

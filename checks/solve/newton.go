@@ -198,7 +198,7 @@ func (s *System) Solve(opt Options) (*Result, error) {
 	x := append([]float64(nil), x0...)
 	var tried []string
 	if w.newton(x, !warm, st.maxIter) {
-		return s.result(w, x, MethodNewton), nil
+		return s.verified(w, x, MethodNewton), nil
 	}
 	if w.stop() {
 		return nil, fmt.Errorf("solve stopped: %w", w.stopped)
@@ -208,7 +208,7 @@ func (s *System) Solve(opt Options) (*Result, error) {
 	copy(x, x0)
 	ok, msg := w.gminStepping(x, !warm)
 	if ok {
-		return s.result(w, x, MethodGminStepping), nil
+		return s.verified(w, x, MethodGminStepping), nil
 	}
 	if w.stop() {
 		return nil, fmt.Errorf("solve stopped: %w", w.stopped)
@@ -218,7 +218,7 @@ func (s *System) Solve(opt Options) (*Result, error) {
 	copy(x, x0)
 	ok, msg = w.sourceStepping(x)
 	if ok {
-		return s.result(w, x, MethodSourceStepping), nil
+		return s.verified(w, x, MethodSourceStepping), nil
 	}
 	if w.stop() {
 		return nil, fmt.Errorf("solve stopped: %w", w.stopped)
@@ -247,6 +247,15 @@ func (s *System) Solve(opt Options) (*Result, error) {
 	}
 	ce.Pos = s.firstInvolved(involved, w.bad)
 	return nil, ce
+}
+
+// verified builds the result of a converged x and checks it against the
+// device equations as they are (verify.go): a point that satisfies only
+// the continued exponentials is returned marked not physical.
+func (s *System) verified(w *work, x []float64, m Method) *Result {
+	r := s.result(w, x, m)
+	s.verify(w, x, r)
+	return r
 }
 
 // deviceElem returns device d of the work's device list: the transistors,

@@ -91,3 +91,38 @@ func TestPolyJacobian(t *testing.T) {
 		}
 	}
 }
+
+// A stiff 3.3 V source straight on a base whose model has RB = 100 Ohm:
+// the series resistance limits the junction current, so the point is
+// physical and finite. By hand (Ebers-Moll base current IS/BF·exp(v/vt),
+// the collector on a 12 V rail so the B-C junction is off): the internal
+// junction voltage v solves (3.3 − v)/RB = IS/BF·(exp(v/vt) − 1).
+func TestStiffBaseLimitedBySeriesResistance(t *testing.T) {
+	const is, bf, rb, vs = 1e-14, 100.0, 100.0, 3.3
+	b := newBuilder()
+	b.model("qn", netlist.NPN, map[string]float64{"IS": is, "BF": bf, "RB": rb})
+	b.V("VCC", "vcc", "0", 12)
+	b.V("VMCU", "b", "0", vs)
+	b.Q("Q1", "vcc", "b", "0", "qn")
+	r := mustSolve(t, b.c, Options{})
+	if !r.Physical() {
+		t.Fatalf("not physical: %v", r.Unphysical)
+	}
+	vt := 1.380649e-23 * (r.Temp + 273.15) / 1.602176634e-19 // SI 2019 exact k and q
+	lo, hi := 0.0, vs
+	for i := 0; i < 200; i++ {
+		v := (lo + hi) / 2
+		if (vs-v)/rb > is/bf*(math.Exp(v/vt)-1) {
+			lo = v
+		} else {
+			hi = v
+		}
+	}
+	ib := (vs - lo) / rb
+	if got := r.BJTs[0].IB; relErr(got, ib) > 1e-4 {
+		t.Errorf("IB = %g A, by hand %g A", got, ib)
+	}
+	if got := r.BJTs[0].JunctionVBE; math.Abs(got-lo) > 1e-5 {
+		t.Errorf("internal VBE = %g V, by hand %g V", got, lo)
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"math"
 	"testing"
 
+	"github.com/biaslint/biaslint/checks/device"
 	"github.com/biaslint/biaslint/netlist"
 	"pgregory.net/rapid"
 )
@@ -118,4 +119,91 @@ func TestExtremeCircuits(t *testing.T) {
 			}
 		})
 	}
+}
+
+// A reported operating point is physical only if it satisfies Kirchhoff's
+// current law with the device equations as they are. The circuits here
+// add what makes the continued exponentials matter: stiff sources straight
+// across junctions, up to 5 V, with and without series resistances in the
+// models. Every point reported physical must have every junction in the
+// exact range of its exponential and every transistor junction below the
+// band gap, and meet KCL (an independent sum from the element equations,
+// kclResiduals); every point marked not physical must have a junction
+// that is not.
+func TestPropertyReportedPointsMeetKCL(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		b := newBuilder()
+		series := rapid.Bool().Draw(t, "series")
+		qp := map[string]float64{"IS": 1e-14, "BF": rapid.Float64Range(20, 400).Draw(t, "bf")}
+		if series {
+			qp["RB"], qp["RE"] = rapid.Float64Range(1, 100).Draw(t, "rb"), rapid.Float64Range(0.1, 5).Draw(t, "re")
+		}
+		b.model("qn", netlist.NPN, qp)
+		b.model("dm", netlist.Diode, map[string]float64{"IS": 1e-15, "N": 1})
+		n := rapid.IntRange(2, 5).Draw(t, "nodes")
+		node := func(label string) string {
+			if i := rapid.IntRange(0, n).Draw(t, label); i > 0 {
+				return fmt.Sprintf("n%d", i)
+			}
+			return "0"
+		}
+		b.V("V1", "n1", "0", rapid.Float64Range(-12, 12).Draw(t, "vcc"))
+		for i := 2; i <= n; i++ {
+			b.R(fmt.Sprintf("RG%d", i), fmt.Sprintf("n%d", i), "0", math.Pow(10, rapid.Float64Range(2, 5).Draw(t, "rg")))
+		}
+		for i := rapid.IntRange(0, 4).Draw(t, "nr"); i > 0; i-- {
+			b.R(fmt.Sprintf("R%d", i), node("ra"), node("rb"), math.Pow(10, rapid.Float64Range(1, 5).Draw(t, "r")))
+		}
+		// A stiff source on a transistor's base, or a diode across a
+		// supply: the junction's current is limited by nothing else.
+		b.V("VD", "drv", "0", rapid.Float64Range(0, 5).Draw(t, "vdrv"))
+		if rapid.Bool().Draw(t, "diode") {
+			b.D("D1", "drv", "0", "dm")
+		} else {
+			b.Q("Q1", node("c"), "drv", "0", "qn")
+		}
+		for i := rapid.IntRange(0, 2).Draw(t, "nq"); i > 0; i-- {
+			b.Q(fmt.Sprintf("Q%d", i+1), node("qc"), node("qb"), node("qe"), "qn")
+		}
+		s, err := Prepare(b.c)
+		if err != nil {
+			t.Skip("structurally invalid draw:", err)
+		}
+		r, err := s.Solve(Options{})
+		if err != nil {
+			return // no point reported: nothing to check
+		}
+		dopt := device.Options{TNom: b.c.Options.TNom, GMin: DefaultGMin}
+		exact, inGap := true, true
+		for j, el := range s.bjts {
+			q, _ := device.NewBJT(el.model, 1, r.Temp, dopt)
+			vbe, vbc := r.BJTs[j].JunctionVBE, r.BJTs[j].JunctionVBC
+			exact = exact && q.Exact(vbe, vbc)
+			// Below the band gap (EG 1.11 V by default, NF = NR = 1 here).
+			inGap = inGap && vbe <= q.Scaled.EG && vbc <= q.Scaled.EG
+		}
+		for _, d := range r.Diodes {
+			dd, _ := device.NewDiode(b.c.Models["dm"], 1, r.Temp, dopt)
+			exact = exact && dd.Exact(d.V)
+		}
+		if !r.Physical() {
+			if exact && inGap {
+				t.Fatalf("marked not physical (%v) though every junction is in the exact range and below the band gap", r.Unphysical)
+			}
+			return
+		}
+		if !exact || !inGap {
+			t.Fatalf("reported physical, but a junction is beyond the exact range of its exponential or the band gap: %+v", r.BJTs)
+		}
+		if series {
+			return // kclResiduals evaluates the devices at their terminals: no series resistances
+		}
+		res, mag := kclResiduals(t, b.c, r)
+		for _, nv := range r.Nodes {
+			k := netlist.Key(nv.Name)
+			if tol := DefaultAbsTol + 1e-12*mag[k]; math.Abs(res[k]) > tol || math.IsNaN(res[k]) {
+				t.Fatalf("reported physical, but KCL at %s fails: residual %g A > %g (terms %g A)", nv.Name, res[k], tol, mag[k])
+			}
+		}
+	})
 }

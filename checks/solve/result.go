@@ -31,6 +31,11 @@ type Result struct {
 	Iterations int
 	// Temp is the circuit temperature, °C.
 	Temp float64
+	// Unphysical lists the devices whose operating point satisfies the
+	// solver's equations only through the continuation of junction
+	// exponentials: the real device law fails Kirchhoff's current law
+	// there (verify.go). Empty for a physical solution (Physical).
+	Unphysical []Unphysical
 }
 
 // NodeVoltage is one node's voltage.

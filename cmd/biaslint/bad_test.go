@@ -66,6 +66,9 @@ var badCases = []badCase{
 	netlistCase("value-nan", 2, ":2:8:", `"NaN"`),
 	netlistCase("value-overflow", 2, ":3:8:", `"1e999"`),
 	netlistCase("value-zero-resistor", 2, ":3:1:", "R1", "V1", "zero-ohm"),
+	// Values whose letters are often misread: read as SPICE reads them, with an alert in the default report.
+	netlistCase("value-letters", 0, ":6:8:", "1M is 1 milliohm", "1MEG"),
+	{name: "set-share-plain", args: []string{"check", "--set", "vceo_share=80", good}, code: 2, want: []string{"vceo_share", "80%"}, unlocated: true},
 	netlistCase("parens-open", 2, ":2:11:", "'('"),
 	netlistCase("parens-continuation", 2, ":2:15:", "'('"),
 	netlistCase("parens-extra-close", 2, ":3:10:", "')'"),

@@ -306,7 +306,7 @@ func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]
 	includedBy := map[string]string{}
 	for i, r := range reads {
 		for _, f := range r.files[min(1, len(r.files)):] {
-			k := filepath.Clean(f)
+			k := samePath(f)
 			if _, seen := includedBy[k]; !seen {
 				includedBy[k] = inputs[i].name
 			}
@@ -319,7 +319,7 @@ func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]
 		in, r := inputs[i], reads[i]
 		f := &files[i]
 		f.Path = in.name
-		if by, ok := includedBy[filepath.Clean(in.name)]; ok && by != in.name {
+		if by, ok := includedBy[samePath(in.name)]; ok && by != in.name {
 			f.Status, f.StatusDetail = report.StatusIncluded, by
 			return
 		}
@@ -352,9 +352,26 @@ func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]
 	}, pr.step)
 	pr.finish()
 	if len(inputs) == 1 && errs[0] != nil {
-		return nil, errs[0]
+		// The alerts (a value whose letters are often misread) may well
+		// be why the file fails: they go with its errors.
+		msg := errs[0].Error()
+		for _, n := range files[0].Notes {
+			if n.Alert {
+				msg += "\n" + n.Error()
+			}
+		}
+		return nil, errors.New(msg)
 	}
 	return files, nil
+}
+
+// samePath is a key under which two spellings of one file's path (relative
+// and absolute, with ./ or ..) agree.
+func samePath(p string) string {
+	if a, err := filepath.Abs(p); err == nil {
+		return a
+	}
+	return filepath.Clean(p)
 }
 
 // locate turns the error that kept a file from being judged into located

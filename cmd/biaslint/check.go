@@ -233,10 +233,10 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	return run, nil
 }
 
-// finish ends a check or report run whose report has been written: exit
-// status 2 when some file could not be judged (its located errors also go
-// to stderr, unless the text report on stdout already shows them), else
-// nil.
+// finish ends a check or report run whose report has been written: when
+// some file could not be judged its located errors also go to stderr
+// (unless the text report on stdout already shows them) and the result is
+// exit status 2, else nil.
 func (run *checkRun) finish(c *cli.Context, shown bool) error {
 	failed := run.report.Failed()
 	if len(failed) == 0 {
@@ -304,8 +304,8 @@ func runCheck(c *cli.Context) error {
 		return err
 	}
 	switch {
-	case len(run.report.Failed()) > 0: // some file could not be judged (finish says which)
-		run.report.ExitCode = exitBadInput
+	case len(run.report.Failed()) > 0:
+		run.report.ExitCode = exitBadInput // a file could not be judged
 	case run.report.AtOrAbove(failOn):
 		run.report.ExitCode = exitFindings
 	}
@@ -330,9 +330,7 @@ func runCheck(c *cli.Context) error {
 	if err := emit(c, &out); err != nil {
 		return err
 	}
-	if err := run.finish(c, format == "text" && c.String("output") == "" && c.String("summary") != "csv"); err != nil {
-		return err
-	}
+	_ = run.finish(c, format == "text" && c.String("output") == "" && c.String("summary") != "csv")
 	if run.report.ExitCode != exitOK {
 		return &statusError{code: run.report.ExitCode}
 	}

@@ -34,14 +34,23 @@ func opCommand() *cli.Command {
 
 // opFile is one file's operating point in the shape `op --format json` prints.
 type opFile struct {
-	File        string             `json:"file"`
-	Title       string             `json:"title"`
-	Temperature float64            `json:"temperature"`
-	Method      string             `json:"method"`
-	Iterations  int                `json:"iterations"`
-	Nodes       map[string]float64 `json:"nodes"`
-	Sources     map[string]float64 `json:"sources"`
-	BJTs        []opBJT            `json:"bjts"`
+	File        string  `json:"file"`
+	Title       string  `json:"title"`
+	Temperature float64 `json:"temperature"`
+	// TemperatureFrom says where the circuit temperature came from:
+	// --temp, .temp, or ambient (the same convention as check).
+	TemperatureFrom string             `json:"temperature_from"`
+	Method          string             `json:"method"`
+	Iterations      int                `json:"iterations"`
+	Nodes           map[string]float64 `json:"nodes"`
+	Sources         map[string]float64 `json:"sources"`
+	BJTs            []opBJT            `json:"bjts"`
+	// Physical is false when the solution satisfies the solver's
+	// equations only through the continuation of a junction exponential;
+	// NotPhysical then says why, per device, and the currents, powers and
+	// temperatures are left out (null).
+	Physical    bool     `json:"physical"`
+	NotPhysical []string `json:"not_physical,omitempty"`
 
 	nodeOrder []string
 }
@@ -54,11 +63,12 @@ type opBJT struct {
 	VBE      float64 `json:"vbe"`
 	VBC      float64 `json:"vbc"`
 	VCE      float64 `json:"vce"`
-	IC       float64 `json:"ic"`
-	IB       float64 `json:"ib"`
-	IE       float64 `json:"ie"`
-	Power    float64 `json:"power"`
-	Region   string  `json:"region"`
+	// IC, IB, IE and Power are null when the solution is not physical.
+	IC     *float64 `json:"ic"`
+	IB     *float64 `json:"ib"`
+	IE     *float64 `json:"ie"`
+	Power  *float64 `json:"power"`
+	Region string   `json:"region"`
 	// Tj is the junction temperature T + P*RthJA, C (null when RthJA is
 	// not known).
 	Tj  *float64 `json:"tj"`
@@ -77,7 +87,16 @@ func runOp(c *cli.Context) error {
 	var results []opFile
 	var problems []string
 	for _, in := range inputs {
-		circ, err := in.read()
+		rd := readInput(in)
+		if rd.library && len(inputs) > 1 {
+			// A library among the files of a batch: nothing to solve.
+			fmt.Fprintf(c.App.ErrWriter, "%s: library (only definitions, no circuit): not solved\n", in.name)
+			continue
+		}
+		circ, err := rd.circ, rd.err
+		if rd.library {
+			circ, err = in.read() // named alone: say why there is nothing to solve
+		}
 		if err != nil {
 			problems = append(problems, err.Error())
 			continue
@@ -89,7 +108,7 @@ func runOp(c *cli.Context) error {
 		}
 		results = append(results, r)
 	}
-	if len(problems) > 0 {
+	if len(problems) > 0 && (len(inputs) == 1 || len(results) == 0) {
 		return badInput(fmt.Errorf("%s", strings.Join(problems, "\n")))
 	}
 	var out bytes.Buffer
@@ -111,7 +130,15 @@ func runOp(c *cli.Context) error {
 		}
 		writeOpText(&out, results, palette{on: on})
 	}
-	return emit(c, &out)
+	if err := emit(c, &out); err != nil {
+		return err
+	}
+	if len(problems) > 0 {
+		// A batch: every file that solved is printed; the others' located
+		// errors go to stderr and the exit status is 2.
+		return badInput(fmt.Errorf("%s", strings.Join(problems, "\n")))
+	}
+	return nil
 }
 
 // solveOp solves one circuit and converts the result to the report shape.
@@ -120,10 +147,13 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	if err != nil {
 		return opFile{}, err
 	}
-	if t == nil {
-		t = &circ.Options.Temp
+	// The same circuit temperature as check: --temp, else the netlist's
+	// .temp, else the ambient (checks.DefaultAmbient).
+	amb := t
+	if t == nil && circ.Options.TempSet {
+		amb = &circ.Options.Temp
 	}
-	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: t, Thermal: c.Bool("thermal")})
+	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal")})
 	if err != nil {
 		return opFile{}, err
 	}
@@ -133,14 +163,25 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 		tj[q.Name] = q.Tj
 	}
 	f := opFile{
-		File:        circ.File,
-		Title:       circ.Title,
-		Temperature: res.Temp,
-		Method:      string(res.Method),
-		Iterations:  res.Iterations,
-		Nodes:       map[string]float64{},
-		Sources:     map[string]float64{},
-		BJTs:        []opBJT{},
+		File:            circ.File,
+		Title:           circ.Title,
+		Temperature:     res.Temp,
+		TemperatureFrom: an.TempFrom,
+		Method:          string(res.Method),
+		Iterations:      res.Iterations,
+		Nodes:           map[string]float64{},
+		Sources:         map[string]float64{},
+		BJTs:            []opBJT{},
+		Physical:        res.Physical(),
+	}
+	for _, u := range res.Unphysical {
+		f.NotPhysical = append(f.NotPhysical, u.Why)
+	}
+	num := func(v float64) *float64 {
+		if !f.Physical {
+			return nil
+		}
+		return &v
 	}
 	for _, n := range res.Nodes {
 		f.Nodes[n.Name] = n.V
@@ -154,10 +195,13 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	for _, q := range res.BJTs {
 		f.BJTs = append(f.BJTs, opBJT{
 			Name: q.Name, Model: q.Model, Polarity: q.Polarity,
-			VBE: q.VBE, VBC: q.VBC, VCE: q.VCE, IC: q.IC, IB: q.IB, IE: q.IE,
-			Power: q.Power, Region: string(q.Region), Pos: q.Pos.String(),
+			VBE: q.VBE, VBC: q.VBC, VCE: q.VCE, IC: num(q.IC), IB: num(q.IB), IE: num(q.IE),
+			Power: num(q.Power), Region: string(q.Region), Pos: q.Pos.String(),
 		})
-		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) {
+		if !f.Physical {
+			f.BJTs[len(f.BJTs)-1].Region = checks.RegionNotPhysical
+		}
+		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) && f.Physical {
 			f.BJTs[len(f.BJTs)-1].Tj = &v
 		}
 	}
@@ -177,7 +221,20 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			head += "  " + p.dim(report.Printable(r.Title))
 		}
 		fmt.Fprintln(w, p.bold(head))
-		fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", units.Format(r.Temperature, "C"), r.Method, r.Iterations)
+		at := units.Format(r.Temperature, "C")
+		if from := tempFromText[r.TemperatureFrom]; from != "" {
+			at += " (" + from + ")"
+		}
+		if r.Physical {
+			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", at, r.Method, r.Iterations)
+		} else {
+			fmt.Fprintf(w, "  %s at %s: %s converged in %d iterations to a point the device equations do not describe\n",
+				p.red("not physical"), at, r.Method, r.Iterations)
+			for _, why := range r.NotPhysical {
+				fmt.Fprintf(w, "  %s\n", why)
+			}
+			fmt.Fprintf(w, "  currents, power and temperature are not shown; give the junction a series resistance\n\n")
+		}
 		if len(r.BJTs) == 0 {
 			fmt.Fprintln(w, "  no bipolar transistors")
 		} else {
@@ -191,8 +248,8 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 				fmt.Fprintf(tw, "  %s\t%s %s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
 					report.Printable(q.Name), report.Printable(q.Model), p.dim(q.Polarity), regionText(p, q.Region),
 					units.Format(q.VBE, "V"), units.Format(q.VCE, "V"),
-					units.Format(q.IC, "A"), units.Format(q.IB, "A"),
-					forcedBeta(q), units.Format(q.Power, "W"), tjText)
+					orDash(q.IC, "A"), orDash(q.IB, "A"),
+					forcedBeta(q), orDash(q.Power, "W"), tjText)
 			}
 			tw.Flush()
 		}
@@ -206,13 +263,26 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 	}
 }
 
+// tempFromText says where a circuit temperature came from.
+var tempFromText = map[string]string{
+	checks.TempFromOption: "--temp", checks.TempFromNetlist: "the netlist's .temp", checks.TempFromAmbient: "the ambient",
+}
+
 // forcedBeta prints IC/IB, or "-" for a transistor in cutoff, whose
 // leakage currents give no meaningful ratio.
 func forcedBeta(q opBJT) string {
-	if q.Region == "cutoff" || q.IB == 0 {
+	if q.Region == "cutoff" || q.IB == nil || q.IC == nil || *q.IB == 0 {
 		return "-"
 	}
-	return fmt.Sprintf("%.1f", q.IC/q.IB)
+	return fmt.Sprintf("%.1f", *q.IC / *q.IB)
+}
+
+// orDash prints a value that may be left out.
+func orDash(v *float64, unit string) string {
+	if v == nil {
+		return "-"
+	}
+	return units.Format(*v, unit)
 }
 
 func regionText(p palette, region string) string {

@@ -63,7 +63,10 @@ func fieldAmpByHand() (vb, ve, vc float64) {
 // file, parameters and an instance override, an AC-coupled SIN input, and
 // E, F, G, H sources) to within 1 mV and 0.2 %.
 func TestFieldAmpAgainstHandCalculation(t *testing.T) {
-	r := opJSONOf(t, "testdata/op/field-amp.cir")
+	// The hand calculation is at 27 C (300.15 K), the model's TNOM, where
+	// IS and BF are as written; without --temp the circuit would sit at
+	// the 25 C ambient.
+	r := opJSONOf(t, "--temp", "27", "testdata/op/field-amp.cir")
 	vb, ve, vc := fieldAmpByHand()
 	want := map[string]float64{
 		"X1.b": vb, "X1.e": ve, "X1.c": vc,
@@ -92,5 +95,39 @@ func TestFieldAmpAgainstHandCalculation(t *testing.T) {
 	}
 	if s := r.Results[0].Sources["VCC"]; s >= 0 {
 		t.Errorf("I(VCC) = %g A; a supply delivering power shows a negative current", s)
+	}
+}
+
+// op and check solve at the same circuit temperature by default (the 25 C
+// ambient, not the models' TNOM of 27 C), and both say where it came from.
+func TestTemperatureConvention(t *testing.T) {
+	for _, tc := range []struct {
+		args []string
+		temp float64
+		from string
+	}{
+		{[]string{"testdata/check/floating-base.bad.cir"}, 25, "ambient"},
+		{[]string{"--temp", "40", "testdata/check/floating-base.bad.cir"}, 40, "--temp"},
+		{[]string{"testdata/netlist/dialect_spice2.cir"}, 27, ".temp"}, // .TEMP 27 70
+	} {
+		op := opJSONOf(t, tc.args...).Results[0]
+		out, errs, code := runCLI(t, append([]string{"check", "--format", "json"}, tc.args...)...)
+		if code == exitBadInput {
+			t.Fatalf("check %v: %s", tc.args, errs)
+		}
+		var chk struct {
+			Results []struct {
+				Temperature     float64 `json:"temperature"`
+				TemperatureFrom string  `json:"temperature_from"`
+			} `json:"results"`
+		}
+		if err := json.Unmarshal([]byte(out), &chk); err != nil {
+			t.Fatal(err)
+		}
+		c := chk.Results[0]
+		if op.Temperature != tc.temp || c.Temperature != tc.temp || op.TemperatureFrom != tc.from || c.TemperatureFrom != tc.from {
+			t.Errorf("%v: op at %g C (%s), check at %g C (%s); want both %g C (%s)",
+				tc.args, op.Temperature, op.TemperatureFrom, c.Temperature, c.TemperatureFrom, tc.temp, tc.from)
+		}
 	}
 }

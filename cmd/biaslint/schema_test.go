@@ -53,6 +53,14 @@ func TestJSONReportsValidateAgainstSchemas(t *testing.T) {
 	ops, _ := filepath.Glob("testdata/op/*.cir")
 	validate(t, op, append([]string{"op", "--format", "json"}, ops...)...)
 	validate(t, op, "op", "--format", "json", "--thermal", "--demo")
+	// A point that is not physical, alerts, several .temp values, and a
+	// batch with files that could not be judged (exit status 2).
+	validate(t, check, "check", "--format", "json", "testdata/dialect/stiff.cir", "testdata/dialect/handtyped.cir", "testdata/dialect/spice2.cir")
+	validate(t, op, "op", "--format", "json", "testdata/dialect/stiff.cir")
+	out, _, _ := runCLI(t, "check", "--format", "json", "testdata/batch")
+	if inst, err := jsonschema.UnmarshalJSON(strings.NewReader(out)); err != nil || check.Validate(inst) != nil {
+		t.Errorf("the mixed batch's report does not validate: %v %v", err, check.Validate(inst))
+	}
 
 	for _, doc := range []string{
 		`{"ruleset":"default","ambient":25,"results":[],"summary":{"error":0,"warning":0,"note":0,"waived":0}}`,

@@ -71,9 +71,35 @@ func bad(s, format string, args ...any) error {
 // 60062 RKM code (4k7, 2R2, R47), which classic SPICE readers would read
 // differently (4k7 as 4e3).
 func ParseValue(s string) (v float64, rkm bool, err error) {
+	r, err := Read(s)
+	return r.Value, r.RKM, err
+}
+
+// Reading is how Read took a value apart.
+type Reading struct {
+	// Value is the value in SI units.
+	Value float64
+	// RKM reports an IEC 60062 code (4k7).
+	RKM bool
+	// Suffix is the scale suffix as written ("k", "M", "meg", "" for none);
+	// Unit the letters after it, as written, which do not change Value
+	// ("Ohm" in 10kOhm, "x" in 4.7x). Both are empty for an RKM code.
+	Suffix, Unit string
+}
+
+// Read is Parse that also says how the text was read: the scale suffix and
+// the trailing letters it ignored, so a caller can tell the user when
+// those letters change the meaning in a way people often get wrong (1M on
+// a resistor is one milliohm; 4.7x drops the x).
+func Read(s string) (Reading, error) {
+	v, rkm, suf, unit, err := read(s)
+	return Reading{Value: v, RKM: rkm, Suffix: suf, Unit: unit}, err
+}
+
+func read(s string) (v float64, rkm bool, suf, unit string, err error) {
 	t := strings.TrimSpace(s)
 	if t == "" {
-		return 0, false, fmt.Errorf("%w: empty value", ErrSyntax)
+		return 0, false, "", "", fmt.Errorf("%w: empty value", ErrSyntax)
 	}
 	i := 0
 	neg := false
@@ -86,7 +112,7 @@ func ParseValue(s string) (v float64, rkm bool, err error) {
 		if neg {
 			v = -v
 		}
-		return v, true, err
+		return v, true, "", "", err
 	}
 	// Mantissa: digits [. digits] or . digits.
 	j := 0
@@ -103,7 +129,7 @@ func ParseValue(s string) (v float64, rkm bool, err error) {
 		}
 	}
 	if nd == 0 {
-		return 0, false, bad(s, "not a number")
+		return 0, false, "", "", bad(s, "not a number")
 	}
 	// Exponent: e or E, optional sign, at least one digit. An 'e' not followed
 	// by digits is not an exponent and no SPICE suffix starts with it.
@@ -117,7 +143,7 @@ func ParseValue(s string) (v float64, rkm bool, err error) {
 			k++
 		}
 		if k == ds {
-			return 0, false, bad(s, "exponent has no digits")
+			return 0, false, "", "", bad(s, "exponent has no digits")
 		}
 		j = k
 	}
@@ -127,30 +153,31 @@ func ParseValue(s string) (v float64, rkm bool, err error) {
 		mant = num[:e]
 		x, err := strconv.Atoi(num[e+1:])
 		if err != nil {
-			return 0, false, bad(s, "out of range")
+			return 0, false, "", "", bad(s, "out of range")
 		}
 		exp = x
 	}
 	rest := body[j:]
 	exp10, mul, n := suffix(rest)
+	suf = rest[:n]
 	rest = rest[n:]
 	for _, r := range rest {
 		if !unicode.IsLetter(r) {
-			return 0, false, bad(s, "unexpected %q after the number", r)
+			return 0, false, "", "", bad(s, "unexpected %q after the number", r)
 		}
 	}
 	m, ok := decimal(mant, exp+exp10)
 	if !ok {
-		return 0, false, bad(s, "out of range")
+		return 0, false, "", "", bad(s, "out of range")
 	}
 	v = m * mul
 	if math.IsInf(v, 0) || math.IsNaN(v) {
-		return 0, false, bad(s, "out of range")
+		return 0, false, "", "", bad(s, "out of range")
 	}
 	if neg {
 		v = -v
 	}
-	return v, false, nil
+	return v, false, suf, rest, nil
 }
 
 // suffix reads the SPICE suffix at the start of s. The scale is

@@ -201,3 +201,34 @@ func TestRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// Read says which letters it took as the scale suffix and which it
+// ignored as a unit, so callers can tell the user (SPICE suffix rules:
+// M milli, MEG mega, F femto; letters after the suffix ignored).
+func TestRead(t *testing.T) {
+	for _, tc := range []struct {
+		in           string
+		want         float64
+		suffix, unit string
+	}{
+		{"1M", 1e-3, "M", ""},
+		{"1MEG", 1e6, "MEG", ""},
+		{"10kOhm", 1e4, "k", "Ohm"},
+		{"4.7x", 4.7, "", "x"},
+		{"1F", 1e-15, "F", ""},
+		{"100nF", 100e-9, "n", "F"},
+		{"5V", 5, "", "V"},
+		{"2.2", 2.2, "", ""},
+	} {
+		r, err := Read(tc.in)
+		if err != nil {
+			t.Fatalf("Read(%q): %v", tc.in, err)
+		}
+		if math.Abs(r.Value-tc.want) > 1e-12*math.Abs(tc.want) || r.Suffix != tc.suffix || r.Unit != tc.unit || r.RKM {
+			t.Errorf("Read(%q) = %+v, want %g suffix %q unit %q", tc.in, r, tc.want, tc.suffix, tc.unit)
+		}
+	}
+	if r, err := Read("4k7"); err != nil || !r.RKM || r.Suffix != "" || r.Unit != "" {
+		t.Errorf("Read(4k7) = %+v, %v; want an RKM code with no suffix or unit", r, err)
+	}
+}

@@ -79,11 +79,13 @@ type htmlFinding struct {
 
 type htmlDevice struct {
 	ID, Name, Caption string
-	SVG               template.HTML
-	PlotError         string
-	Margins           []htmlMargin
-	Points            []htmlPoint
-	LoadNote          string
+	// Role and RoleReason say what the transistor does and why.
+	Role, RoleReason string
+	SVG              template.HTML
+	PlotError        string
+	Margins          []htmlMargin
+	Points           []htmlPoint
+	LoadNote         string
 }
 
 type htmlMargin struct {
@@ -100,10 +102,11 @@ type htmlGrid struct {
 }
 
 type htmlGridRow struct {
-	ID, Path    string
-	Transistors int
-	Cells       []htmlGridCell
-	Counts      Counts
+	// Status is the file's status when it was not checked, else "".
+	ID, Path, Status string
+	Transistors      int
+	Cells            []htmlGridCell
+	Counts           Counts
 }
 
 type htmlGridCell struct {
@@ -215,6 +218,9 @@ func htmlDevices(fileID string, f *File, planes []plane.Plane) []htmlDevice {
 		}
 		t, ok := facts[pl.Device]
 		d.Margins = htmlMargins(pl, t, ok)
+		if ok {
+			d.Role, d.RoleReason = t.Role, t.RoleReason
+		}
 		for _, p := range pl.Points {
 			d.Points = append(d.Points, htmlPoint{Case: p.Case, Kind: string(p.Kind), VCE: units.Format(p.VCE, "V"),
 				IC: units.Format(p.IC, "A"), Power: units.Format(p.Power, "W"), Region: p.Region})
@@ -239,6 +245,14 @@ func htmlMargins(pl plane.Plane, t checks.Transistor, haveFacts bool) []htmlMarg
 	}
 	row := func(label string, v float64, at string, limit float64, unit string) htmlMargin {
 		m := htmlMargin{Label: label, Value: units.Format(v, unit), Limit: "not rated", Class: "unknown"}
+		if math.IsInf(v, -1) || math.IsNaN(v) {
+			// No case gave a physical point.
+			m.Value = "not known"
+			if !math.IsNaN(limit) && !math.IsInf(limit, 0) {
+				m.Limit = units.Format(limit, unit)
+			}
+			return m
+		}
 		if at != "" && len(pl.Points) > 1 {
 			m.Value += " (" + at + ")"
 		}
@@ -296,6 +310,9 @@ func htmlGridOf(r *Report, files []htmlFile) *htmlGrid {
 	sort.Strings(g.Rules)
 	for i, f := range r.Files {
 		row := htmlGridRow{ID: files[i].ID, Path: f.Path, Transistors: files[i].Transistors, Counts: files[i].Counts}
+		if st := f.Status.Of(); st != StatusChecked {
+			row.Status = string(st)
+		}
 		for _, id := range g.Rules {
 			cell := htmlGridCell{}
 			rank := 99
@@ -401,7 +418,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <div class="scroll"><table class="grid">
 <thead><tr><th>file</th><th>transistors</th><th>errors</th><th>warnings</th><th>notes</th>{{range .Rules}}<th class="rule"><code>{{.}}</code></th>{{end}}</tr></thead>
 <tbody>
-{{range .Rows}}<tr class="grid-row"><td class="path"><a href="#{{.ID}}">{{.Path}}</a></td><td class="n">{{.Transistors}}</td><td class="n{{if .Counts.Error}} count-error{{end}}">{{.Counts.Error}}</td><td class="n{{if .Counts.Warning}} count-warning{{end}}">{{.Counts.Warning}}</td><td class="n">{{.Counts.Note}}</td>{{range .Cells}}<td class="n {{.Class}}">{{if .N}}{{.N}}{{end}}</td>{{end}}</tr>
+{{range .Rows}}<tr class="grid-row"><td class="path"><a href="#{{.ID}}">{{.Path}}</a>{{if .Status}} <span class="unchecked">({{.Status}})</span>{{end}}</td><td class="n">{{.Transistors}}</td><td class="n{{if .Counts.Error}} count-error{{end}}">{{.Counts.Error}}</td><td class="n{{if .Counts.Warning}} count-warning{{end}}">{{.Counts.Warning}}</td><td class="n">{{.Counts.Note}}</td>{{range .Cells}}<td class="n {{.Class}}">{{if .N}}{{.N}}{{end}}</td>{{end}}</tr>
 {{end}}</tbody>
 </table></div>
 </section>
@@ -444,7 +461,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <div class="devices">
 {{range .Devices}}<figure class="device" id="{{.ID}}">
 {{if .SVG}}{{.SVG}}{{else}}<p>No plot: {{.PlotError}}</p>{{end}}
-<figcaption>{{.Caption}}{{if .LoadNote}} No load line: {{.LoadNote}}.{{end}}</figcaption>
+<figcaption>{{if .Role}}<strong>{{.Name}}: {{.Role}}</strong> ({{.RoleReason}}). {{end}}{{.Caption}}{{if .LoadNote}} No load line: {{.LoadNote}}.{{end}}</figcaption>
 <table class="margins"><thead><tr><th>worst case</th><th>value</th><th>rating</th><th>share</th></tr></thead><tbody>
 {{range .Margins}}<tr><td>{{.Label}}</td><td>{{.Value}}</td><td>{{.Limit}}</td><td class="{{.Class}}">{{.Share}}</td></tr>
 {{end}}</tbody></table>

@@ -41,6 +41,9 @@ type jsonNote struct {
 	Severity string `json:"severity"`
 	Position string `json:"position"`
 	Message  string `json:"message"`
+	// Alert marks a note every report shows (a value's letters that
+	// people often misread).
+	Alert bool `json:"alert,omitempty"`
 }
 
 type jsonFile struct {
@@ -49,15 +52,19 @@ type jsonFile struct {
 	// Status is checked, input-errors, library, included (or a caller's
 	// own word); Detail says more; Errors locate what kept the file from
 	// being judged.
-	Status      string        `json:"status"`
-	Detail      string        `json:"status_detail,omitempty"`
-	Errors      []jsonNote    `json:"errors"`
-	Transistors int           `json:"transistors"`
-	BJTs        []jsonBJT     `json:"bjts"`
-	Findings    []jsonFinding `json:"findings"`
-	Waived      []jsonFinding `json:"waived"`
-	Notes       []jsonNote    `json:"notes"`
-	Summary     Counts        `json:"summary"`
+	Status string     `json:"status"`
+	Detail string     `json:"status_detail,omitempty"`
+	Errors []jsonNote `json:"errors"`
+	// Temperature is the nominal case's circuit temperature, C, and
+	// TemperatureFrom where it came from: --temp, .temp or ambient.
+	Temperature     *float64      `json:"temperature,omitempty"`
+	TemperatureFrom string        `json:"temperature_from,omitempty"`
+	Transistors     int           `json:"transistors"`
+	BJTs            []jsonBJT     `json:"bjts"`
+	Findings        []jsonFinding `json:"findings"`
+	Waived          []jsonFinding `json:"waived"`
+	Notes           []jsonNote    `json:"notes"`
+	Summary         Counts        `json:"summary"`
 }
 
 // jsonBJT is one transistor in the case that matters for its role
@@ -240,6 +247,9 @@ func JSON(w io.Writer, r *Report) error {
 		for _, e := range f.Errors {
 			jf.Errors = append(jf.Errors, jsonNote{Severity: "error", Position: e.Pos.String(), Message: e.Msg})
 		}
+		if an := f.Analysis; an != nil && an.TempFrom != "" {
+			jf.Temperature, jf.TemperatureFrom = finite(an.Temp), an.TempFrom
+		}
 		for _, x := range f.Findings {
 			if x.Waived {
 				jf.Waived = append(jf.Waived, toJSON(x))
@@ -248,7 +258,7 @@ func JSON(w io.Writer, r *Report) error {
 			}
 		}
 		for _, n := range f.Notes {
-			jf.Notes = append(jf.Notes, jsonNote{Severity: n.Severity.String(), Position: n.Pos.String(), Message: n.Msg})
+			jf.Notes = append(jf.Notes, jsonNote{Severity: n.Severity.String(), Position: n.Pos.String(), Message: n.Msg, Alert: n.Alert})
 		}
 		out.Results = append(out.Results, jf)
 	}

@@ -148,38 +148,6 @@ func ruleHelp(ru *rules.Rule) string {
 	return strings.Join(parts, "\n\n")
 }
 
-// statusNotifications lists, in report order, the notifications of the
-// files that were not checked: each located error of a file that could not
-// be judged (level error), or one line with its status (a file left out on
-// purpose, level note). The notes about reading each file are added by
-// SARIF itself.
-func statusNotifications(r *Report) []sarifNotification {
-	var out []sarifNotification
-	for i := range r.Files {
-		f := &r.Files[i]
-		if f.Status.Of() == StatusChecked {
-			continue
-		}
-		if !f.Status.Failed() || len(f.Errors) == 0 {
-			lvl := "note"
-			if f.Status.Failed() {
-				lvl = "error"
-			}
-			out = append(out, sarifNotification{Level: lvl, Message: sarifText{f.Path + ": " + StatusText(f)},
-				Locations: []sarifLocation{physical(f.Path, netlist.Pos{})}})
-			continue
-		}
-		for _, e := range f.Errors {
-			file := e.Pos.File
-			if file == "" {
-				file = f.Path
-			}
-			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)}})
-		}
-	}
-	return out
-}
-
 // fileURI turns a path into a relative URI reference with forward slashes.
 func fileURI(p string) string {
 	p = filepath.ToSlash(p)
@@ -278,12 +246,45 @@ func SARIF(w io.Writer, r *Report) error {
 		}
 	}
 	inv.ToolExecutionNotifications = append(inv.ToolExecutionNotifications, statusNotifications(r)...)
-	inv.ExecutionSuccessful = len(r.Failed()) == 0
+	if len(r.Failed()) > 0 {
+		inv.ExecutionSuccessful = false
+	}
 	run.Invocations = []sarifInvocation{inv}
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	enc.SetEscapeHTML(false)
 	return enc.Encode(sarifLog{Schema: SARIFSchema, Version: "2.1.0", Runs: []sarifRun{run}})
+}
+
+// statusNotifications lists the notifications of the files that were not
+// checked, in report order: a file that could not be judged gives its
+// located errors (level error), a file left out on purpose (a library, an
+// included file) one note.
+func statusNotifications(r *Report) []sarifNotification {
+	var out []sarifNotification
+	for i := range r.Files {
+		f := &r.Files[i]
+		if f.Status.Of() == StatusChecked {
+			continue
+		}
+		if !f.Status.Failed() || len(f.Errors) == 0 {
+			lvl := "note"
+			if f.Status.Failed() {
+				lvl = "error"
+			}
+			out = append(out, sarifNotification{Level: lvl, Message: sarifText{f.Path + ": " + StatusText(f)},
+				Locations: []sarifLocation{physical(f.Path, netlist.Pos{})}})
+			continue
+		}
+		for _, e := range f.Errors {
+			file := e.Pos.File
+			if file == "" {
+				file = f.Path
+			}
+			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)}})
+		}
+	}
+	return out
 }
 
 func level(s rules.Severity) string {

@@ -20,7 +20,8 @@ type TextOptions struct {
 	// NO_COLOR, or --color always).
 	Color bool
 	// Notes prints the input notes (reading the netlist, annotations);
-	// input warnings are printed either way.
+	// input warnings and alerts (netlist.Error.Alert: a value whose
+	// letters people often misread) are printed either way.
 	Notes bool
 	// Transistors prints a table of each file's transistors: role, nominal
 	// region, IC and VCE, and the hottest junction over every case.
@@ -69,6 +70,9 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			title = "  " + p.with(f.Title, color.Faint)
 		}
 		ew.printf("%s%s\n", p.with(f.Path, color.Bold), title)
+		if t := TempText(f); t != "" {
+			ew.printf("  %s\n", p.with(t, color.Faint))
+		}
 		if f.Status.Of() != StatusChecked {
 			writeUnchecked(ew, p, f, opt)
 			continue
@@ -308,12 +312,12 @@ func filesText(r *Report) string {
 	return s + " (" + strings.Join(parts, ", ") + ")"
 }
 
-// writeNotes prints a file's input notes: warnings always, notes when
-// asked for.
+// writeNotes prints a file's input notes: warnings and alerts (readings
+// people often get wrong) always, other notes when asked for.
 func writeNotes(ew *errWriter, f *File, opt TextOptions) {
 	var shown []*netlist.Error
 	for _, e := range f.Notes {
-		if opt.Notes || e.Severity == netlist.SevWarning {
+		if opt.Notes || e.Severity == netlist.SevWarning || e.Alert {
 			shown = append(shown, e)
 		}
 	}
@@ -323,4 +327,19 @@ func writeNotes(ew *errWriter, f *File, opt TextOptions) {
 			ew.printf("  %s\n", e.Error())
 		}
 	}
+}
+
+// TempText says at which temperatures a file's nominal case was solved:
+// the circuit temperature and where it came from, and the ambient; "" when
+// the file was not analysed.
+func TempText(f *File) string {
+	an := f.Analysis
+	if an == nil || len(an.Cases) == 0 {
+		return ""
+	}
+	from := map[string]string{"--temp": "from --temp", ".temp": "from the netlist's .temp", "ambient": "the ambient"}[an.TempFrom]
+	if from == "" {
+		from = an.TempFrom
+	}
+	return fmt.Sprintf("circuit at %s (%s), ambient %s", units.Format(an.Temp, "C"), from, units.Format(an.Cases[0].Ambient, "C"))
 }
