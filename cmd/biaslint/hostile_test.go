@@ -259,3 +259,29 @@ func TestProjectIncludeDir(t *testing.T) {
 		t.Errorf("a missing folder: exit %d, %s", code, errs)
 	}
 }
+
+// TestClassFoldersConfined: with one folder argument per submission (a
+// glob matching each student's folder), a netlist cannot include a
+// classmate's, and the classmate's is still checked on its own.
+func TestClassFoldersConfined(t *testing.T) {
+	labs := filepath.Join(t.TempDir(), "labs")
+	for _, d := range []string{"alice", "bob"} {
+		if err := os.MkdirAll(filepath.Join(labs, d), 0o755); err != nil {
+			t.Fatal(err)
+		}
+	}
+	src, err := os.ReadFile(good)
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, filepath.Join(labs, "bob", "bob.cir"), src)
+	writeFile(t, filepath.Join(labs, "alice", "alice.cir"), []byte("Alice's board, copied\n.include ../bob/bob.cir\n.end\n"))
+	out, _, code := runCLI(t, "check", "--summary", "csv", filepath.Join(labs, "*"))
+	if code != exitBadInput {
+		t.Errorf("exit %d, want 2 (alice's include is refused)", code)
+	}
+	if !strings.Contains(out, `include ""../bob/bob.cir"" is outside the folders`) || !strings.Contains(out, "bob.cir,\"Buzzer driver") ||
+		!strings.Contains(out, ",checked,") {
+		t.Errorf("want alice's include refused and bob's board checked:\n%s", out)
+	}
+}
