@@ -10,6 +10,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"strconv"
 	"time"
 
 	"github.com/urfave/cli/v2"
@@ -99,4 +100,30 @@ func overBudget(path, title string, d time.Duration) (report.File, error) {
 	f := report.File{Path: path, Title: title, Status: report.StatusOverBudget, StatusDetail: why,
 		Errors: []*netlist.Error{{Pos: netlist.Pos{File: path, Line: 1, Col: 1}, Msg: "not checked: " + why}}}
 	return f, fmt.Errorf("%s:1:1: error: not checked: %s", path, why)
+}
+
+// loosensBudget returns why a project-file value of a budget key is
+// refused, or "": the project file travels with the netlists (a pull
+// request can change it), so it may tighten a per-file budget, not loosen
+// it; a longer one is given on the command line.
+func loosensBudget(key, val string) string {
+	var ok bool
+	var limit string
+	switch key {
+	case "file-timeout":
+		d, err := time.ParseDuration(val)
+		ok, limit = err != nil || (d > 0 && d <= defaultFileTimeout), defaultFileTimeout.String()
+	case "file-elements":
+		n, err := strconv.Atoi(val)
+		ok, limit = err != nil || (n > 0 && n <= netlist.DefaultMaxElements), strconv.Itoa(netlist.DefaultMaxElements)
+	case "file-mib":
+		n, err := strconv.Atoi(val)
+		ok, limit = err != nil || (n > 0 && n <= netlist.DefaultMaxTotalSize>>20), strconv.Itoa(netlist.DefaultMaxTotalSize>>20)
+	default:
+		return ""
+	}
+	if ok {
+		return "" // a malformed value is reported by the flag itself
+	}
+	return fmt.Sprintf("%s %s would loosen the per-file budget (the default is %s); the project file can only tighten it: give a larger one with --%s", key, val, limit, key)
 }

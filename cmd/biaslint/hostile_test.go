@@ -253,6 +253,25 @@ func TestProjectIncludeDir(t *testing.T) {
 	if _, errs, code := runCLI(t, "check", "stage.cir"); code == exitBadInput {
 		t.Errorf("with include-dir in the project file: exit 2: %s", errs)
 	}
+	// The project file travels with the netlists (a pull request can
+	// change it): it cannot allow a folder outside its own tree.
+	for _, d := range []string{"/", "..", filepath.Dir(top)} {
+		writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte("include-dir: ["+d+"]\n"))
+		if _, errs, code := runCLI(t, "check", "stage.cir"); code != exitBadInput || !strings.Contains(errs, "biaslint.yaml:1:14: error: project file: include-dir "+d+" is outside the project file's folder") {
+			t.Errorf("include-dir %s in the project file: exit %d, %s", d, code, errs)
+		}
+	}
+	// Nor loosen a per-file budget; tightening is fine.
+	for _, kv := range []string{"file-timeout: 0", "file-timeout: 10m", "file-elements: 900000", "file-mib: 4096"} {
+		writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte(kv+"\n"))
+		if _, errs, code := runCLI(t, "check", "stage.cir"); code != exitBadInput || !strings.Contains(errs, "would loosen the per-file budget") {
+			t.Errorf("%s in the project file: exit %d, %s", kv, code, errs)
+		}
+	}
+	writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte("file-timeout: 20s\nfile-elements: 5000\nfile-mib: 8\ninclude-dir: [models]\n"))
+	if _, errs, code := runCLI(t, "check", "stage.cir"); code == exitBadInput {
+		t.Errorf("tighter budgets in the project file: exit 2: %s", errs)
+	}
 	// A folder that does not exist is reported as --include-dir would be.
 	writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte("include-dir: no-such-folder\n"))
 	if _, errs, code := runCLI(t, "check", "stage.cir"); code != exitBadInput || !strings.Contains(errs, "not a folder") {

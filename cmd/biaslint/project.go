@@ -185,6 +185,14 @@ func readProjectFile(path, shown string) ([]projectSetting, error) {
 			if isFile && !filepath.IsAbs(val) {
 				s.values[j] = filepath.Join(dir, filepath.FromSlash(val))
 			}
+			// The project file travels with the netlists (a pull request
+			// can change it): it may allow folders of its own tree only.
+			if key == "include-dir" && !insideFolder(s.values[j], dir) {
+				errs.Addf(at(v), "project file: include-dir %s is outside the project file's folder; a folder outside it can only be allowed with --include-dir on the command line", val)
+			}
+			if msg := loosensBudget(key, val); msg != "" {
+				errs.Addf(at(v), "project file: %s", msg)
+			}
 		}
 		out = append(out, s)
 	}
@@ -291,4 +299,22 @@ fail-on: error
 #   vceo_share: 80%
 # skip: [no-emitter-degeneration]
 `
+}
+
+// insideFolder reports whether path lies in dir or below it, both with
+// their symbolic links resolved (a path that does not exist is judged as
+// written).
+func insideFolder(path, dir string) bool {
+	real := func(p string) string {
+		a, err := filepath.Abs(p)
+		if err != nil {
+			return p
+		}
+		if r, err := filepath.EvalSymlinks(a); err == nil {
+			return r
+		}
+		return a
+	}
+	rel, err := filepath.Rel(real(dir), real(path))
+	return err == nil && rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator)) && !filepath.IsAbs(rel)
 }
