@@ -261,6 +261,16 @@ func TestProjectIncludeDir(t *testing.T) {
 			t.Errorf("include-dir %s in the project file: exit %d, %s", d, code, errs)
 		}
 	}
+	// Nor name a parts library, board file or rule set elsewhere.
+	if err := os.Symlink("/etc/passwd", filepath.Join(top, "linked.yaml")); err != nil {
+		t.Fatal(err)
+	}
+	for _, kv := range []string{"parts: /etc/passwd", "board: ../outside.yaml", "ruleset: [/etc/passwd.yaml]", "parts: linked.yaml"} {
+		writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte(kv+"\n"))
+		if _, errs, code := runCLI(t, "check", "stage.cir"); code != exitBadInput || !strings.Contains(errs, "is outside the project file's folder") || strings.Contains(errs, "root:") {
+			t.Errorf("%s in the project file: exit %d, %s", kv, code, errs)
+		}
+	}
 	// Nor loosen a per-file budget; tightening is fine.
 	for _, kv := range []string{"file-timeout: 0", "file-timeout: 10m", "file-elements: 900000", "file-mib: 4096"} {
 		writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte(kv+"\n"))

@@ -186,9 +186,11 @@ func readProjectFile(path, shown string) ([]projectSetting, error) {
 				s.values[j] = filepath.Join(dir, filepath.FromSlash(val))
 			}
 			// The project file travels with the netlists (a pull request
-			// can change it): it may allow folders of its own tree only.
-			if key == "include-dir" && !insideFolder(s.values[j], dir) {
-				errs.Addf(at(v), "project file: include-dir %s is outside the project file's folder; a folder outside it can only be allowed with --include-dir on the command line", val)
+			// can change it): it may name files and folders of its own tree
+			// only, links resolved, so it cannot make the check read (and
+			// quote) a file elsewhere on the machine.
+			if isFile && !insideFolder(s.values[j], dir) {
+				errs.Addf(at(v), "project file: %s %s is outside the project file's folder; a file or folder outside it can only be named with --%s on the command line", key, val, key)
 			}
 			if msg := loosensBudget(key, val); msg != "" {
 				errs.Addf(at(v), "project file: %s", msg)
