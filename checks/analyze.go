@@ -133,6 +133,15 @@ type analyzer struct {
 	// min" and "hfe max" corners (0 where the corner does not apply).
 	hfeFactor [][2]float64
 	pool      *pool
+	// enet is the resistor network of the emitter resistances, rnet the
+	// nets held by ideal sources.
+	enet *emitterNetwork
+	rnet *railNets
+	// sys is the nominal circuit prepared once (structure checked).
+	sys *solve.System
+	// multistable is set once the nominal solution was found unstable:
+	// later cases are then tested too (see settleCases).
+	multistable bool
 	// ratingNoted marks the models (by key) whose combined ratings have
 	// been noted.
 	ratingNoted map[string]bool
@@ -143,6 +152,34 @@ type analyzer struct {
 // nominal case; the order of the others is fixed by the circuit and the
 // options, never by the scheduling of the workers.
 func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
+	a, err := newAnalyzer(c, opt)
+	if err != nil {
+		return nil, err
+	}
+	a.g = newGraph(c, a.board)
+	if err := a.templates(); err != nil {
+		return nil, err
+	}
+	a.pool = newPool(a)
+	an, err := a.run()
+	if ctx := a.opt.Context; ctx != nil && ctx.Err() != nil {
+		// Stopped: the cases solved after the stop are not results.
+		return nil, fmt.Errorf("analysis stopped: %w", ctx.Err())
+	}
+	if err != nil {
+		return nil, err
+	}
+	an.Board = a.board
+	an.Temp, an.TempFrom = a.temp, a.tempFrom
+	a.notes.Sort()
+	an.Notes = a.notes.List
+	return an, nil
+}
+
+// newAnalyzer checks the options and the circuit's structure and sets up
+// what every analysis needs: board settings, parts, temperatures, nominal
+// values and the transistor list.
+func newAnalyzer(c *netlist.Circuit, opt Options) (*analyzer, error) {
 	if c == nil {
 		return nil, fmt.Errorf("no circuit to analyse")
 	}
@@ -177,7 +214,6 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	if r := opt.AmbientRange; r != nil && (!(r[0] <= r[1]) || r[0] < -273.15 || math.IsInf(r[1], 0)) {
 		return nil, fmt.Errorf("ambient range %g:%g C is not a range of temperatures", r[0], r[1])
 	}
-	a.g = newGraph(c, b)
 	// Structural problems are reported once, against the circuit as given.
 	sys, err := solve.Prepare(c)
 	if err != nil {
@@ -186,24 +222,86 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	for _, n := range sys.Notes() {
 		a.notes.Notef(n.Pos, "%s", n.Msg)
 	}
+	a.sys = sys
 	a.prepare()
-	if err := a.templates(); err != nil {
-		return nil, err
-	}
-	a.pool = newPool(a)
-	an, err := a.run()
-	if ctx := opt.Context; ctx != nil && ctx.Err() != nil {
-		// Stopped: the cases solved after the stop are not results.
-		return nil, fmt.Errorf("analysis stopped: %w", ctx.Err())
-	}
+	return a, nil
+}
+
+// OpPoint is the nominal operating point of a circuit, as op prints it.
+type OpPoint struct {
+	// Solution is the nominal case's solution.
+	Solution *solve.Result
+	// Tj is each transistor's junction temperature Ta + P·RthJA by flat
+	// name, C (NaN where RthJA is not known).
+	Tj map[string]float64
+	// Temp and TempFrom are the circuit temperature, C, and where it came
+	// from (as Analysis.Temp, Analysis.TempFrom).
+	Temp     float64
+	TempFrom string
+	// NotPhysical holds the flat names of the transistors whose point is
+	// not physical (every one when the node voltages ran away): their
+	// currents, power and temperature have no meaning.
+	NotPhysical map[string]bool
+	// States is not nil when the first DC solution found was unstable (as
+	// Analysis.States): Solution is then the first stable state, and
+	// States.Cases counts the stable states found.
+	States *States
+}
+
+// OperatingPoint solves only the nominal case of c, as Analyze would
+// (opt.Thermal: each transistor at its junction temperature). It computes
+// no topology, role or Thevenin facts and no other case: what the op
+// command prints.
+func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
+	a, err := newAnalyzer(c, opt)
 	if err != nil {
 		return nil, err
 	}
-	an.Board = b
-	an.Temp, an.TempFrom = a.temp, a.tempFrom
-	a.notes.Sort()
-	an.Notes = a.notes.List
-	return an, nil
+	a.tmpl = make([]Transistor, len(a.bjts))
+	for i, el := range a.bjts {
+		a.tmpl[i] = Transistor{Name: el.Name, Polarity: a.polarity(el)}
+		a.tmpl[i].Rating = a.ratings(el, a.modelName(el), a.tmpl[i].Polarity)
+	}
+	sp := caseSpec{scenario: "nominal", kind: KindNominal, ambient: a.ambient, temp: a.temp, thermal: opt.Thermal, guess: -1}
+	res, th, err := a.solveThermal(a.sys, &sp, nil)
+	if err != nil {
+		return nil, err
+	}
+	// An unstable root is never the operating point: start again from the
+	// first stable state, as Analyze does.
+	var multi *States
+	if states, unstable, err := a.stableStates(&sp, &caseOut{res: res, th: th}); err != nil {
+		return nil, err
+	} else if unstable != nil {
+		multi = &States{Unstable: unstable, Cases: []int{0}, Message: a.statesNote(unstable, states)}
+		for i := 1; i < len(states); i++ {
+			multi.Cases = append(multi.Cases, i)
+		}
+		if len(states) > 0 {
+			sp.start = states[0]
+			if res, th, err = a.solveThermal(a.sys, &sp, states[0]); err != nil {
+				return nil, err
+			}
+		}
+	}
+	tj, notPhys := map[string]float64{}, map[string]bool{}
+	bad, whole := unphysicalDevices(c, res)
+	for _, op := range res.BJTs {
+		j, ok := a.bjtIdx[netlist.Key(op.Name)]
+		if !ok {
+			continue
+		}
+		if whole || bad[netlist.Key(op.Name)] {
+			notPhys[op.Name] = true
+		}
+		r := a.tmpl[j].Rating
+		t := sp.ambient + op.Power*r.RthJA
+		if sp.thermal && !math.IsNaN(r.RthJA) && !th.runaway[j] {
+			t = op.Temp
+		}
+		tj[op.Name] = t
+	}
+	return &OpPoint{Solution: res, Tj: tj, Temp: a.temp, TempFrom: a.tempFrom, NotPhysical: notPhys, States: multi}, nil
 }
 
 // prepare records the nominal values and the nets' first positions.
@@ -248,18 +346,8 @@ func (a *analyzer) templates() error {
 
 // template computes one BJT's case-independent facts.
 func (a *analyzer) template(el *netlist.Element) Transistor {
-	pol := "npn"
-	m := a.c.Models[netlist.Key(el.Model)]
-	if m == nil {
-		m = a.c.Models[el.Model]
-	}
-	if m != nil && m.Type == netlist.PNP {
-		pol = "pnp"
-	}
-	s := 1.0
-	if pol == "pnp" {
-		s = -1
-	}
+	pol := a.polarity(el)
+	m := a.model(el)
 	t := Transistor{
 		Name: el.Name, Polarity: pol,
 		Collector: el.Nodes[0], Base: el.Nodes[1], Emitter: el.Nodes[2],
@@ -280,8 +368,34 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 		t.Drives = append(t.Drives, d.Name)
 	}
 	t.EmitterR = a.emitterResistance(el)
-	t.BaseRth, t.BaseVth = thevenin(a.opt.Context, a.c, el.Name, s, a.temp)
+	// BaseRth and BaseVth are solved after the nominal case (theveninAll).
+	t.BaseRth, t.BaseVth = math.NaN(), math.NaN()
 	return t
+}
+
+// model returns a transistor's model card, or nil.
+func (a *analyzer) model(el *netlist.Element) *netlist.Model {
+	m := a.c.Models[netlist.Key(el.Model)]
+	if m == nil {
+		m = a.c.Models[el.Model]
+	}
+	return m
+}
+
+// modelName returns the name of a transistor's model card as written.
+func (a *analyzer) modelName(el *netlist.Element) string {
+	if m := a.model(el); m != nil {
+		return m.Name
+	}
+	return ""
+}
+
+// polarity returns "pnp" for a transistor with a PNP model, else "npn".
+func (a *analyzer) polarity(el *netlist.Element) string {
+	if m := a.model(el); m != nil && m.Type == netlist.PNP {
+		return "pnp"
+	}
+	return "npn"
 }
 
 // transistor fills one BJT's case facts: the template's, with the

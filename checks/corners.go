@@ -25,6 +25,13 @@ package checks
 //     for a linear stage, drive weak (forced beta high) for a switch.
 //     Corners with the same resistor values are solved once, named after
 //     the first objective that asked for them.
+//   - "resistors worst R3 power": the same analysis with each resistor's
+//     own dissipation as the objective, so a resistor that exceeds its
+//     rating only at the end of its own tolerance (a resistor across a
+//     rail at -5 %) is found. The sensitivity solves are shared with the
+//     transistor objectives; a corner is made only for a resistor whose
+//     first-order worst power reaches powerScreen of its rating, at most
+//     maxPowerCorners per group, the nearest to their rating first.
 //
 // Corners are single-factor: not a product of every kind, which would
 // multiply the case count without telling a reviewer which tolerance
@@ -44,6 +51,14 @@ import (
 // sensitivityStep is the relative resistor step of the first-order
 // sensitivities.
 const sensitivityStep = 1e-4
+
+// powerScreen is the share of its power rating that a resistor's
+// first-order worst-case dissipation must reach for it to get a power
+// corner of its own; maxPowerCorners bounds those corners per group.
+const (
+	powerScreen     = 0.5
+	maxPowerCorners = 20
+)
 
 // conductingIC is the forward collector current above which a transistor
 // counts as conducting for the resistor corners, A (the default rule set's
@@ -225,6 +240,36 @@ func (a *analyzer) corners(specs []caseSpec, outs []caseOut, groups []int) ([]ca
 	return out, nil
 }
 
+// movedShare is the relative change of a transistor's collector current
+// (or a change of region) by which a drive-level scenario counts as
+// moving its operating point.
+const movedShare = 1e-3
+
+// moves reports whether transistor j's operating point differs between
+// the nominal solution and another scenario's: its region, or its IC by
+// more than movedShare (of IC, at least conductingIC).
+func (a *analyzer) moves(nom, other *solve.Result, j int) bool {
+	p, q := bjtOp(nom, a.bjts[j].Name, j), bjtOp(other, a.bjts[j].Name, j)
+	if p == nil || q == nil {
+		return true
+	}
+	return p.Region != q.Region || math.Abs(q.IC-p.IC) > movedShare*math.Max(math.Abs(p.IC), conductingIC)
+}
+
+// bjtOp finds transistor name in a result: at index j when the result
+// lists the transistors in circuit order (it does), else by a search.
+func bjtOp(r *solve.Result, name string, j int) *solve.BJTOp {
+	if j < len(r.BJTs) && netlist.Key(r.BJTs[j].Name) == netlist.Key(name) {
+		return &r.BJTs[j]
+	}
+	for k := range r.BJTs {
+		if netlist.Key(r.BJTs[k].Name) == netlist.Key(name) {
+			return &r.BJTs[k]
+		}
+	}
+	return nil
+}
+
 // setKey sets key to v in set.
 func setKey(set []setting, key string, v float64) []setting {
 	for i := range set {
@@ -327,14 +372,34 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		rs, tol = a.nearestResistors(rs, tol)
 	}
 	n := len(a.bjts)
-	// Job g*(len(rs)+1)+0 is the group's tight base solve; +1+i moves
-	// resistor i.
+	// A drive-level group moves the resistors only for the transistors
+	// whose operating point it changes: the others' worst resistor
+	// corners are the nominal group's, and repeating them in every group
+	// would make the case count grow as drives times transistors.
+	feels := make([][]bool, len(groups))
+	var active []int
+	for gi, g := range groups {
+		feels[gi] = make([]bool, n)
+		any := false
+		for j := range a.bjts {
+			feels[gi][j] = gi == 0 || outs[g].res == nil || a.moves(outs[0].res, outs[g].res, j)
+			any = any || feels[gi][j]
+		}
+		if any {
+			active = append(active, gi)
+		}
+	}
+	// Job a*(len(rs)+1)+0 is active group a's tight base solve; +1+i
+	// moves resistor i.
 	per := len(rs) + 1
 	ic := make([][]float64, len(groups)*per)
 	beta := make([][]float64, len(groups)*per)
+	// pw[k][i] is the dissipation of resistor rs[i] in solve k, W.
+	pw := make([][]float64, len(groups)*per)
 	errs := make([]error, len(groups)*per)
-	a.pool.each(len(groups)*per, func(w *worker, k int) {
-		gi, i := k/per, k%per-1
+	a.pool.each(len(active)*per, func(w *worker, k int) {
+		gi, i := active[k/per], k%per-1
+		k = gi*per + i + 1
 		sp := specs[groups[gi]]
 		if w.err != nil {
 			errs[k] = w.err
@@ -364,7 +429,11 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			errs[k] = err
 			return
 		}
-		ic[k], beta[k] = make([]float64, n), make([]float64, n)
+		ic[k], beta[k], pw[k] = make([]float64, n), make([]float64, n), make([]float64, len(rs))
+		for m, el := range rs {
+			v := r.Voltage[nodeKey(el.Nodes[0])] - r.Voltage[nodeKey(el.Nodes[1])]
+			pw[k][m] = v * v / valueOf(&caseSpec{set: set}, netlist.Key(el.Name), el.Value)
+		}
 		for _, op := range r.BJTs {
 			j := a.bjtIdx[netlist.Key(op.Name)]
 			s := 1.0
@@ -385,7 +454,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		a.notes.Warnf(pos, "the resistor corners of case %s are unjudged (every other case is judged): their sensitivities could not be solved: %s",
 			rulesCaseName(&specs[groups[k/per]]), msg)
 	}
-	for gi := range groups {
+	for _, gi := range active {
 		if failed[gi] {
 			continue
 		}
@@ -406,7 +475,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			out[gi] = append(out[gi], resistorCorner{name: a.bjts[j].Name + " " + what, set: set})
 		}
 		for j := range a.bjts {
-			if !(ic[b][j] > conductingIC) {
+			if !feels[gi][j] || !(ic[b][j] > conductingIC) {
 				continue
 			}
 			corner(j, "IC-high", ic, true)
@@ -416,6 +485,59 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 				corner(j, "IC-low", ic, false)
 			}
 		}
+		out[gi] = append(out[gi], a.powerCorners(rs, tol, pw[b:b+per])...)
+	}
+	return out
+}
+
+// powerCorners returns the corners that push each resistor towards its own
+// worst dissipation, from the powers pw of one group's sensitivity solves
+// (pw[0] the base solve, pw[1+i] with resistor i moved): every resistor
+// goes to the end of its tolerance that raises the objective's power. Only
+// resistors whose first-order worst power, P + Σ|ΔP_i|/sensitivityStep·tol_i,
+// reaches powerScreen of their rating get one, at most maxPowerCorners,
+// nearest to their rating first.
+func (a *analyzer) powerCorners(rs []*netlist.Element, tol []float64, pw [][]float64) []resistorCorner {
+	type cand struct {
+		j     int
+		share float64
+	}
+	var cands []cand
+	for j, el := range rs {
+		p0 := pw[0][j]
+		worst := p0
+		for i := range rs {
+			worst += math.Abs(pw[1+i][j]-p0) / sensitivityStep * tol[i]
+		}
+		rating := DefaultResistorPower
+		if d := a.board.Device(el.Name); d != nil && !math.IsNaN(d.Power) {
+			rating = d.Power
+		}
+		if share := worst / rating; share >= powerScreen && !math.IsNaN(share) {
+			cands = append(cands, cand{j, share})
+		}
+	}
+	sort.SliceStable(cands, func(x, y int) bool { return cands[x].share > cands[y].share })
+	if len(cands) > maxPowerCorners {
+		cands = cands[:maxPowerCorners]
+	}
+	sort.SliceStable(cands, func(x, y int) bool { return cands[x].j < cands[y].j })
+	var out []resistorCorner
+	for _, c := range cands {
+		p0 := pw[0][c.j]
+		var set []setting
+		for i, r := range rs {
+			d := pw[1+i][c.j] - p0
+			if math.Abs(d) <= 1e-9*math.Abs(p0) || math.IsNaN(d) {
+				continue
+			}
+			sign := 1.0
+			if d < 0 {
+				sign = -1
+			}
+			set = append(set, setting{netlist.Key(r.Name), r.Value * (1 + sign*tol[i])})
+		}
+		out = append(out, resistorCorner{name: rs[c.j].Name + " power", set: set})
 	}
 	return out
 }

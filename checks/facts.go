@@ -294,6 +294,10 @@ type Analysis struct {
 	// Notes are located notes and warnings about the analysis (e.g. a
 	// device checked against generic ratings).
 	Notes []*netlist.Error
+	// States is not nil when the first DC solution found was unstable (a
+	// circuit with positive feedback): it lists the stable states and the
+	// cases that hold them (see states.go).
+	States *States
 	// Temp is the circuit temperature of the nominal case, C, and
 	// TempFrom where it came from (TempFromOption, TempFromNetlist or
 	// TempFromAmbient).

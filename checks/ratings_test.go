@@ -71,3 +71,34 @@ Q1 c b e ONLYPD
 		}
 	}
 }
+
+// A bleed resistor straight across a 12 V rail held exactly (tol=0): 600
+// Ohm dissipates 12^2/600 = 240 mW, inside its 250 mW rating; at the low
+// end of its own 5 % tolerance, 570 Ohm, it dissipates 12^2/570 = 252.6 mW,
+// beyond it (Ohm's law). Its value does not move any transistor's current,
+// so only a corner aimed at its own dissipation finds this.
+func TestResistorCornerTowardsItsOwnPower(t *testing.T) {
+	const src = `indicator board
+VCC vcc 0 12
+*@device VCC tol=0
+RBLEED vcc 0 600
+*@device RBLEED power=250m
+RB vcc b 470k
+RC vcc c 4.7k
+RE e 0 1k
+Q1 c b e SMALL
+*@device Q1 role=linear
+*@part SMALL vceo=40 vcbo=60 vebo=6 icmax=200m pd=625m tjmax=150 rthja=200 hfemin=100 hfemax=300
+.model SMALL NPN (IS=1e-14 BF=200)
+.end
+`
+	a := analyzeWith(t, src, checks.Options{Corners: true})
+	fs := findings(t, a, "resistor-overpower")
+	if len(fs) != 1 || fs[0].Device != "RBLEED" {
+		t.Fatalf("resistor-overpower findings %v; want RBLEED at its own -5 %% corner", fs)
+	}
+	f := fs[0]
+	if f.Corner != "resistors worst RBLEED power" || math.Abs(f.Value-144.0/570) > 1e-6 {
+		t.Errorf("RBLEED: %s/%s, %g W; want 'resistors worst RBLEED power' at 12^2/570 = %g W", f.Scenario, f.Corner, f.Value, 144.0/570)
+	}
+}

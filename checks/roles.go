@@ -141,9 +141,10 @@ type roleIndex struct {
 const maxEmitterResistors = 4
 
 func newRoleIndex(g *graph, bjts []*netlist.Element, pol []string) *roleIndex {
-	x := &roleIndex{g: g, bjts: bjts, pol: pol, node: map[string]string{}, name: map[string]string{},
-		rail: map[string]bool{}, baseAt: map[string][]int{}, collAt: map[string][]int{}, emitAt: map[string][]int{},
-		res: map[string][]*netlist.Element{}, elems: map[string][]*netlist.Element{}, near: map[string][]int{}}
+	m, n := len(g.at), len(bjts)
+	x := &roleIndex{g: g, bjts: bjts, pol: pol, node: make(map[string]string, m), name: make(map[string]string, m),
+		rail: map[string]bool{}, baseAt: make(map[string][]int, n), collAt: make(map[string][]int, n), emitAt: make(map[string][]int, n),
+		res: make(map[string][]*netlist.Element, m), elems: make(map[string][]*netlist.Element, m), near: make(map[string][]int, n)}
 	uf := newUnionFind()
 	for _, e := range g.c.Elements {
 		if len(e.Nodes) >= 2 && (e.Kind == 'L' || e.Kind == 'R' && e.Value == 0) {
@@ -180,7 +181,6 @@ func newRoleIndex(g *graph, bjts []*netlist.Element, pol []string) *roleIndex {
 			}
 		}
 	}
-	n := len(bjts)
 	x.c, x.b, x.e = make([]string, n), make([]string, n), make([]string, n)
 	for j, q := range bjts {
 		x.c[j], x.b[j], x.e[j] = x.nodeOf(q.Nodes[0]), x.nodeOf(q.Nodes[1]), x.nodeOf(q.Nodes[2])
@@ -335,7 +335,7 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 	}
 	// Mirrors first: a reference names its outputs.
 	for j := range bjts {
-		if x.c[j] != x.b[j] {
+		if x.c[j] != x.b[j] || x.rail[x.b[j]] {
 			continue
 		}
 		rail, _ := x.emitterRail(j)
@@ -354,7 +354,7 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 		}
 	}
 	for j := range bjts { // Wilson type: emitter on a reference's diode net
-		if set[j] {
+		if set[j] || x.rail[x.e[j]] || x.rail[x.b[j]] {
 			continue
 		}
 		for _, r := range x.collAt[x.e[j]] {
@@ -430,7 +430,13 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 		if oc := others(x.baseAt[x.c[j]], j); len(oc) > 0 && !x.rail[x.c[j]] {
 			why = "collector on the base of " + x.names(oc)
 		} else if r := x.between(x.b[j], x.e[j]); r != nil {
-			if oe := append(others(x.emitAt[x.b[j]], j), others(x.emitAt[x.e[j]], j)...); len(oe) > 0 {
+			var oe []int // emitters feeding the resistor, at a rail they feed nothing in particular
+			for _, k := range []string{x.b[j], x.e[j]} {
+				if !x.rail[k] {
+					oe = append(oe, others(x.emitAt[k], j)...)
+				}
+			}
+			if len(oe) > 0 {
 				why = fmt.Sprintf("base-emitter across %s in the emitter path of %s", r.Name, x.names(oe))
 			}
 		}
@@ -491,6 +497,9 @@ func classify(g *graph, bjts []*netlist.Element, pol []string, ops []nominalOp, 
 	for steps := 0; len(work) > 0 && steps <= 2*n; steps++ {
 		s := work[0]
 		work = work[1:]
+		if x.rail[x.c[s]] {
+			continue // a collector on a rail feeds no base through its resistors
+		}
 		for _, r := range x.res[x.c[s]] {
 			far := x.far(r, x.c[s])
 			for _, j := range x.baseAt[far] {

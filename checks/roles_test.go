@@ -222,3 +222,15 @@ func TestPinNet(t *testing.T) {
 		})
 	}
 }
+
+// A transistor that is off with its base resistor to ground is not a
+// clamp because other emitters sit on ground too: the resistor must be
+// one another transistor's emitter feeds (as in a current limiter).
+func TestOffIsNotClampByRail(t *testing.T) {
+	a := analyze(t, "jig\nVCC vcc 0 5\nRL vcc out 1k\nQ1 out b 0 N\nQ2 out b 0 N\nRS b 0 1k\n.model N NPN\n")
+	for _, name := range []string{"Q1", "Q2"} {
+		if q := transistor(t, a, name); q.Role != RoleCommonEmitter {
+			t.Errorf("%s: %s (%s), want common-emitter", name, q.Role, q.RoleReason)
+		}
+	}
+}

@@ -66,6 +66,9 @@ type caseSpec struct {
 	// (-1 for a cold start); group the index of the drive-level scenario's
 	// nominal-corner case this case belongs to (-1 for none).
 	guess, group int
+	// start, when not nil, warm-starts the case instead of guess (a
+	// stable state found after the nominal solve, see states.go).
+	start *solve.Result
 	// swing is the swept source and level its deviation (swing cases).
 	swing *swingSource
 	level float64
@@ -261,57 +264,33 @@ func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
 		return caseOut{err: w.err}
 	}
 	w.setHFE(sp.hfe)
-	sys := w.sys
-	var out caseOut
-	var oc *netlist.Circuit
-	if sp.open != nil && sp.open.Kind == 'V' {
-		oc = w.opened(sp.open)
-		s, err := solve.Prepare(oc)
-		if err != nil {
-			return caseOut{err: err}
-		}
-		sys = s
-		set := make([]setting, 0, len(sp.set))
-		for _, x := range sp.set {
-			if x.key != netlist.Key(sp.open.Name) {
-				set = append(set, x)
-			}
-		}
-		var none []string
-		if err := w.apply(sys, &none, set); err != nil {
-			return caseOut{err: err}
-		}
-	} else if err := w.apply(sys, &w.dirty, sp.set); err != nil {
+	if err := w.apply(w.sys, &w.dirty, sp.set); err != nil {
 		return caseOut{err: err}
 	}
-	out.res, out.th, out.err = w.a.solveThermal(sys, sp, guess)
+	var out caseOut
+	out.res, out.th, out.err = w.a.solveThermal(w.sys, sp, guess)
 	if sp.open != nil {
-		if oc == nil {
-			oc = w.circ // a current source opened by setting it to zero
-		}
-		w.openThevenin(oc, sp, &out)
+		w.openThevenin(sp, &out)
 	}
 	return out
 }
 
-// opened returns the worker's circuit with voltage source src replaced by
-// a leak resistor (solve.LeakR, the conductance SPICE places across junctions):
-// the source lets go of its net, and no net is left without a DC path.
-func (w *worker) opened(src *netlist.Element) *netlist.Circuit {
-	c := *w.circ
-	c.Elements = make([]*netlist.Element, 0, len(w.circ.Elements))
-	for _, e := range w.circ.Elements {
-		if netlist.Key(e.Name) == netlist.Key(src.Name) {
-			e = &netlist.Element{Kind: 'R', Name: e.Name, Nodes: e.Nodes[:2], Value: solve.LeakR, Pos: e.Pos, Chain: e.Chain}
-		}
-		c.Elements = append(c.Elements, e)
+// opened lists the voltage source a case opens, for solve.Options.Open:
+// the source lets go of its net and carries its current through a leak
+// (solve.LeakR, the conductance SPICE places across junctions), so no net
+// is left without a DC path. A current source is opened by setting it to
+// zero instead.
+func opened(sp *caseSpec) []string {
+	if sp.open != nil && sp.open.Kind == 'V' {
+		return []string{sp.open.Name}
 	}
-	return &c
+	return nil
 }
 
 // openThevenin recomputes the Thevenin facts of the transistors whose base
-// the opened source drives, on the opened circuit.
-func (w *worker) openThevenin(oc *netlist.Circuit, sp *caseSpec, out *caseOut) {
+// the opened source drives, on the opened circuit, starting from the
+// case's solution.
+func (w *worker) openThevenin(sp *caseSpec, out *caseOut) {
 	if out.err != nil {
 		return
 	}
@@ -322,11 +301,7 @@ func (w *worker) openThevenin(oc *netlist.Circuit, sp *caseSpec, out *caseOut) {
 		if !drivenBy(&a.tmpl[j], sp.open.Name) {
 			continue
 		}
-		s := 1.0
-		if a.tmpl[j].Polarity == "pnp" {
-			s = -1
-		}
-		out.rth[j], out.vth[j] = thevenin(a.opt.Context, oc, a.bjts[j].Name, s, sp.temp)
+		out.rth[j], out.vth[j] = w.thevenin(j, opened(sp), sp.temp, out.res)
 		out.reth[j] = true
 	}
 }
@@ -351,7 +326,9 @@ func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error
 	a.pool.each(len(idx), func(w *worker, k int) {
 		i := idx[k]
 		var g *solve.Result
-		if sp := &specs[i]; sp.guess >= 0 && sp.guess < len(outs) {
+		if sp := &specs[i]; sp.start != nil {
+			g = sp.start
+		} else if sp.guess >= 0 && sp.guess < len(outs) {
 			g = outs[sp.guess].res
 		}
 		outs[i] = w.solveCase(&specs[i], g)
@@ -362,7 +339,22 @@ func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error
 			return caseError(&specs[i], outs[i].err)
 		}
 	}
-	return nil
+	if !a.multistable {
+		return nil
+	}
+	moved, err := a.settleCases(specs, outs, idx)
+	if err != nil || len(moved) == 0 {
+		return err
+	}
+	var names []string
+	for _, i := range moved {
+		names = append(names, rulesCaseName(&specs[i]))
+	}
+	a.notes.Notef(netlist.Pos{File: a.c.File, Line: 1, Col: 1}, "%d cases first solved to an unstable balance and use a stable state instead: %s",
+		len(moved), strings.Join(names, ", "))
+	a.multistable = false // the re-solve is judged as it lands
+	defer func() { a.multistable = true }()
+	return a.solveSpecs(specs, outs, moved)
 }
 
 // caseError names the case an error came from.
@@ -403,7 +395,33 @@ func (a *analyzer) run() (*Analysis, error) {
 		}
 		return nil, err
 	}
+	var multi *States
+	if states, unstable, err := a.stableStates(&specs[0], &outs[0]); err != nil {
+		return nil, err
+	} else if unstable != nil {
+		multi = &States{Unstable: unstable, Cases: []int{0}}
+		multi.Message = a.statesNote(unstable, states)
+		if len(states) > 0 {
+			// The nominal case from the first stable state, the others
+			// as cases of their own.
+			specs[0].start = states[0]
+			for i, st := range states[1:] {
+				multi.Cases = append(multi.Cases, len(specs))
+				specs = append(specs, caseSpec{scenario: stateName(i + 1), kind: KindState, ambient: a.ambient,
+					temp: a.temp, thermal: o.Thermal, guess: -1, group: -1, start: st})
+				outs = append(outs, caseOut{})
+			}
+			if err := a.solveSpecs(specs, outs, span(0, len(specs))); err != nil {
+				return nil, err
+			}
+		}
+	}
+	a.theveninAll(outs[0].res)
 	a.assignRoles(outs[0].res)
+	if multi != nil {
+		a.stateRoles(outs, multi.Cases)
+	}
+	a.multistable = multi != nil
 	// A .temp line with several temperatures: the first is the nominal
 	// case's, each other one is a case of its own (unless --temp, Temp,
 	// sets the temperature for all).
@@ -464,7 +482,7 @@ func (a *analyzer) run() (*Analysis, error) {
 			return nil, err
 		}
 	}
-	an := &Analysis{Circuit: a.c}
+	an := &Analysis{Circuit: a.c, States: multi}
 	// Cases that were not solved, grouped by where and why.
 	failed := map[string]*unjudgedCases{}
 	var failOrder []string
@@ -562,9 +580,41 @@ func caseList(cases []string) string {
 	return fmt.Sprintf("cases %s and %d more are", strings.Join(cases[:shown], ", "), len(cases)-shown)
 }
 
-// RegionNotPhysical is the region of every transistor in a case whose
-// operating point is not physical (Case.Unphysical).
+// voltagesRunAway reports whether a node of res lies a million times
+// beyond the largest source voltage of c (at least 1 V): a point that is
+// not physical has spread through the circuit.
+func voltagesRunAway(c *netlist.Circuit, res *solve.Result) bool {
+	top := 1.0
+	for _, el := range c.Elements {
+		if el.Kind == 'V' && el.Source != nil {
+			top = math.Max(top, math.Abs(el.Source.DC))
+		}
+	}
+	for _, n := range res.Nodes {
+		if !(math.Abs(n.V) <= 1e6*top) {
+			return true
+		}
+	}
+	return false
+}
+
+// RegionNotPhysical is the region of a transistor whose operating point
+// in a case is not physical (Case.Unphysical).
 const RegionNotPhysical = "not physical"
+
+// unphysicalDevices returns the keys of the devices whose operating point
+// in res is not physical, and whole = true when the node voltages ran
+// away so that no device of the case has a meaningful point.
+func unphysicalDevices(c *netlist.Circuit, res *solve.Result) (bad map[string]bool, whole bool) {
+	bad = map[string]bool{}
+	if res.Physical() {
+		return bad, false
+	}
+	for _, u := range res.Unphysical {
+		bad[netlist.Key(u.Device)] = true
+	}
+	return bad, voltagesRunAway(c, res)
+}
 
 // errorPlace splits a solver error into its position (the circuit's file
 // when it has none) and its message without the position.
@@ -629,20 +679,29 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 		cs.Transistors = append(cs.Transistors, t)
 	}
 	if !res.Physical() {
-		// Not physical (solve/verify.go): the currents, and with them every
-		// power, temperature and voltage they set, have no meaning. The
-		// transistors' region says so (a rule on the drive, such as
-		// unlimited-base-drive, still says what to fix); resistors and
-		// nets are left out of the case.
+		// Not physical (solve/verify.go): the currents of the devices named
+		// have no meaning, and with them their power and temperature. Their
+		// region says so (a rule on the drive, such as unlimited-base-drive,
+		// still says what to fix). The rest of the circuit keeps its facts
+		// while its node voltages stay within reach of its sources (an
+		// ideal source holds its node whatever the junction draws); when
+		// they do not, nothing in the case is reported: every transistor is
+		// marked, and resistors and nets are left out.
+		bad, whole := unphysicalDevices(a.c, res)
 		for k := range cs.Transistors {
 			t := &cs.Transistors[k]
+			if !whole && !bad[netlist.Key(t.Name)] {
+				continue
+			}
 			n := math.NaN()
 			t.VBE, t.VCE, t.VCB, t.IC, t.IB, t.IE, t.Beta, t.Power = n, n, n, n, n, n, n, n
 			t.Tj, t.RunawayTj, t.ThermalGain, t.ThermalRunaway = n, n, n, false
 			t.Region = RegionNotPhysical
 		}
 		cs.Unphysical = res.Unphysical
-		return cs
+		if whole {
+			return cs
+		}
 	}
 	for _, el := range a.c.Elements {
 		if el.Kind == 'R' && len(el.Nodes) == 2 {

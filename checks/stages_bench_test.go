@@ -4,7 +4,9 @@ import (
 	"fmt"
 	"runtime"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
@@ -33,17 +35,15 @@ func stages(b testing.TB, n int) *netlist.Circuit {
 	return c
 }
 
-func benchStages(b *testing.B, n int, opt checks.Options) {
-	c := stages(b, n)
-	b.ReportAllocs()
-	b.ResetTimer()
-	for i := 0; i < b.N; i++ {
-		a, err := checks.Analyze(c, opt)
-		if err != nil {
-			b.Fatal(err)
-		}
-		b.ReportMetric(float64(len(a.Cases)), "cases")
+func benchStages(b *testing.B, n int, opt checks.Options) { benchCircuit(b, stages(b, n), opt) }
+
+// cpuTime is the process's user plus system time so far.
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
 	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
 // BenchmarkStagesCorners is a full check (scenarios, corners, thermal) of

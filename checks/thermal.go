@@ -21,8 +21,9 @@ package checks
 //
 //	g = dP/dTj * RthJA,
 //
-// taken by a forward difference of gainStep kelvin with the other
-// junctions held. Below 1 a disturbance of the junction temperature dies
+// taken over a step of gainStep kelvin with the other junctions held, to
+// first order about the operating point (solve.System.SolveGains: one
+// factorisation for all transistors, not a solve per transistor). Below 1 a disturbance of the junction temperature dies
 // out and the fixed point is stable; at or above 1 it grows. The
 // judgement, per transistor:
 //
@@ -55,9 +56,9 @@ const (
 	// defaultTjMax is the Tj max assumed when the ratings give none, C: the
 	// usual rating of silicon parts in plastic packages (common practice).
 	defaultTjMax = 150
-	// gainStep is the junction-temperature step of the loop-gain
-	// difference, K.
-	gainStep = 1.0
+	// gainStep is the junction-temperature step, K, of the first-order
+	// loop gain: small enough that it gives the derivative dP/dTj.
+	gainStep = 1e-2
 	// thermalCapMargin is how far past its Tj max a junction is followed,
 	// K; beyond it the fixed point (if any) is estimated, not solved, since
 	// the device equations are far outside any data sheet there.
@@ -86,7 +87,7 @@ type thermalOut struct {
 // solveThermal solves one case on sys: with the electro-thermal iteration
 // when sp.thermal, else once with the transistors at sp.heldTemps.
 func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Result) (*solve.Result, thermalOut, error) {
-	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Context: a.opt.Context}
+	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Open: opened(sp), Context: a.opt.Context}
 	if !sp.thermal {
 		base.DeviceTemp = sp.heldTemps
 		res, err := sys.Solve(base)
@@ -132,6 +133,9 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 	// holds their unrelaxed step there.
 	capped := make([]bool, n)
 	d := make([]float64, n)
+	// tAt is the temperature d was taken at; d1, t1 the evaluation before
+	// (for a secant loop gain where the measured one fails).
+	tAt, d1, t1 := make([]float64, n), make([]float64, n), make([]float64, n)
 	settled, stopped := false, false
 	var prevT []float64
 	for it := 0; it < thermalMaxIter && !settled && !stopped; it++ {
@@ -165,7 +169,10 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 			if math.IsNaN(rth[j]) {
 				continue
 			}
-			d[j] = sp.temp + p[j]*rth[j] - T[j]
+			if it > 0 {
+				d1[j], t1[j] = d[j], tAt[j]
+			}
+			d[j], tAt[j] = sp.temp+p[j]*rth[j]-T[j], T[j]
 			dj := d[j]
 			if it > 0 && step[j] != 0 {
 				if dj*step[j] < 0 {
@@ -191,6 +198,11 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 	out.unsettled = !settled && !stopped
 	a.loopGains(sys, base, T, res, rth, out.gain, temps, power)
 	for j := range a.bjts {
+		if math.IsNaN(out.gain[j]) && capped[j] && tAt[j] != t1[j] {
+			// The circuit no longer solves at the last temperatures: the
+			// secant of the last two steps, g = 1 + Δd/ΔT.
+			out.gain[j] = 1 + (d[j]-d1[j])/(tAt[j]-t1[j])
+		}
 		g := out.gain[j]
 		switch {
 		case math.IsNaN(rth[j]) || rth[j] == 0:
@@ -217,31 +229,24 @@ func (a *analyzer) loopGains(sys *solve.System, base solve.Options, T []float64,
 	// Loop gains at the final junction temperatures.
 	opt := tightOptions(base)
 	opt.DeviceTemp, opt.Guess = temps(T), res
-	r0, err := sys.Solve(opt)
+	r0, dp, err := sys.SolveGains(opt, gainStep)
 	if err != nil {
 		for j := range gain {
 			gain[j] = math.NaN()
 		}
 		return
 	}
-	p0 := power(r0)
-	for j := range a.bjts {
-		if math.IsNaN(rth[j]) {
+	// dp is in the order of the result's transistors.
+	for k, op := range r0.BJTs {
+		j, ok := a.bjtIdx[netlist.Key(op.Name)]
+		if !ok || k >= len(dp) {
+			continue
+		}
+		switch {
+		case math.IsNaN(rth[j]):
 			gain[j] = math.NaN()
-			continue
+		case rth[j] != 0:
+			gain[j] = dp[k] * rth[j]
 		}
-		if rth[j] == 0 {
-			continue
-		}
-		Tp := append([]float64(nil), T...)
-		Tp[j] += gainStep
-		o := opt
-		o.DeviceTemp, o.Guess = temps(Tp), r0
-		r1, err := sys.Solve(o)
-		if err != nil {
-			gain[j] = math.NaN()
-			continue
-		}
-		gain[j] = (power(r1)[j] - p0[j]) / gainStep * rth[j]
 	}
 }

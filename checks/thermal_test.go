@@ -68,12 +68,13 @@ Q1 c b 0 HELD
 	sunk := analyzeWith(t, strings.Replace(src, "RTH", "10", 1), checks.Options{Thermal: true})
 	tr := q(&sunk.Cases[0], "Q1")
 	// The fixed point T = 25 + P(T)*10 by iteration of the hand formula,
-	// and the loop gain as the solver takes it: (P(T+1) - P(T))/1 K * RthJA.
+	// and the loop gain as the solver takes it, the derivative dP/dTj *
+	// RthJA (a central difference of 1 mK of the hand formula).
 	T := 25.0
 	for i := 0; i < 200; i++ {
 		T = 25 + heldPower(1e-14, 100, 0.74, 5, T)*10
 	}
-	gain := (heldPower(1e-14, 100, 0.74, 5, T+1) - heldPower(1e-14, 100, 0.74, 5, T)) * 10
+	gain := (heldPower(1e-14, 100, 0.74, 5, T+1e-3) - heldPower(1e-14, 100, 0.74, 5, T-1e-3)) / 2e-3 * 10
 	if math.Abs(tr.Tj-T) > 2e-3 {
 		t.Errorf("heat sink: Tj %.4f C, by hand %.4f C", tr.Tj, T)
 	}
@@ -82,6 +83,12 @@ Q1 c b 0 HELD
 	}
 	if fs := findings(t, sunk, "thermal-runaway"); len(fs) != 0 {
 		t.Errorf("heat sink: thermal-runaway fired: %s", fs[0].Message)
+	}
+	// A team limit below the stable gain: the message says what was found
+	// (close to runaway, the gain against that limit), not a runaway.
+	fs := findingsSet(t, sunk, "thermal-runaway", map[string]string{"thermal_gain_max": "0.05"})
+	if len(fs) != 1 || !strings.Contains(fs[0].Message, "is close to thermal runaway") || strings.Contains(fs[0].Message, "without bound") {
+		t.Errorf("heat sink, limit 0.05: %v", fs)
 	}
 
 	free := analyzeWith(t, strings.Replace(src, "RTH", "200", 1), checks.Options{Thermal: true})
@@ -97,7 +104,7 @@ Q1 c b 0 HELD
 	if !(tr.RunawayTj < 150) {
 		t.Errorf("free air: ran away from %g C, want below Tj max", tr.RunawayTj)
 	}
-	fs := findings(t, free, "thermal-runaway")
+	fs = findings(t, free, "thermal-runaway")
 	if len(fs) != 1 || !strings.Contains(fs[0].Message, "runs away thermally") || !strings.Contains(fs[0].Message, "reaches 1") {
 		t.Fatalf("free air: thermal-runaway findings %v", fs)
 	}

@@ -12,10 +12,6 @@ import (
 // having no DC source at all (it is held only by the leaks).
 const floatingR = 1e10
 
-// testCurrent is the current injected into the base to measure the
-// Thevenin resistance, A.
-const testCurrent = 1e-6
-
 // emitterResistance is the DC resistance from the emitter to its rail, Ohm:
 // with every voltage source and inductor shorted (an ideal source holds its
 // net still) and every current source, capacitor, diode and other
@@ -23,54 +19,38 @@ const testCurrent = 1e-6
 // emitter and ground. It is 0 for an emitter tied straight to a rail and
 // +Inf when no resistor path reaches one (a current-source tail, another
 // transistor).
+//
+// The network is searched from the emitter without passing through the
+// rail (ground and the nets sources tie to it): resistors beyond the rail
+// do not change the resistance between the emitter and the rail, so each
+// transistor costs the size of its own emitter network, not the board's.
 func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
-	// Supernodes: nets joined by shorts.
-	parent := map[string]string{}
-	find := func(x string) string { return findRoot(parent, x) }
-	for _, e := range a.c.Elements {
-		switch e.Kind {
-		case 'V', 'L', 'E', 'H':
-			if len(e.Nodes) >= 2 {
-				ra, rb := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
-				if ra != rb {
-					if rb == find(netlist.Ground) {
-						ra, rb = rb, ra
-					}
-					parent[rb] = ra // keep ground's set rooted at ground
-				}
-			}
-		}
-	}
+	en := a.emitterNet()
+	find := func(x string) string { return findRoot(en.parent, x) }
 	gnd := find(netlist.Ground)
 	emit := find(nodeKey(q.Nodes[2]))
 	if emit == gnd {
 		return 0
 	}
-	// Resistors between distinct supernodes, and the emitter's component.
-	adj := map[string][]*netlist.Element{}
-	for _, e := range a.c.Elements {
-		if e.Kind == 'R' && len(e.Nodes) == 2 {
-			x, y := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
-			if x != y {
-				adj[x] = append(adj[x], e)
-				adj[y] = append(adj[y], e)
-			}
-		}
-	}
 	seen := map[string]bool{emit: true}
 	queue := []string{emit}
 	var rs []*netlist.Element
 	inR := map[*netlist.Element]bool{}
+	reached := false
 	for len(queue) > 0 {
 		k := queue[0]
 		queue = queue[1:]
-		for _, e := range adj[k] {
+		for _, e := range en.adj[k] {
 			if !inR[e] {
 				inR[e] = true
 				rs = append(rs, e)
 			}
 			x, y := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
 			for _, n := range []string{x, y} {
+				if n == gnd {
+					reached = true
+					continue
+				}
 				if !seen[n] {
 					seen[n] = true
 					queue = append(queue, n)
@@ -78,7 +58,7 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 			}
 		}
 	}
-	if !seen[gnd] {
+	if !reached {
 		return math.Inf(1)
 	}
 	name := func(k string) string {
@@ -104,48 +84,121 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 	return res.Voltage[netlist.Key(name(emit))]
 }
 
-// thevenin is the Thevenin source the base of transistor name sees in
-// circuit c with the transistor removed: vth the open-circuit base voltage
-// forward-referenced to the emitter (V(B) - V(E) for an NPN, V(E) - V(B)
-// for a PNP, sign is +1 or -1), V, and rth the resistance, Ohm, measured by
-// injecting testCurrent into the base, both solved at temp (C). Both come
-// from solving the whole circuit, other transistors included. A base with
-// no DC source at all gives rth = +Inf and vth = NaN; a circuit that cannot
-// be solved without the transistor gives NaN for both. ctx (nil for none)
-// stops the solves (Options.Context).
-func thevenin(ctx context.Context, c *netlist.Circuit, name string, sign, temp float64) (rth, vth float64) {
-	var q *netlist.Element
-	for _, e := range c.Elements {
-		if e.Kind == 'Q' && netlist.Key(e.Name) == netlist.Key(name) {
-			q = e
+// emitterNetwork is the resistor network of emitterResistance: nets
+// joined into supernodes by shorts (voltage sources, inductors, E and H
+// sources), and the resistors between distinct supernodes by supernode.
+type emitterNetwork struct {
+	parent map[string]string
+	adj    map[string][]*netlist.Element
+}
+
+// emitterNet builds the emitter network once per analysis.
+func (a *analyzer) emitterNet() *emitterNetwork {
+	if a.enet != nil {
+		return a.enet
+	}
+	parent := map[string]string{}
+	find := func(x string) string { return findRoot(parent, x) }
+	for _, e := range a.c.Elements {
+		switch e.Kind {
+		case 'V', 'L', 'E', 'H':
+			if len(e.Nodes) >= 2 {
+				ra, rb := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
+				if ra != rb {
+					if rb == find(netlist.Ground) {
+						ra, rb = rb, ra
+					}
+					parent[rb] = ra // keep ground's set rooted at ground
+				}
+			}
 		}
 	}
-	if q == nil || len(q.Nodes) < 3 {
+	// Path compression, so that every later find is one step.
+	for k := range parent {
+		parent[k] = find(k)
+	}
+	adj := map[string][]*netlist.Element{}
+	for _, e := range a.c.Elements {
+		if e.Kind == 'R' && len(e.Nodes) == 2 {
+			x, y := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
+			if x != y {
+				adj[x] = append(adj[x], e)
+				adj[y] = append(adj[y], e)
+			}
+		}
+	}
+	a.enet = &emitterNetwork{parent: parent, adj: adj}
+	return a.enet
+}
+
+// thevenin is the Thevenin source the base of transistor j sees on the
+// worker's System with the transistor removed (solve.Options.Remove: its
+// terminals held by solve.LeakR) and the sources in open opened: vth the
+// open-circuit base voltage forward-referenced to the emitter (V(B) - V(E)
+// for an NPN, V(E) - V(B) for a PNP), V, and rth the resistance, Ohm, the
+// small-signal response of V(B) - V(E) to a current into the base
+// (solve.System.SolveResponse), both at temp (C). Both come from solving
+// the whole circuit, other transistors included, with one solve that
+// starts from guess (the case's own solution) on the System's matrix
+// pattern and ordering: no new System. A base with no DC source at all
+// gives rth = +Inf and vth = NaN; a circuit that cannot be solved without
+// the transistor gives NaN for both.
+func (w *worker) thevenin(j int, open []string, temp float64, guess *solve.Result) (rth, vth float64) {
+	if w.err != nil {
 		return math.NaN(), math.NaN()
 	}
-	base := func(extra float64) (float64, bool) {
-		var test []*netlist.Element
-		if extra != 0 {
-			test = append(test, &netlist.Element{Kind: 'I', Name: "I#test",
-				Nodes: []string{netlist.Ground, q.Nodes[1]}, Source: &netlist.Source{DC: extra, HasDC: true}, Pos: q.Pos})
-		}
-		tc := solve.Without(c, q, test...)
-		res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(temp), Context: ctx})
-		if err != nil {
-			return 0, false
-		}
-		return res.Voltage[nodeKey(q.Nodes[1])] - res.Voltage[nodeKey(q.Nodes[2])], true
-	}
-	v0, ok0 := base(0)
-	v1, ok1 := base(testCurrent)
-	if !ok0 || !ok1 {
+	return theveninOn(w.a.opt.Context, w.sys, w.a.bjts[j], w.a.tmpl[j].Polarity, open, temp, guess)
+}
+
+// theveninOn is thevenin on System sys, for transistor q of polarity pol;
+// ctx (nil for none) stops its solve (solve.Options.Context).
+func theveninOn(ctx context.Context, sys *solve.System, q *netlist.Element, pol string, open []string, temp float64, guess *solve.Result) (rth, vth float64) {
+	if len(q.Nodes) < 3 {
 		return math.NaN(), math.NaN()
 	}
-	rth = (v1 - v0) / testCurrent
+	sign := 1.0
+	if pol == "pnp" {
+		sign = -1
+	}
+	o := tightOptions(solve.Options{Temp: solve.Temp(temp), Remove: []string{q.Name}, Open: open, Guess: guess, Context: ctx})
+	vbe := func(r *solve.Result) float64 {
+		return r.Voltage[nodeKey(q.Nodes[1])] - r.Voltage[nodeKey(q.Nodes[2])]
+	}
+	r0, dv, err := sys.SolveResponse(o, map[string]float64{q.Nodes[1]: 1})
+	if err != nil {
+		return math.NaN(), math.NaN()
+	}
+	v0 := vbe(r0)
+	rth = dv[nodeKey(q.Nodes[1])] - dv[nodeKey(q.Nodes[2])]
 	if rth > floatingR {
 		return math.Inf(1), math.NaN()
 	}
 	return math.Max(rth, 0), sign * v0
+}
+
+// theveninAll computes every transistor's base Thevenin source on the
+// nominal circuit, starting from the nominal solution, on the workers.
+// Where the part of the board that removing the transistor can change is
+// small (localCircuit: up to the rails), only that part is solved, so
+// the facts of a board of many stages cost in proportion to the board,
+// not to its square.
+func (a *analyzer) theveninAll(nominal *solve.Result) {
+	a.rails() // built once, before the workers read it
+	a.pool.each(len(a.bjts), func(w *worker, j int) {
+		t := &a.tmpl[j]
+		if lc := a.localCircuit(a.bjts[j], nominal); lc != nil {
+			if sys, err := solve.Prepare(lc); err == nil {
+				t.BaseRth, t.BaseVth = theveninOn(a.opt.Context, sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
+				return
+			}
+		}
+		w.setHFE(0)
+		if err := w.apply(w.sys, &w.dirty, nil); err != nil || w.err != nil {
+			t.BaseRth, t.BaseVth = math.NaN(), math.NaN()
+			return
+		}
+		t.BaseRth, t.BaseVth = theveninOn(a.opt.Context, w.sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
+	})
 }
 
 // findRoot returns the root of x in the union-find forest parent (a net
@@ -160,3 +213,122 @@ func findRoot(parent map[string]string, x string) string {
 	}
 	return x
 }
+
+// railNets are the nets an ideal source holds: ground and every net tied
+// to it through voltage sources, inductors and zero-ohm resistors. A
+// change elsewhere in the circuit cannot move them.
+type railNets struct {
+	parent map[string]string
+	// at lists the elements on each net (by key), for the searches.
+	at map[string][]*netlist.Element
+	// controlled is set when the circuit has E, F, G or H sources, whose
+	// controls can couple nets that share no element.
+	controlled bool
+}
+
+// rails builds railNets once per analysis.
+func (a *analyzer) rails() *railNets {
+	if a.rnet != nil {
+		return a.rnet
+	}
+	r := &railNets{parent: map[string]string{}, at: map[string][]*netlist.Element{}}
+	find := func(x string) string { return findRoot(r.parent, x) }
+	for _, e := range a.c.Elements {
+		switch e.Kind {
+		case 'E', 'F', 'G', 'H':
+			r.controlled = true
+		}
+		hold := e.Kind == 'V' || e.Kind == 'L' || (e.Kind == 'R' && e.Value == 0)
+		if hold && len(e.Nodes) >= 2 {
+			ra, rb := find(nodeKey(e.Nodes[0])), find(nodeKey(e.Nodes[1]))
+			if ra != rb {
+				if rb == find(netlist.Ground) {
+					ra, rb = rb, ra
+				}
+				r.parent[rb] = ra
+			}
+		}
+		for _, n := range e.Nodes {
+			k := nodeKey(n)
+			if l := r.at[k]; len(l) == 0 || l[len(l)-1] != e {
+				r.at[k] = append(r.at[k], e)
+			}
+		}
+	}
+	for k := range r.parent {
+		r.parent[k] = find(k)
+	}
+	a.rnet = r
+	return r
+}
+
+// isRail reports whether net key k is held by an ideal source.
+func (r *railNets) isRail(k string) bool {
+	return findRoot(r.parent, k) == findRoot(r.parent, netlist.Ground)
+}
+
+// localCircuit is the part of the circuit that removing transistor q can
+// change: the elements reached from its terminals without passing through
+// a rail, with every rail net they touch held at its nominal voltage by a
+// source of its own. Solving it gives what solving the whole circuit
+// gives for those nets (the rails do not move), at the cost of the part
+// instead of the board. It returns nil when the circuit has controlled
+// sources (their controls can reach past the search) or the part is most
+// of the board anyway.
+func (a *analyzer) localCircuit(q *netlist.Element, nominal *solve.Result) *netlist.Circuit {
+	r := a.rails()
+	if r.controlled || nominal == nil {
+		return nil
+	}
+	seen := map[string]bool{}
+	inEl := map[*netlist.Element]bool{}
+	var els []*netlist.Element
+	var queue []string
+	for _, n := range q.Nodes[:3] {
+		if k := nodeKey(n); !r.isRail(k) && !seen[k] {
+			seen[k] = true
+			queue = append(queue, k)
+		}
+	}
+	for len(queue) > 0 {
+		k := queue[0]
+		queue = queue[1:]
+		for _, e := range r.at[k] {
+			if inEl[e] {
+				continue
+			}
+			inEl[e] = true
+			els = append(els, e)
+			for _, n := range e.Nodes {
+				if m := nodeKey(n); !r.isRail(m) && !seen[m] {
+					seen[m] = true
+					queue = append(queue, m)
+				}
+			}
+		}
+		if 2*len(els) > len(a.c.Elements) {
+			return nil
+		}
+	}
+	tc := *a.c
+	tc.Elements = make([]*netlist.Element, 0, len(els)+8)
+	held := map[string]bool{}
+	for _, e := range a.c.Elements { // in netlist order
+		if !inEl[e] {
+			continue
+		}
+		tc.Elements = append(tc.Elements, e)
+		for _, n := range e.Nodes {
+			k := nodeKey(n)
+			if r.isRail(k) && !isGroundKey(k) && !held[k] {
+				held[k] = true
+				tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'V', Name: "V#rail:" + k, Nodes: []string{n, netlist.Ground},
+					Source: &netlist.Source{DC: nominal.Voltage[k], HasDC: true}, Pos: e.Pos})
+			}
+		}
+	}
+	return &tc
+}
+
+// isGroundKey reports whether a net key is ground.
+func isGroundKey(k string) bool { return k == netlist.Ground || k == "gnd" }

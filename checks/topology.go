@@ -56,9 +56,10 @@ func isDriveSource(e *netlist.Element, b *board.Settings) bool {
 }
 
 func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
+	n := len(c.Elements) // about as many nets as elements: size the maps once
 	g := &graph{
-		c: c, at: map[string][]*netlist.Element{}, rail: map[string]bool{},
-		drive: map[string][]*netlist.Element{}, outputOf: map[string][]*netlist.Element{},
+		c: c, at: make(map[string][]*netlist.Element, n), rail: map[string]bool{},
+		drive: map[string][]*netlist.Element{}, outputOf: make(map[string][]*netlist.Element, n),
 		pin: map[string]*netlist.Element{},
 	}
 	bases := map[string]bool{}
@@ -82,7 +83,7 @@ func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
 		}
 	}
 	// Union-find over supply sources and inductors finds the rails.
-	uf := newUnionFind()
+	uf := newUnionFindSized(n / 8)
 	for _, e := range c.Elements {
 		pin := isPin[e]
 		switch {
@@ -172,7 +173,7 @@ func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool)
 // finding what drives every base costs O(elements) in all, not a walk per
 // transistor.
 func (g *graph) components() {
-	uf := newUnionFind()
+	uf := newUnionFindSized(len(g.at))
 	for _, e := range g.c.Elements {
 		if (e.Kind != 'R' && e.Kind != 'L' && e.Kind != 'C') || len(e.Nodes) < 2 {
 			continue
@@ -339,6 +340,11 @@ type unionFind struct {
 
 func newUnionFind() *unionFind {
 	return &unionFind{parent: map[string]string{}, size: map[string]int{}}
+}
+
+// newUnionFindSized is newUnionFind with room for about n joined keys.
+func newUnionFindSized(n int) *unionFind {
+	return &unionFind{parent: make(map[string]string, n), size: make(map[string]int, n)}
 }
 
 // find returns x's root (x itself when it was never joined).

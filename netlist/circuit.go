@@ -170,7 +170,8 @@ type Options struct {
 	// TNom is the nominal temperature of model parameters, degrees Celsius
 	// (default 27).
 	TNom float64
-	// GMin is the conductance placed across each junction, S (default 1e-12).
+	// GMin is the junction conductance GMIN, S (default 1e-12), which the
+	// device models add inside each junction current as SPICE3 does.
 	GMin float64
 	// Others keeps every other option, lower-case keys.
 	Others map[string]float64

@@ -54,3 +54,19 @@ func TestLibraryOnly(t *testing.T) {
 		}
 	}
 }
+
+// SINE(...) is read as SIN(...): the waveform, its DC value at t = 0 and
+// its arguments (SPICE SIN: VO VA FREQ).
+func TestSineAlias(t *testing.T) {
+	c, err := ReadSource("s.cir", []byte("s\nV1 in 0 SINE(0.5 10m 1k) AC 1\nR1 in 0 1k\n.end\n"), &LoadOptions{ReadFile: NoFiles})
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := c.Elements[0].Source.Wave
+	if w == nil || w.Kind != WaveSin || len(w.Args) != 3 || w.Args[1] != 0.01 || c.Elements[0].Source.DC != 0.5 {
+		t.Errorf("SINE read as %+v, DC %g; want SIN(0.5 10m 1k), DC 0.5 V", w, c.Elements[0].Source.DC)
+	}
+	for _, n := range c.Notes {
+		t.Errorf("unexpected note: %v", n)
+	}
+}

@@ -32,7 +32,8 @@
 // Elements: R C L (value, name=value with r= c= l= value=, {expr} or a
 // parameter name), V I (DC value, dc(v), dc=v, a plain value, AC [mag
 // [phase]] with a missing magnitude read as 1 as SPICE3 does, ac=mag or
-// ac=mag,phase, SIN PULSE PWL EXP with or without parentheses), D, Q
+// ac=mag,phase, SIN (or SINE) PULSE PWL EXP with or without parentheses;
+// Rser= Rpar= Cpar= are ignored with an alert), D, Q
 // (three or four nodes, optional area, instance parameters such as m=2 or
 // area=2; the area factor is multiplied by m), E G (out+ out- in+ in- gain,
 // or out+ out- POLY(n) with n control node pairs, each optionally written
@@ -76,8 +77,9 @@
 //
 // LoadOptions bounds the work one input can cause: 16 MiB per file, 64 MiB
 // for a netlist with all its includes (a file included again counted
-// again), 1 MiB per line, includes nested 16 deep, subcircuit instances and definitions
-// nested 32 deep, 200000 flat elements; expressions are at most 4096 bytes
+// again), 1 MiB per line, includes nested 16 deep, subcircuit instances and
+// definitions nested 32 deep, 200000 flat elements, POLY(n) with n at most
+// 20 and at most 200 coefficients; expressions are at most 4096 bytes
 // with parentheses nested at most 64 deep, and parameters may refer to each
 // other at most 200 deep. An ErrorList keeps MaxErrors errors and counts the
 // rest. ReadFile in LoadOptions replaces os.ReadFile, so tests and fuzzing

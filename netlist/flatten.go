@@ -249,6 +249,9 @@ func (f *flattener) model(m *ModelStmt, e *env) {
 		}
 		if x, ok := f.ev.eval(p.Value, e); ok {
 			out.Params[canon] = x
+			if known {
+				f.paramLetters(m.Name.Text, canon, p.Value)
+			}
 		}
 	}
 	f.c.Models[Key(name)] = out

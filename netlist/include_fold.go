@@ -15,30 +15,27 @@ import (
 // per path component.
 const maxFoldEntries = 10000
 
-// foldCase looks for the file at path, relative to the directory of the
+// foldCase looks for the file at path, below the directory of the
 // including file from, whose name matches path's component by component
 // without regard to letter case. It reads directories with readDir (nil:
 // no lookup) and returns the path on disk when exactly one file matches at
-// every step that does not match exactly.
+// every step that does not match exactly. A path outside that directory is
+// not folded.
 func foldCase(from, path string, readDir func(string) ([]string, error)) (string, bool) {
 	if readDir == nil {
 		return "", false
 	}
 	base := filepath.Dir(from)
 	rel, err := filepath.Rel(base, path)
-	if err != nil || strings.HasPrefix(rel, "..") || filepath.IsAbs(rel) {
-		// An absolute path or one above the including file: fold from
-		// its own root instead.
-		base, rel = filepath.VolumeName(path)+string(filepath.Separator), strings.TrimPrefix(path, filepath.VolumeName(path))
+	if err != nil || rel == ".." || strings.HasPrefix(rel, ".."+string(filepath.Separator)) || filepath.IsAbs(rel) {
+		// Only names below the including file's folder are folded: no
+		// folder above it, or elsewhere, is listed.
+		return "", false
 	}
 	cur := base
 	changed := false
 	for _, part := range strings.Split(filepath.Clean(rel), string(filepath.Separator)) {
 		if part == "" || part == "." {
-			continue
-		}
-		if part == ".." {
-			cur = filepath.Join(cur, part)
 			continue
 		}
 		names, err := readDir(cur)

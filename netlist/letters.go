@@ -11,6 +11,8 @@ import (
 // never in silence: each gets a located alert (a note every report shows).
 //
 //   - M is milli, not mega: "R1 vcc b 1M" is one milliohm; 1MEG is meant.
+//     (A lower-case "10m", as a current-sense shunt may be written on
+//     purpose, is said without assuming the slip.)
 //   - Letters after the number and suffix are ignored as a unit: "4.7x" is
 //     4.7 with the x dropped.
 //   - A unit that belongs to another kind of element: "1F" on a resistor
@@ -77,8 +79,13 @@ func (f *flattener) letters(k Kind, elem string, v Value) {
 	num := t[:len(t)-len(r.Suffix)-len(r.Unit)]
 	suf := strings.ToLower(r.Suffix)
 	switch {
-	case suf == "m" && k == 'R' && r.Unit == "":
+	case r.Suffix == "M" && k == 'R' && r.Unit == "":
 		say("%s: %s is %s milliohm (SPICE reads M as milli); write %sMEG for %s megohm", elem, t, num, num, num)
+		return
+	case suf == "m" && k == 'R' && r.Unit == "":
+		// A lower-case m is also how a current-sense shunt is written on
+		// purpose: said without assuming the slip.
+		say("%s: %s is %s milliohm (SPICE reads m as milli); if a megohm is meant, write %sMEG", elem, t, num, num)
 		return
 	case suf == "f" && r.Unit == "" && k != 'C':
 		say("%s: %s is %s femto%s (F is the femto suffix); farads do not fit a %s", elem, t, num, unit, kindName(k))
@@ -107,4 +114,29 @@ func (f *flattener) letters(k Kind, elem string, v Value) {
 	}
 	say("%s: the letters %q after %s are not a unit biaslint knows and are ignored: the value is read as %s",
 		elem, r.Unit, num+r.Suffix, units.Format(r.Value, unitSymbols[k]))
+}
+
+// modelUnits are the unit words a model parameter's value may carry after
+// its number and suffix (lower case): amperes, volts, ohms, farads,
+// seconds, electron-volts, kelvin and degrees.
+var modelUnits = map[string]bool{"a": true, "v": true, "ohm": true, "ohms": true, "f": true, "s": true,
+	"ev": true, "k": true, "c": true, "hz": true, "w": true}
+
+// paramLetters alerts when a model parameter's value carries letters that
+// are no unit: "BF=2OO" (letter O for zero) is read as BF = 2.
+func (f *flattener) paramLetters(model, param string, v Value) {
+	t := strings.TrimSpace(v.Text)
+	if v.Braced || !looksNumeric(t) || f.alerted[v.Pos] {
+		return
+	}
+	r, err := units.Read(t)
+	if err != nil || r.RKM || r.Unit == "" || modelUnits[strings.ToLower(r.Unit)] {
+		return
+	}
+	if f.alerted == nil {
+		f.alerted = map[Pos]bool{}
+	}
+	f.alerted[v.Pos] = true
+	f.errs.Alertf(v.Pos, "model %s: %s=%s: the letters %q are not a unit and are ignored: %s is read as %s",
+		model, param, t, r.Unit, param, units.Format(r.Value, ""))
 }

@@ -716,8 +716,13 @@ func (p *parser) fixed(e *ElementStmt, pos []item, pairs []item) bool {
 	return true
 }
 
-// maxPolyDim bounds the dimension n of POLY(n).
-const maxPolyDim = 20
+// maxPolyDim bounds the dimension n of POLY(n), and maxPolyCoeffs its
+// coefficients (a polynomial of degree d in one variable has d+1), so that
+// the work of evaluating one stays small for any input.
+const (
+	maxPolyDim    = 20
+	maxPolyCoeffs = 200
+)
 
 // hasPoly reports whether one of the calls is POLY(...).
 func hasPoly(calls []item) bool {
@@ -817,6 +822,10 @@ func (p *parser) poly(e *ElementStmt, its []item) bool {
 		p.errs.Addf(st.Pos, "%s: POLY(%d) has no coefficients", e.Name.Text, n)
 		return false
 	}
+	if len(st.Coeffs) > maxPolyCoeffs {
+		p.errs.Addf(st.Pos, "%s: POLY(%d) has %d coefficients, more than the limit of %d", e.Name.Text, n, len(st.Coeffs), maxPolyCoeffs)
+		return false
+	}
 	e.Poly = st
 	return true
 }
@@ -860,7 +869,7 @@ var waveArgs = map[WaveKind][2]int{
 
 // sourceWords are the keywords of a source's value part.
 var sourceWords = map[string]bool{
-	"dc": true, "ac": true, "sin": true, "pulse": true, "pwl": true, "exp": true,
+	"dc": true, "ac": true, "sin": true, "sine": true, "pulse": true, "pwl": true, "exp": true,
 	"sffm": true, "am": true, "distof1": true, "distof2": true,
 }
 
@@ -908,6 +917,9 @@ func (p *parser) source(e *ElementStmt, its []item) *SourceStmt {
 	}
 	wave := func(kw token, args []item) {
 		k := WaveKind(strings.ToLower(kw.text))
+		if k == "sine" {
+			k = WaveSin // SINE(...) is how several editors write SIN(...)
+		}
 		lim, known := waveArgs[k]
 		if !known {
 			p.errs.Notef(kw.pos, "%s: waveform %s is not used; only SIN, PULSE, PWL and EXP are read", e.Name.Text, kw.text)
@@ -972,6 +984,10 @@ func (p *parser) source(e *ElementStmt, its []item) *SourceStmt {
 				}
 			case "acphase":
 				s.ACPhase = &v
+			case "rser", "rpar", "cpar":
+				// An editor's series resistance or parallel parts: they
+				// change the DC point, and biaslint's source is ideal.
+				p.errs.Alertf(it.tok.pos, "%s: %s=%s is ignored: the source is read as ideal; draw the resistance as a resistor if it matters", e.Name.Text, it.tok.text, it.val.text)
 			default:
 				p.errs.Notef(it.tok.pos, "%s: parameter %s is ignored", e.Name.Text, it.tok.text)
 			}

@@ -140,7 +140,7 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 				if !ok {
 					continue
 				}
-				if unphysical(c) {
+				if unphysical(s) {
 					// A case whose operating point is not physical for
 					// this device judges only what its facts still say
 					// (the drive, the topology); what they cannot say is
@@ -200,9 +200,12 @@ func pickWorst(os []outcome) Finding {
 	return f
 }
 
-// unphysical reports whether case c is not physical: some device's point
-// is not, and the currents it sets spread through the whole circuit.
-func unphysical(c *checks.Case) bool { return len(c.Unphysical) > 0 }
+// unphysical reports whether subject s is a transistor whose operating
+// point in its case is not physical (checks.RegionNotPhysical).
+func unphysical(s subjectRef) bool {
+	t, ok := s.env.(transistorEnv)
+	return ok && t.Region == checks.RegionNotPhysical
+}
 
 func sortFindings(fs []Finding) {
 	sort.SliceStable(fs, func(i, j int) bool {

@@ -14,9 +14,10 @@ type Options struct {
 	// TNom is the nominal temperature, °C, of models that do not set TNOM
 	// (SPICE-class default 27 °C).
 	TNom float64
-	// GMin is the conductance, S, placed across each pn junction so that no
-	// junction is ever an open circuit (SPICE-class default 1e-12 S). Zero
-	// places none.
+	// GMin is GMIN, S: GMIN·v is added inside each pn junction's current
+	// (the ideal B-E and B-C currents of a transistor, a diode's current),
+	// as SPICE3 places it, so that no junction is ever an open circuit
+	// (SPICE-class default 1e-12 S). Zero adds none.
 	GMin float64
 }
 

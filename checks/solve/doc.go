@@ -33,6 +33,11 @@
 // inductor). A zero-ohm resistor across a voltage source therefore closes a
 // loop of voltage sources and shorts, which is an error.
 //
-// The linear solve sits behind LinearSolver; DenseLU (gonum's LU) is the
-// default, and a sparse factorisation can take its place.
+// The linear solve sits behind LinearSolver. Each System owns a SparseLU
+// (minimum-degree ordering once per pattern, Gilbert-Peierls factorisation
+// with threshold pivoting, value-only refactorisation across Newton steps);
+// DenseLU (gonum's LU) is kept as a reference. Options.Remove, Open and
+// Inject change the circuit for one solve without changing its pattern,
+// and SolveGains and SolveResponse give first-order sensitivities on the
+// factorisation of a converged solve.
 package solve

@@ -99,6 +99,16 @@ func fuzzCircuit(data []byte) (*netlist.Circuit, string) {
 			}
 		case 7:
 			e = b.add('E', name('E'), f.signed(), node(), node(), node(), node())
+			if f.pick(3) == 0 {
+				// A SPICE2 polynomial of one or two control voltages.
+				e.PolyN = 1 + f.pick(2)
+				if e.PolyN == 2 {
+					e.Nodes = append(e.Nodes, node(), node())
+				}
+				for k := 1 + f.pick(6); k > 0; k-- {
+					e.Poly = append(e.Poly, f.signed())
+				}
+			}
 		case 8:
 			e = b.add('G', name('G'), f.signed(), node(), node(), node(), node())
 		case 9, 10:
@@ -120,7 +130,7 @@ func fuzzCircuit(data []byte) (*netlist.Circuit, string) {
 	// to 1e15, ohmic resistances 0..1e15).
 	bjt := func() map[string]float64 {
 		p := map[string]float64{}
-		for _, k := range []string{"IS", "BF", "BR", "VAF", "VAR", "IKF", "IKR", "ISE", "ISC", "RB", "RE", "RC", "NF", "NE"} {
+		for _, k := range []string{"IS", "BF", "BR", "VAF", "VAR", "IKF", "IKR", "ISE", "ISC", "RB", "RE", "RC", "NF", "NE", "RBM", "IRB"} {
 			if f.pick(3) == 0 {
 				v := f.magnitude()
 				switch k {

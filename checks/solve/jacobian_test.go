@@ -88,3 +88,59 @@ func TestVariableBaseResistanceStage(t *testing.T) {
 		t.Errorf("IC with the IRB law %g, with constant RB %g: want higher", q.IC, r0.BJTs[0].IC)
 	}
 }
+
+// rbbStageByHand solves a transistor with its collector held at vc, its
+// emitter grounded, and its base fed from vbb through rs, independently of
+// the solver: for a junction voltage vbe the Gummel-Poon currents (Gummel &
+// Poon 1970 in the SPICE2 form of Nagel 1975, GMIN inside the junction
+// currents) give IB and qb, the base resistance is rbb = RBM + (RB -
+// RBM)/qb (SPICE2; Massobrio & Antognetti ch. 2), and vbb = IB*(rs + rbb)
+// + vbe is solved for vbe by bisection.
+func rbbStageByHand(vbb, rs, vc, is, bf, ikf, rb, rbm float64) (ic, rbb float64) {
+	const gmin = 1e-12
+	eval := func(vbe float64) (ic, ib, rbb float64) {
+		vbc := vbe - vc
+		ibe := is*math.Expm1(vbe/vt27) + gmin*vbe
+		ibc := is*math.Expm1(vbc/vt27) + gmin*vbc
+		qb := (1 + math.Sqrt(1+4*ibe/ikf)) / 2
+		ic = (ibe-ibc)/qb - ibc
+		ib = ibe/bf + ibc
+		return ic, ib, rbm + (rb-rbm)/qb
+	}
+	lo, hi := 0.0, vbb
+	for i := 0; i < 200; i++ {
+		mid := (lo + hi) / 2
+		_, ib, r := eval(mid)
+		if ib*(rs+r)+mid < vbb {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	ic, _, rbb = eval(lo)
+	return ic, rbb
+}
+
+func TestBaseResistanceAgainstHandSolution(t *testing.T) {
+	// Driven hard from a low source resistance past the IKF knee, the base
+	// resistance falls well below RB and the collector current rises: by
+	// the hand solution rbb is 118 Ohm at VBB 0.9 V (IC 20.6 mA, against
+	// 15.1 mA with a constant 300 Ohm) and 81 Ohm at 1.2 V (42.5 mA against
+	// 27.9 mA).
+	for _, vbb := range []float64{0.9, 1.2} {
+		b := newBuilder()
+		npnModel(b, map[string]float64{"IKF": 0.01, "RB": 300, "RBM": 30})
+		b.V("VBB", "in", "0", vbb)
+		b.R("RS", "in", "b", 100)
+		b.V("VC", "c", "0", 5)
+		b.Q("Q1", "c", "b", "0", "qn")
+		q := mustSolve(t, b.c, Options{}).BJTs[0]
+		ic, rbb := rbbStageByHand(vbb, 100, 5, 1e-14, 100, 0.01, 300, 30)
+		if relErr(q.IC, ic) > 1e-6 {
+			t.Errorf("VBB %g: IC %g, by hand %g (rbb %g Ohm)", vbb, q.IC, ic, rbb)
+		}
+		if !(rbb < 250) {
+			t.Errorf("VBB %g: rbb %g, want well below RB 300 (qb > 1)", vbb, rbb)
+		}
+	}
+}

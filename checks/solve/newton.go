@@ -102,9 +102,12 @@ type work struct {
 	// lambda scales the independent sources; gshunt is the GMIN-stepping
 	// conductance from every node to ground.
 	lambda, gshunt float64
-	rhs, xnew      []float64
-	res, mag       []float64
-	iters          int
+	// pull, when not nil, makes gshunt a pseudo-transient step: each node
+	// is pulled towards pull[i] rather than ground (see stability.go).
+	pull      []float64
+	rhs, xnew []float64
+	res, mag  []float64
+	iters     int
 	// bad are the unknowns that failed a test in the last iteration.
 	bad []int
 	// limited are the devices (index into bjts, then diodes) whose
@@ -114,6 +117,12 @@ type work struct {
 	// ctx is Options.Context; stopped is set once it is done.
 	ctx     context.Context
 	stopped error
+	// off marks, by element index, the elements removed (offRemoved) or
+	// opened (offOpen) for this solve; offB, offD the removed devices;
+	// inject the test currents by unknown.
+	off        []uint8
+	offB, offD []bool
+	inject     map[int]float64
 }
 
 // stop reports whether the solve must stop because its context is done.
@@ -122,6 +131,58 @@ func (w *work) stop() bool {
 		w.stopped = w.ctx.Err()
 	}
 	return w.stopped != nil
+}
+
+const (
+	offRemoved = 1
+	offOpen    = 2
+)
+
+// variants resolves Options.Remove, Open and Inject.
+func (w *work) variants(opt Options) error {
+	s := w.s
+	if len(opt.Remove) == 0 && len(opt.Open) == 0 && len(opt.Inject) == 0 {
+		return nil
+	}
+	w.off = make([]uint8, len(s.elems))
+	w.offB, w.offD = make([]bool, len(s.bjts)), make([]bool, len(s.diodes))
+	for _, name := range opt.Remove {
+		el := s.byKey[netlist.Key(name)]
+		if el == nil {
+			return fmt.Errorf("remove: no element %s", name)
+		}
+		switch {
+		case el.kind == 'R' && !el.short, el.kind == 'I', el.kind == 'D', el.kind == 'Q':
+		default:
+			return fmt.Errorf("remove: %s cannot be removed without changing the circuit's structure (open it instead)", el.e.Name)
+		}
+		w.off[el.idx] = offRemoved
+	}
+	for i, el := range s.bjts {
+		w.offB[i] = w.off[el.idx] == offRemoved
+	}
+	for i, el := range s.diodes {
+		w.offD[i] = w.off[el.idx] == offRemoved
+	}
+	for _, name := range opt.Open {
+		el := s.byKey[netlist.Key(name)]
+		if el == nil || (el.kind != 'V' && el.kind != 'I') {
+			return fmt.Errorf("open: %s is not a source of the circuit", name)
+		}
+		w.off[el.idx] = offOpen
+	}
+	if len(opt.Inject) > 0 {
+		w.inject = map[int]float64{}
+		for name, v := range opt.Inject {
+			if !finite(v) {
+				return fmt.Errorf("inject: %g A into %s is not a finite current", v, name)
+			}
+			if i, ok := s.nodeIdx[netlist.Key(name)]; ok && !isGround(name) {
+				w.inject[i] += v
+			}
+		}
+	}
+	return nil
 }
 
 // devices builds the device instances at their temperatures.
@@ -167,7 +228,7 @@ func (s *System) newWork(opt Options) (*work, error) {
 	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
 	if w.lin == nil {
 		if s.lin == nil {
-			s.lin = NewLU()
+			s.lin = NewSparseLU()
 		}
 		w.lin = s.lin
 	}
@@ -175,6 +236,9 @@ func (s *System) newWork(opt Options) (*work, error) {
 		r.Repivot()
 	}
 	if w.bjt, w.dio, err = s.devices(opt, st); err != nil {
+		return nil, err
+	}
+	if err := w.variants(opt); err != nil {
 		return nil, err
 	}
 	nb, nd := len(s.bjts), len(s.diodes)
@@ -189,39 +253,45 @@ func (s *System) newWork(opt Options) (*work, error) {
 // stepping, then source stepping. It returns a *ConvergenceError if all
 // fail, and never returns a result with a non-finite value.
 func (s *System) Solve(opt Options) (*Result, error) {
+	r, _, _, err := s.solve(opt)
+	return r, err
+}
+
+// solve is Solve, also returning the work space and the solution vector.
+func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 	w, err := s.newWork(opt)
 	if err != nil {
-		return nil, err
+		return nil, nil, nil, err
 	}
 	st := w.st
 	x0, warm := s.guess(opt.Guess)
 	x := append([]float64(nil), x0...)
 	var tried []string
 	if w.newton(x, !warm, st.maxIter) {
-		return s.verified(w, x, MethodNewton), nil
+		return s.verified(w, x, MethodNewton), w, x, nil
 	}
 	if w.stop() {
-		return nil, fmt.Errorf("solve stopped: %w", w.stopped)
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
 	}
 	tried = append(tried, fmt.Sprintf("newton (%d iterations)", w.iters))
 
 	copy(x, x0)
 	ok, msg := w.gminStepping(x, !warm)
 	if ok {
-		return s.verified(w, x, MethodGminStepping), nil
+		return s.verified(w, x, MethodGminStepping), w, x, nil
 	}
 	if w.stop() {
-		return nil, fmt.Errorf("solve stopped: %w", w.stopped)
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
 	}
 	tried = append(tried, msg)
 
 	copy(x, x0)
 	ok, msg = w.sourceStepping(x)
 	if ok {
-		return s.verified(w, x, MethodSourceStepping), nil
+		return s.verified(w, x, MethodSourceStepping), w, x, nil
 	}
 	if w.stop() {
-		return nil, fmt.Errorf("solve stopped: %w", w.stopped)
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
 	}
 	tried = append(tried, msg)
 
@@ -246,7 +316,7 @@ func (s *System) Solve(opt Options) (*Result, error) {
 		involved = append(involved, el)
 	}
 	ce.Pos = s.firstInvolved(involved, w.bad)
-	return nil, ce
+	return nil, nil, nil, ce
 }
 
 // verified builds the result of a converged x and checks it against the
@@ -343,6 +413,10 @@ func (w *work) evaluate(x []float64, first, cold bool) bool {
 	limited := false
 	w.limited = w.limited[:0]
 	for j, b := range w.bjt {
+		if w.offB != nil && w.offB[j] {
+			w.jb[j], w.evB[j] = [2]float64{}, device.BJTEval{}
+			continue
+		}
 		vbe, vbc := w.junctions(j, x)
 		switch {
 		case first && cold:
@@ -360,6 +434,10 @@ func (w *work) evaluate(x []float64, first, cold bool) bool {
 		w.evB[j] = b.Eval(vbe, vbc)
 	}
 	for j, d := range w.dio {
+		if w.offD != nil && w.offD[j] {
+			w.jd[j], w.evD[j] = 0, [2]float64{}
+			continue
+		}
 		vd := w.diodeV(j, x)
 		switch {
 		case first && cold:
@@ -385,7 +463,6 @@ func (w *work) evaluate(x []float64, first, cold bool) bool {
 // voltages for the first linearisation. It reports convergence; on failure
 // w.bad holds the unknowns that had not settled.
 func (w *work) newton(x []float64, cold bool, maxIter int) bool {
-	s := w.s
 	settled := false
 	for k := 0; ; k++ {
 		limited := w.evaluate(x, k == 0, cold)
@@ -396,16 +473,8 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 		if k == maxIter || w.stop() {
 			return false
 		}
-		w.lin.Clear(s.n)
-		for i := range w.rhs {
-			w.rhs[i] = 0
-		}
-		m := &matrixSink{lin: w.lin, rhs: w.rhs}
-		w.stampLinear(m)
-		w.stampDevices(m, x, true)
-		w.stampPoly(m, x, true)
 		w.iters++
-		if err := w.lin.Factor(); err != nil {
+		if err := w.assemble(x); err != nil {
 			var se *SingularError
 			if errors.As(err, &se) && w.singular == nil {
 				w.singular = se
@@ -425,6 +494,20 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 		settled = w.updateOK(w.xnew, x)
 		copy(x, w.xnew)
 	}
+}
+
+// assemble stamps the system linearised at the last evaluation (at x)
+// into the linear solver and w.rhs, and factors it.
+func (w *work) assemble(x []float64) error {
+	w.lin.Clear(w.s.n)
+	for i := range w.rhs {
+		w.rhs[i] = 0
+	}
+	m := &matrixSink{lin: w.lin, rhs: w.rhs}
+	w.stampLinear(m)
+	w.stampDevices(m, x, true)
+	w.stampPoly(m, x, true)
+	return w.lin.Factor()
 }
 
 // updateOK tests the update from x to xn against the tolerances, noting

@@ -29,7 +29,8 @@ type Options struct {
 	// device takes its instance parameter temp, else the circuit
 	// temperature plus its instance parameter dtemp.
 	DeviceTemp map[string]float64
-	// GMin is the conductance across each junction, S; zero means
+	// GMin is GMIN, S, the conductance added inside each junction current
+	// (GMIN·v, the SPICE3 placement; see device.BJT.Eval); zero means
 	// c.Options.GMin, or DefaultGMin if that is not positive.
 	GMin float64
 	// RelTol, VNTol and AbsTol are the convergence tolerances; zero means
@@ -47,7 +48,10 @@ type Options struct {
 	// Without it every solve starts from zero with the junctions at their
 	// critical voltages, so the same input always gives the same bits.
 	Guess *Result
-	// Linear is the linear solver; nil means a new DenseLU.
+	// Linear is the linear solver; nil means the System's own SparseLU,
+	// kept from solve to solve so its pattern and ordering are reused
+	// (BenchmarkLinear: faster than DenseLU from 5 unknowns up, since the
+	// dense one estimates the condition at every factorisation).
 	Linear LinearSolver
 	// Context, if not nil, stops the solve when it is done: every Newton
 	// iteration (of plain Newton and of each stepping step) checks it, and
@@ -55,6 +59,22 @@ type Options struct {
 	// for a deadline). A per-file time budget uses it, so a timed-out check
 	// stops computing instead of running on unseen.
 	Context context.Context
+
+	// The variants below change the circuit for one solve without
+	// changing the System's structure, so the matrix pattern, its ordering
+	// and the numbering are reused (and Guess may be the nominal result).
+
+	// Remove names elements (R, I, D or Q, by flat name) taken out of the
+	// circuit: they carry no current, and each of their first three
+	// terminals is held to ground by LeakR, as Without does.
+	Remove []string
+	// Open names sources opened: a voltage source is replaced by a LeakR
+	// resistor across its terminals (its branch current reads zero), a
+	// current source carries nothing.
+	Open []string
+	// Inject drives currents, A, into nodes from ground, by node name
+	// (a test source; ground and unknown names are ignored).
+	Inject map[string]float64
 }
 
 // Temp returns a pointer to c, for Options.Temp.

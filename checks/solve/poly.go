@@ -23,8 +23,9 @@ type polySource struct {
 	// ctl are the controlling unknowns: node pairs (E, G: ctl[2i] − ctl[2i+1],
 	// −1 = ground) or branch currents (F, H: ctl[i]).
 	ctl []int
-	// x and df are scratch for the controlling values and the gradient.
-	x, df []float64
+	// x and df are scratch for the controlling values and the gradient,
+	// suf for the partial products of one term.
+	x, df, suf []float64
 }
 
 func newPolySource(e *netlist.Element) *polySource {
@@ -52,22 +53,24 @@ func (p *polySource) eval() (f, mag float64) {
 	}
 	for k, t := range p.terms {
 		c := p.coef[k]
-		prod := c
-		for _, i := range t {
-			prod *= p.x[i]
+		// ∂/∂x_i of c·Π x: for each position j, c times the product of
+		// the others, from the products before j (pre) and after j
+		// (suffix, in p.suf), in time linear in the degree.
+		if cap(p.suf) < len(t)+1 {
+			p.suf = make([]float64, len(t)+1)
 		}
+		suf := p.suf[:len(t)+1]
+		suf[len(t)] = 1
+		for j := len(t) - 1; j >= 0; j-- {
+			suf[j] = suf[j+1] * p.x[t[j]]
+		}
+		prod := c * suf[0]
 		f += prod
 		mag += math.Abs(prod)
-		// ∂/∂x_i of c·Π x: for each position j, c times the product of
-		// the others.
+		pre := c
 		for j, i := range t {
-			d := c
-			for q, v := range t {
-				if q != j {
-					d *= p.x[v]
-				}
-			}
-			p.df[i] += d
+			p.df[i] += pre * suf[j+1]
+			pre *= p.x[i]
 		}
 	}
 	return f, mag

@@ -10,7 +10,9 @@ import (
 
 // elem is one element of a System, with its unknowns numbered.
 type elem struct {
-	e    *netlist.Element
+	e *netlist.Element
+	// idx is the element's index in System.elems.
+	idx  int
 	kind netlist.Kind
 	// nodes are the unknown indices of the element's nodes, −1 for ground
 	// (Q: c, b, e; the substrate node is not used at DC).
@@ -58,7 +60,7 @@ type System struct {
 	notes netlist.ErrorList
 	// lin is the System's own linear solver, used when Options.Linear is
 	// nil: its pattern and ordering are the System's, whatever else ran.
-	lin *LU
+	lin *SparseLU
 }
 
 // Notes returns the notes Prepare made about the circuit (nodes tied to
@@ -189,6 +191,7 @@ func (s *System) collect(errs *netlist.ErrorList) {
 			continue
 		}
 		s.byKey[k] = el
+		el.idx = len(s.elems)
 		s.elems = append(s.elems, el)
 	}
 }

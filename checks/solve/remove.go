@@ -4,7 +4,7 @@ import "github.com/biaslint/biaslint/netlist"
 
 // LeakR is the resistance, Ohm, that holds each terminal of an element
 // taken out of a circuit for a test solve (Without): 1 pS to ground, the
-// conductance SPICE's GMIN places across junctions, so no net floats and no
+// size of SPICE's default GMIN, so no net floats and no
 // bias network is disturbed by more than a few parts per million.
 const LeakR = 1e12
 

@@ -85,8 +85,10 @@ type SparseLU struct {
 	stamp        int
 	w, y         []float64
 	rowm         []float64
-	factorsFresh int // factorisations with fresh pivoting (statistics)
-	refactors    int // value-only refactorisations (statistics)
+	inq          []bool    // SolveSparse: step queued
+	ys, ws       []float64 // SolveSparse's work, all zero between calls
+	factorsFresh int       // factorisations with fresh pivoting (statistics)
+	refactors    int       // value-only refactorisations (statistics)
 }
 
 // Threshold partial pivoting: a fresh factorisation takes the diagonal
@@ -232,6 +234,7 @@ func (f *SparseLU) analyse() {
 		f.ai[p], f.aent[p] = int(f.ei[e]), int32(e)
 	}
 	f.x, f.w, f.y = make([]float64, n), make([]float64, n), make([]float64, n)
+	f.inq = make([]bool, n)
 	f.xi, f.st, f.pst, f.mark = make([]int, n), make([]int, n), make([]int, n), make([]int, n)
 	f.pinv, f.prow = make([]int, n), make([]int, n)
 	f.rs, f.cs, f.rowm = make([]float64, n), make([]float64, n), make([]float64, n)
@@ -588,56 +591,133 @@ func (f *SparseLU) condest() float64 {
 	return norm * est
 }
 
-// DenseMax is the largest system the default solver (LU) factors densely:
-// below it the dense LU's simple loops beat the sparse bookkeeping
-// (measured by BenchmarkLinear on MNA matrices of divider-biased stages).
-const DenseMax = 24
-
-// LU is the default LinearSolver: a DenseLU for systems of at most
-// DenseMax unknowns and a SparseLU above, chosen at each Clear by size.
-type LU struct {
-	dense    DenseLU
-	sparse   SparseLU
-	useDense bool
+// SolveSparse solves A·x = b for a right-hand side with few nonzeros (b
+// holds values by row, rows lists where they may be nonzero) and returns
+// the unknowns it set: x is zero except at them. The work is in
+// proportion to the entries of L and U the solution reaches (Gilbert &
+// Peierls 1988: the nonzeros of a triangular solve with a sparse right-
+// hand side are the reach of its pattern), pruned where a value is
+// exactly zero, instead of in proportion to the whole factorisation. x
+// and b have length n; b is consumed (left zero).
+func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
+	if !f.ok {
+		return nil, fmt.Errorf("solve without a successful factorisation")
+	}
+	if len(x) != f.n || len(b) != f.n {
+		return nil, fmt.Errorf("solve: vector lengths %d, %d for a %d×%d matrix", len(x), len(b), f.n, f.n)
+	}
+	if len(f.ys) != f.n {
+		f.ys, f.ws = make([]float64, f.n), make([]float64, f.n)
+	}
+	y, w := f.ys, f.ws // kept all zero between calls
+	// Forward: steps in increasing order, a step queued when its row
+	// becomes nonzero.
+	var lo minHeap
+	for _, i := range rows {
+		if i < 0 || i >= f.n {
+			continue
+		}
+		y[i] += b[i] * f.rs[i]
+		b[i] = 0
+		if k := f.pinv[i]; !f.inq[k] {
+			f.inq[k] = true
+			lo.push(k)
+		}
+	}
+	var touched []int
+	for lo.len() > 0 {
+		k := lo.pop()
+		f.inq[k] = false
+		r := f.prow[k]
+		yk := y[r]
+		y[r] = 0
+		w[k] = yk
+		touched = append(touched, k)
+		if yk == 0 {
+			continue
+		}
+		for p := f.lp[k]; p < f.lp[k+1]; p++ {
+			i := f.li[p]
+			y[i] -= f.lx[p] * yk
+			if s := f.pinv[i]; !f.inq[s] {
+				f.inq[s] = true
+				lo.push(s)
+			}
+		}
+	}
+	// Backward: steps in decreasing order.
+	var hi minHeap
+	for _, k := range touched {
+		if w[k] != 0 && !f.inq[k] {
+			f.inq[k] = true
+			hi.push(-k)
+		}
+	}
+	var set []int
+	for hi.len() > 0 {
+		k := -hi.pop()
+		f.inq[k] = false
+		wk := w[k] / f.ud[k]
+		w[k] = 0
+		j := f.q[k]
+		x[j] = wk * f.cs[j]
+		set = append(set, j)
+		if wk == 0 {
+			continue
+		}
+		for p := f.up[k]; p < f.up[k+1]; p++ {
+			J := f.ui[p]
+			w[J] -= f.ux[p] * wk
+			if !f.inq[J] {
+				f.inq[J] = true
+				hi.push(-J)
+			}
+		}
+	}
+	for _, k := range touched {
+		w[k] = 0
+	}
+	return set, nil
 }
 
-// NewLU returns an empty LU.
-func NewLU() *LU { return &LU{} }
+// minHeap is a binary min-heap of ints.
+type minHeap []int
 
-// Clear implements LinearSolver.
-func (l *LU) Clear(n int) {
-	l.useDense = n <= DenseMax
-	if l.useDense {
-		l.dense.Clear(n)
-	} else {
-		l.sparse.Clear(n)
+func (h *minHeap) len() int { return len(*h) }
+
+func (h *minHeap) push(v int) {
+	*h = append(*h, v)
+	a := *h
+	for i := len(a) - 1; i > 0; {
+		p := (i - 1) / 2
+		if a[p] <= a[i] {
+			break
+		}
+		a[p], a[i] = a[i], a[p]
+		i = p
 	}
 }
 
-// Add implements LinearSolver.
-func (l *LU) Add(i, j int, v float64) {
-	if l.useDense {
-		l.dense.Add(i, j, v)
-	} else {
-		l.sparse.Add(i, j, v)
+func (h *minHeap) pop() int {
+	a := *h
+	v := a[0]
+	n := len(a) - 1
+	a[0] = a[n]
+	a = a[:n]
+	for i := 0; ; {
+		l, r, m := 2*i+1, 2*i+2, i
+		if l < n && a[l] < a[m] {
+			m = l
+		}
+		if r < n && a[r] < a[m] {
+			m = r
+		}
+		if m == i {
+			break
+		}
+		a[m], a[i] = a[i], a[m]
+		i = m
 	}
+	*h = a
+	return v
 }
-
-// Factor implements LinearSolver.
-func (l *LU) Factor() error {
-	if l.useDense {
-		return l.dense.Factor()
-	}
-	return l.sparse.Factor()
-}
-
-// Solve implements LinearSolver.
-func (l *LU) Solve(x, b []float64) error {
-	if l.useDense {
-		return l.dense.Solve(x, b)
-	}
-	return l.sparse.Solve(x, b)
-}
-
-// Repivot makes the next sparse factorisation choose fresh pivots.
-func (l *LU) Repivot() { l.sparse.Repivot() }

@@ -279,3 +279,54 @@ func TestSparseAgreesOnTestdata(t *testing.T) {
 	}
 	t.Logf("%d netlists compared", solved)
 }
+
+// SolveSparse gives the full solve's solution for right-hand sides with
+// a few nonzeros, and leaves x zero outside the unknowns it reports.
+func TestSolveSparseMatchesSolve(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		n, es, _ := randomSparse(t)
+		var s SparseLU
+		s.Clear(n)
+		for _, e := range es {
+			s.Add(e.i, e.j, e.v)
+		}
+		if s.Factor() != nil {
+			return
+		}
+		for round := 0; round < 3; round++ {
+			b := make([]float64, n)
+			var rows []int
+			for k := rapid.IntRange(1, 3).Draw(t, "nb"); k > 0; k-- {
+				i := rapid.IntRange(0, n-1).Draw(t, "row")
+				b[i] += rapid.Float64Range(-5, 5).Draw(t, "bv")
+				rows = append(rows, i)
+			}
+			want := make([]float64, n)
+			if err := s.Solve(want, b); err != nil {
+				t.Fatal(err)
+			}
+			x := make([]float64, n)
+			set, err := s.SolveSparse(x, b, rows)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r := relDiff(x, want); r > 1e-12 {
+				t.Fatalf("sparse right-hand side: differs by %.3g", r)
+			}
+			in := map[int]bool{}
+			for _, j := range set {
+				in[j] = true
+			}
+			for j, v := range x {
+				if v != 0 && !in[j] {
+					t.Fatalf("x[%d] = %g set but not reported", j, v)
+				}
+			}
+			for _, v := range b {
+				if v != 0 {
+					t.Fatal("b not consumed")
+				}
+			}
+		}
+	})
+}

@@ -83,6 +83,23 @@ func branch(k sink, p, n, br int) {
 func (w *work) stampLinear(k sink) {
 	for _, el := range w.s.elems {
 		n := el.nodes
+		off := uint8(0)
+		if w.off != nil {
+			off = w.off[el.idx]
+		}
+		if off == offRemoved {
+			// Held by leaks; a removed resistor keeps its place in the
+			// pattern with zeros.
+			for t, p := range n {
+				if t < 3 {
+					k.a(p, p, 1/LeakR)
+				}
+			}
+			if el.kind == 'R' {
+				conductance(k, n[0], n[1], 0)
+			}
+			continue
+		}
 		if el.poly != nil {
 			continue // nonlinear: stampPoly
 		}
@@ -96,10 +113,26 @@ func (w *work) stampLinear(k sink) {
 		case 'L':
 			branch(k, n[0], n[1], el.br)
 		case 'V':
+			// An opened source is a LeakR resistor in its place and a
+			// branch current of zero; the entries of both forms are
+			// stamped either way (as zeros), so the pattern is the same.
+			if off == offOpen {
+				k.a(n[0], el.br, 0)
+				k.a(n[1], el.br, 0)
+				k.a(el.br, n[0], 0)
+				k.a(el.br, n[1], 0)
+				k.a(el.br, el.br, 1)
+				conductance(k, n[0], n[1], 1/LeakR)
+				break
+			}
 			branch(k, n[0], n[1], el.br)
-			k.a(el.br, el.br, 0) // the place of an opened source's leak
+			k.a(el.br, el.br, 0)
+			conductance(k, n[0], n[1], 0)
 			k.b(el.br, w.lambda*el.value)
 		case 'I':
+			if off == offOpen {
+				break
+			}
 			// SPICE: the source current flows from n+ through the source to n−.
 			k.b(n[0], -w.lambda*el.value)
 			k.b(n[1], w.lambda*el.value)
@@ -142,6 +175,9 @@ func (w *work) stampLinear(k sink) {
 			}
 		}
 	}
+	for i, v := range w.inject {
+		k.b(i, w.lambda*v)
+	}
 	for _, i := range w.s.leaks {
 		k.a(i, i, w.st.gmin)
 	}
@@ -149,6 +185,11 @@ func (w *work) stampLinear(k sink) {
 	// matrix pattern does not depend on whether GMIN stepping ran.
 	for i := 0; i < w.s.nNodes; i++ {
 		k.a(i, i, w.gshunt)
+		if w.pull != nil && w.gshunt > 0 {
+			// A pseudo-transient step: the shunt pulls towards the
+			// previous state (see stability.go).
+			k.b(i, w.gshunt*w.pull[i])
+		}
 	}
 }
 

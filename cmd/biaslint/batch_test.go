@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/csv"
+	"encoding/json"
 	"fmt"
 	"math/rand/v2"
 	"os"
@@ -338,6 +339,25 @@ func TestMixedBatch(t *testing.T) {
 		}
 		if f != "text" && !strings.Contains(errs, "broken.cir:3:10:") {
 			t.Errorf("%s: stderr does not repeat the located errors: %q", f, errs)
+		}
+	}
+	// JSON names each unjudged case with its reason.
+	js, _, _ := runCLI(t, "check", "--format", "json", dir)
+	var rep struct {
+		Results []struct {
+			File     string                          `json:"file"`
+			Unjudged []struct{ Case, Reason string } `json:"unjudged_cases"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal([]byte(js), &rep); err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range rep.Results {
+		if r.File != "testdata/batch/faulty.cir" {
+			continue
+		}
+		if len(r.Unjudged) == 0 || r.Unjudged[0].Case != "VDRV high" || !strings.Contains(r.Unjudged[0].Reason, "tried newton") {
+			t.Errorf("faulty.cir unjudged_cases %+v; want VDRV high first, with what was tried", r.Unjudged)
 		}
 	}
 	// The per-file summary: one row per file, with its status.

@@ -68,6 +68,7 @@ func checkCommand() *cli.Command {
 			&cli.IntFlag{Name: "monte-carlo", Usage: "add `N` Monte Carlo runs drawing every resistor and supply within its tolerance"},
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
+			shardFlag,
 			configFlag, noConfigFlag,
 		},
 		Before: applyProjectFile,
@@ -191,6 +192,11 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
+	si, sn, err := parseShard(c.String("shard"))
+	if err != nil {
+		return nil, err
+	}
+	inputs = shardOf(inputs, si, sn)
 	run := &checkRun{set: set}
 	if run.timeout, err = fileTimeout(c); err != nil {
 		return nil, err

@@ -37,6 +37,10 @@ func TestDeterminism(t *testing.T) {
 	}
 	// All files in one run too: the order of files must not vary either.
 	runs = append(runs, append([]string{"check", "--format", "json"}, files...))
+	// A board large enough for the sparse solver's ordering and the
+	// parallel Thevenin and sensitivity solves to matter.
+	big := stagesNetlist(t, t.TempDir(), 40)
+	runs = append(runs, []string{"check", "--format", "json", big}, []string{"op", "--format", "json", big})
 	for _, args := range runs {
 		one := runBinary(t, bin, "1", args)
 		two := runBinary(t, bin, "2", args)

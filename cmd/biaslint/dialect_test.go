@@ -26,6 +26,10 @@ func TestDialects(t *testing.T) {
 			[]string{"1M is 1 milliohm", "write 1MEG"}},
 		{"stiff", []string{"check", "testdata/dialect/stiff.cir"},
 			[]string{"not physical", "unlimited-base-drive", "3.30 V"}},
+		{"sources", []string{"check", "--format", "json", "testdata/dialect/sources.cir"},
+			[]string{`Rser=0.1 is ignored`, `"alert": true`, `signal from VIN`}},
+		{"led", []string{"check", "testdata/dialect/led.cir"},
+			[]string{"DLED: the junction is held at 5.00 V", "Q1          common-emitter  nominal  active"}},
 		{"stiff-op", []string{"op", "testdata/dialect/stiff.cir"},
 			[]string{"not physical at 25.0 C", "the base-emitter junction is held at 3.30 V"}},
 	} {

@@ -51,6 +51,11 @@ type opFile struct {
 	// temperatures are left out (null).
 	Physical    bool     `json:"physical"`
 	NotPhysical []string `json:"not_physical,omitempty"`
+	// StableStates and States describe a circuit whose first DC solution
+	// was unstable: how many stable states were found (the one shown is
+	// the first) and what they are.
+	StableStates int    `json:"stable_states,omitempty"`
+	States       string `json:"states,omitempty"`
 
 	nodeOrder []string
 }
@@ -153,20 +158,19 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	if t == nil && circ.Options.TempSet {
 		amb = &circ.Options.Temp
 	}
-	an, err := checks.Analyze(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal")})
+	// Only the nominal solution and the junction temperatures: op prints
+	// no roles, topology or other cases, so it computes none.
+	op, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal")})
 	if err != nil {
 		return opFile{}, err
 	}
-	res := an.Cases[0].Solution
-	tj := map[string]float64{}
-	for _, q := range an.Cases[0].Transistors {
-		tj[q.Name] = q.Tj
-	}
+	// The transistors whose point is not physical: no currents for them.
+	res, tj, bad := op.Solution, op.Tj, op.NotPhysical
 	f := opFile{
 		File:            circ.File,
 		Title:           circ.Title,
 		Temperature:     res.Temp,
-		TemperatureFrom: an.TempFrom,
+		TemperatureFrom: op.TempFrom,
 		Method:          string(res.Method),
 		Iterations:      res.Iterations,
 		Nodes:           map[string]float64{},
@@ -177,11 +181,8 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	for _, u := range res.Unphysical {
 		f.NotPhysical = append(f.NotPhysical, u.Why)
 	}
-	num := func(v float64) *float64 {
-		if !f.Physical {
-			return nil
-		}
-		return &v
+	if st := op.States; st != nil {
+		f.StableStates, f.States = len(st.Cases), st.Message
 	}
 	for _, n := range res.Nodes {
 		f.Nodes[n.Name] = n.V
@@ -193,15 +194,21 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 		}
 	}
 	for _, q := range res.BJTs {
+		num := func(v float64) *float64 {
+			if bad[q.Name] {
+				return nil
+			}
+			return &v
+		}
 		f.BJTs = append(f.BJTs, opBJT{
 			Name: q.Name, Model: q.Model, Polarity: q.Polarity,
 			VBE: q.VBE, VBC: q.VBC, VCE: q.VCE, IC: num(q.IC), IB: num(q.IB), IE: num(q.IE),
 			Power: num(q.Power), Region: string(q.Region), Pos: q.Pos.String(),
 		})
-		if !f.Physical {
+		if bad[q.Name] {
 			f.BJTs[len(f.BJTs)-1].Region = checks.RegionNotPhysical
 		}
-		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) && f.Physical {
+		if v, ok := tj[q.Name]; ok && !math.IsNaN(v) && !bad[q.Name] {
 			f.BJTs[len(f.BJTs)-1].Tj = &v
 		}
 	}
@@ -226,14 +233,18 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 			at += " (" + from + ")"
 		}
 		if r.Physical {
-			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n\n", at, r.Method, r.Iterations)
+			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n", at, r.Method, r.Iterations)
+			if r.States != "" {
+				fmt.Fprintf(w, "  %s: %s; shown: stable state 1\n", p.amber("several DC solutions"), r.States)
+			}
+			w.WriteString("\n")
 		} else {
 			fmt.Fprintf(w, "  %s at %s: %s converged in %d iterations to a point the device equations do not describe\n",
 				p.red("not physical"), at, r.Method, r.Iterations)
 			for _, why := range r.NotPhysical {
 				fmt.Fprintf(w, "  %s\n", why)
 			}
-			fmt.Fprintf(w, "  currents, power and temperature are not shown; give the junction a series resistance\n\n")
+			fmt.Fprintf(w, "  currents, power and temperature of these devices are not shown; give the junction a series resistance\n\n")
 		}
 		if len(r.BJTs) == 0 {
 			fmt.Fprintln(w, "  no bipolar transistors")

@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -95,6 +96,29 @@ func TestFieldAmpAgainstHandCalculation(t *testing.T) {
 	}
 	if s := r.Results[0].Sources["VCC"]; s >= 0 {
 		t.Errorf("I(VCC) = %g A; a supply delivering power shows a negative current", s)
+	}
+}
+
+// op on a latch shows a stable state, never the unstable balance, and says
+// that there are others (hand estimates in testdata/op/latch.cir).
+func TestOpLatchStableState(t *testing.T) {
+	r := opJSONOf(t, "testdata/op/latch.cir").Results[0]
+	if r.StableStates != 2 || r.States == "" {
+		t.Fatalf("stable_states %d, states %q; want 2 and a description", r.StableStates, r.States)
+	}
+	regions := map[string]bool{}
+	for _, q := range r.BJTs {
+		regions[q.Region] = true
+		if q.Region == "saturation" && (q.IC == nil || math.Abs(*q.IC-4.9e-3) > 0.1e-3) {
+			t.Errorf("%s IC %v, want about 4.9 mA", q.Name, q.IC)
+		}
+	}
+	if !regions["saturation"] || !regions["cutoff"] || regions["active"] {
+		t.Errorf("regions %v; want one saturated and one cut off", regions)
+	}
+	out, _, _ := runCLI(t, "op", "testdata/op/latch.cir")
+	if !strings.Contains(out, "several DC solutions") || !strings.Contains(out, "shown: stable state 1") {
+		t.Errorf("op text does not say there are other states:\n%s", out)
 	}
 }
 

@@ -19,7 +19,7 @@ func plotCommand() *cli.Command {
 		Description: "Writes SVG, or PNG when --output ends in .png; without --output, SVG goes to standard output. " +
 			"DEVICE is the flat name as in reports (X1.Q2).",
 		ArgsUsage: "DEVICE FILE",
-		Flags:     analysisFlags(),
+		Flags:     withoutFlag(analysisFlags(), "shard"),
 		Before:    applyProjectFile,
 		Action:    runPlot,
 	}

@@ -154,6 +154,9 @@ func htmlPageOf(r *Report, opt HTMLOptions) htmlPage {
 			hf.Amb = units.Format(nom.Ambient, "C")
 			if nom.Solution != nil {
 				hf.Temp = units.Format(nom.Solution.Temp, "C")
+				if from := tempFromWords[an.TempFrom]; from != "" {
+					hf.Temp += ", " + from
+				}
 			}
 		}
 		for _, x := range f.Findings {

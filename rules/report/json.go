@@ -37,6 +37,12 @@ type jsonFinding struct {
 	WaiverPos string   `json:"waiver_position,omitempty"`
 }
 
+// jsonUnjudged is one case that could not be solved.
+type jsonUnjudged struct {
+	Case   string `json:"case"`
+	Reason string `json:"reason"`
+}
+
 type jsonNote struct {
 	Severity string `json:"severity"`
 	Position string `json:"position"`
@@ -57,14 +63,17 @@ type jsonFile struct {
 	Errors []jsonNote `json:"errors"`
 	// Temperature is the nominal case's circuit temperature, C, and
 	// TemperatureFrom where it came from: --temp, .temp or ambient.
-	Temperature     *float64      `json:"temperature,omitempty"`
-	TemperatureFrom string        `json:"temperature_from,omitempty"`
-	Transistors     int           `json:"transistors"`
-	BJTs            []jsonBJT     `json:"bjts"`
-	Findings        []jsonFinding `json:"findings"`
-	Waived          []jsonFinding `json:"waived"`
-	Notes           []jsonNote    `json:"notes"`
-	Summary         Counts        `json:"summary"`
+	Temperature     *float64 `json:"temperature,omitempty"`
+	TemperatureFrom string   `json:"temperature_from,omitempty"`
+	// Unjudged lists the cases that could not be solved and why (every
+	// other case is judged).
+	Unjudged    []jsonUnjudged `json:"unjudged_cases,omitempty"`
+	Transistors int            `json:"transistors"`
+	BJTs        []jsonBJT      `json:"bjts"`
+	Findings    []jsonFinding  `json:"findings"`
+	Waived      []jsonFinding  `json:"waived"`
+	Notes       []jsonNote     `json:"notes"`
+	Summary     Counts         `json:"summary"`
 }
 
 // jsonBJT is one transistor in the case that matters for its role
@@ -249,6 +258,13 @@ func JSON(w io.Writer, r *Report) error {
 		}
 		if an := f.Analysis; an != nil && an.TempFrom != "" {
 			jf.Temperature, jf.TemperatureFrom = finite(an.Temp), an.TempFrom
+		}
+		if an := f.Analysis; an != nil {
+			for _, c := range an.Cases {
+				if c.Unjudged != "" {
+					jf.Unjudged = append(jf.Unjudged, jsonUnjudged{Case: rules.CaseName(c.Scenario, c.Corner), Reason: c.Unjudged})
+				}
+			}
 		}
 		for _, x := range f.Findings {
 			if x.Waived {

@@ -77,6 +77,10 @@ type sarifNotification struct {
 	Level     string          `json:"level"`
 	Message   sarifText       `json:"message"`
 	Locations []sarifLocation `json:"locations,omitempty"`
+	// Properties name the checked netlist the notification belongs to and
+	// its part ("input" for a note about reading it, "status" for how its
+	// check ended), so that the reports of several runs merge in order.
+	Properties map[string]string `json:"properties,omitempty"`
 }
 
 // sarifInvocation records how the run ended.
@@ -218,7 +222,10 @@ func SARIF(w io.Writer, r *Report) error {
 			loc.LogicalLocations = []sarifLogical{{Name: x.Device, Kind: "element"}}
 			res.Locations = []sarifLocation{loc}
 			res.PartialFingerprints = map[string]string{FingerprintKey: Fingerprint(x)}
-			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner)}
+			// netlist names the checked file the result came from (its
+			// location may be an included file or the board file), so that
+			// reports of several runs can be merged in file order.
+			props := map[string]any{"device": x.Device, "case": rules.CaseName(x.Scenario, x.Corner), "netlist": f.Path}
 			if x.HasLimit {
 				props["value"], props["limit"], props["unit"] = x.Value, x.Limit, x.Unit
 			}
@@ -240,7 +247,8 @@ func SARIF(w io.Writer, r *Report) error {
 			if file == "" {
 				file = f.Path
 			}
-			note := sarifNotification{Level: n.Severity.String(), Message: sarifText{n.Msg}}
+			note := sarifNotification{Level: n.Severity.String(), Message: sarifText{n.Msg},
+				Properties: map[string]string{"netlist": f.Path, "part": "input"}}
 			note.Locations = []sarifLocation{physical(file, n.Pos)}
 			inv.ToolExecutionNotifications = append(inv.ToolExecutionNotifications, note)
 		}
@@ -267,13 +275,14 @@ func statusNotifications(r *Report) []sarifNotification {
 		if f.Status.Of() == StatusChecked {
 			continue
 		}
+		props := map[string]string{"netlist": f.Path, "part": "status"}
 		if !f.Status.Failed() || len(f.Errors) == 0 {
 			lvl := "note"
 			if f.Status.Failed() {
 				lvl = "error"
 			}
 			out = append(out, sarifNotification{Level: lvl, Message: sarifText{f.Path + ": " + StatusText(f)},
-				Locations: []sarifLocation{physical(f.Path, netlist.Pos{})}})
+				Locations: []sarifLocation{physical(f.Path, netlist.Pos{})}, Properties: props})
 			continue
 		}
 		for _, e := range f.Errors {
@@ -281,7 +290,7 @@ func statusNotifications(r *Report) []sarifNotification {
 			if file == "" {
 				file = f.Path
 			}
-			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)}})
+			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)}, Properties: props})
 		}
 	}
 	return out

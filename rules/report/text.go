@@ -9,6 +9,7 @@ import (
 
 	"github.com/fatih/color"
 
+	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/netlist/units"
 	"github.com/biaslint/biaslint/rules"
@@ -329,6 +330,12 @@ func writeNotes(ew *errWriter, f *File, opt TextOptions) {
 	}
 }
 
+// tempFromWords say where a circuit temperature came from
+// (checks.Analysis.TempFrom).
+var tempFromWords = map[string]string{
+	checks.TempFromOption: "from --temp", checks.TempFromNetlist: "from the netlist's .temp", checks.TempFromAmbient: "the ambient",
+}
+
 // TempText says at which temperatures a file's nominal case was solved:
 // the circuit temperature and where it came from, and the ambient; "" when
 // the file was not analysed.
@@ -337,7 +344,7 @@ func TempText(f *File) string {
 	if an == nil || len(an.Cases) == 0 {
 		return ""
 	}
-	from := map[string]string{"--temp": "from --temp", ".temp": "from the netlist's .temp", "ambient": "the ambient"}[an.TempFrom]
+	from := tempFromWords[an.TempFrom]
 	if from == "" {
 		from = an.TempFrom
 	}

@@ -1,0 +1,83 @@
+package solve
+
+import (
+	"math"
+	"testing"
+
+	"github.com/biaslint/biaslint/netlist"
+)
+
+// SolveGains gives dP/dT of each transistor, the others held, as solving
+// again with that one device temperature moved by 1 mK does (the
+// definition, by a forward difference of full Newton solves at tight
+// tolerances): to 0.2 % or 1e-12 W/K, on boards with emitter followers,
+// a stiff-biased power stage, switches and series resistances.
+func TestSolveGainsMatchResolving(t *testing.T) {
+	for _, f := range []string{"../../testdata/check/overdissipation.bad.cir", "../../testdata/check/thermal-runaway.bad.cir", "../../rulesets/demo/bench-logger.cir", "../../testdata/op/field-amp.cir"} {
+		c, err := netlist.Read(f, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s, err := Prepare(c)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, temp := range []float64{25, 70, 140} {
+			dt := map[string]float64{}
+			for _, q := range s.bjts {
+				dt[netlist.Key(q.e.Name)] = temp
+			}
+			o := Options{RelTol: 1e-10, VNTol: 1e-13, DeviceTemp: dt}
+			r0, g, err := s.SolveGains(o, 1e-3)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for j, q := range s.bjts {
+				d2 := map[string]float64{}
+				for k, v := range dt {
+					d2[k] = v
+				}
+				d2[netlist.Key(q.e.Name)] = temp + 1e-3
+				o2 := o
+				o2.DeviceTemp, o2.Guess = d2, r0
+				r1, err := s.Solve(o2)
+				if err != nil {
+					t.Fatal(err)
+				}
+				fd := (r1.BJTs[j].Power - r0.BJTs[j].Power) / 1e-3
+				if d := math.Abs(g[j] - fd); d > 2e-3*math.Abs(fd) && d > 1e-12 {
+					t.Errorf("%s at %g C, %s: dP/dT %.6g W/K, re-solving gives %.6g", f, temp, q.e.Name, g[j], fd)
+				}
+			}
+		}
+	}
+}
+
+// The response of a divider's midpoint to a current into it is the
+// parallel resistance R1·R2/(R1 + R2) (Thevenin's theorem): 8245.6 Ohm
+// for 47 kOhm and 10 kOhm, with a transistor removed from the node.
+func TestSolveResponseIsTheveninResistance(t *testing.T) {
+	b := newBuilder()
+	npnModel(b, nil)
+	b.V("VCC", "vcc", "0", 12)
+	b.R("R1", "vcc", "b", 47e3)
+	b.R("R2", "b", "0", 10e3)
+	b.R("RC", "vcc", "c", 4.7e3)
+	b.Q("Q1", "c", "b", "0", "qn")
+	s, err := Prepare(b.c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, dv, err := s.SolveResponse(Options{Remove: []string{"Q1"}}, map[string]float64{"b": 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The leak LeakR to ground at the base is in parallel too.
+	want := 1 / (1/47e3 + 1/10e3 + 1/LeakR)
+	if math.Abs(dv["b"]-want) > 1e-9*want {
+		t.Errorf("response %.6f Ohm, want %.6f", dv["b"], want)
+	}
+	if v := r.Voltage["b"]; math.Abs(v-12*10e3/57e3) > 1e-6 {
+		t.Errorf("V(b) = %g, want the divider's 2.105 V", v)
+	}
+}
