@@ -136,7 +136,7 @@ type analyzer struct {
 	// enet is the resistor network of the emitter resistances, rnet the
 	// nets held by ideal sources.
 	enet *emitterNetwork
-	rnet *railNets
+	rnet *Localizer
 	// sys is the nominal circuit prepared once (structure checked).
 	sys *solve.System
 	// multistable is set once the nominal solution was found unstable:

@@ -36,12 +36,20 @@ type States struct {
 	Message string
 }
 
-// stableStates tests the nominal solution for stability and returns the
-// stable states to use instead (nil when it is stable or cannot be
-// tested), with the unstable point.
+// stableStates tests the solution of case sp for stability and returns the
+// stable states to use instead, with the unstable point (both nil when the
+// point is stable or cannot be tested; states nil when none was found).
 func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *solve.Result, error) {
 	if out.res == nil || !out.res.Physical() {
 		return nil, nil, nil // no dynamics to speak of at a point the equations do not describe
+	}
+	if a.sys != nil && a.sys.Size() > solve.MaxStabilityUnknowns {
+		if sp.kind == KindNominal && len(a.bjts) > 1 {
+			a.notes.Notef(netlist.Pos{File: a.c.File, Line: 1, Col: 1},
+				"the operating point was not tested for stability: the circuit has %d unknowns, more than the %d the test takes; if it has positive feedback, check that the point is a stable one",
+				a.sys.Size(), solve.MaxStabilityUnknowns)
+		}
+		return nil, nil, nil
 	}
 	sys, err := solve.Prepare(a.c)
 	if err != nil {
@@ -58,17 +66,12 @@ func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *s
 	}
 	opt := solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: temps, Context: a.opt.Context}
 	st, err := sys.Stability(opt, out.res)
-	if err == nil && !st.Tested && len(a.bjts) > 1 {
-		a.notes.Notef(netlist.Pos{File: a.c.File, Line: 1, Col: 1},
-			"the operating point was not tested for stability: the circuit has %d unknowns, more than the %d the test takes; if it has positive feedback, check that the point is a stable one",
-			sys.Size(), solve.MaxStabilityUnknowns)
-	}
 	if err != nil || !st.Unstable {
 		return nil, nil, nil // a point that cannot be tested is kept
 	}
 	states, err := sys.StableStates(opt, st)
 	if err != nil {
-		return nil, nil, err
+		states = nil // the point is still unstable; the note says no state was found
 	}
 	return states, out.res, nil
 }

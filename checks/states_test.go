@@ -1,9 +1,12 @@
 package checks_test
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"testing"
+
+	"github.com/biaslint/biaslint/checks"
 )
 
 // A set-reset latch of our own: each collector (1 kOhm to 5 V) drives the
@@ -122,5 +125,23 @@ func TestBistableRoles(t *testing.T) {
 		if fs := findings(t, a, rule); len(fs) != 0 {
 			t.Errorf("%s on a latch: %s", rule, fs[0].Message)
 		}
+	}
+}
+
+// A circuit past the stability test's size gets a note instead of a test.
+func TestStabilityTooLargeIsNoted(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("long ladder\nVCC n0 0 12\n")
+	for i := 0; i < 620; i++ {
+		fmt.Fprintf(&b, "R%d n%d n%d 10\n", i, i, i+1)
+	}
+	b.WriteString("RL n620 0 10k\nRC1 n0 c1 1k\nRC2 n0 c2 1k\nQ1 c1 n310 0 N\nQ2 c2 c1 0 N\n.model N NPN (IS=1e-14 BF=100)\n.end\n")
+	a := analyzeWith(t, b.String(), checks.Options{})
+	noted := false
+	for _, n := range a.Notes {
+		noted = noted || strings.Contains(n.Msg, "not tested for stability")
+	}
+	if !noted || a.States != nil {
+		t.Errorf("noted %v, states %v; want the note and no states", noted, a.States)
 	}
 }

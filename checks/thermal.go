@@ -32,7 +32,9 @@ package checks
 //     Tj max) with a loop gain there at or above 1 (no fixed point below
 //     it: the power rises faster than the heat can leave). RunawayTj is
 //     the junction temperature from which the steps stopped shrinking
-//     (where the local loop gain reached 1), else the last iterate.
+//     (where the local loop gain reached 1), else the last iterate. The
+//     case's operating point is then solved with that junction at its Tj
+//     max (the power it dissipates when it reaches its rating).
 //   - stable: otherwise. When the iteration was stopped at the cap with a
 //     loop gain g < 1 there, the fixed point lies beyond it and is
 //     estimated by one Newton step on Tj − Ta − P·RthJA,
@@ -215,6 +217,22 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 		case capped[j]:
 			// Stable beyond the cap: one Newton step on the fixed point.
 			out.tj[j] = T[j] + d[j]/(1-g)
+		}
+	}
+	// A junction that runs away has no operating temperature: its facts
+	// are taken where it reaches its Tj max (the others where they are).
+	Th := append([]float64(nil), T...)
+	hot := false
+	for j := range a.bjts {
+		if out.runaway[j] && T[j] > tjmax[j] {
+			Th[j], hot = tjmax[j], true
+		}
+	}
+	if hot {
+		opt := base
+		opt.DeviceTemp, opt.Guess = temps(Th), res
+		if r, err := sys.Solve(opt); err == nil {
+			res = r
 		}
 	}
 	return res, out, nil

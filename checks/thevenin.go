@@ -3,6 +3,7 @@ package checks
 import (
 	"context"
 	"math"
+	"sort"
 
 	"github.com/biaslint/biaslint/checks/solve"
 	"github.com/biaslint/biaslint/netlist"
@@ -183,7 +184,7 @@ func theveninOn(ctx context.Context, sys *solve.System, q *netlist.Element, pol 
 // the facts of a board of many stages cost in proportion to the board,
 // not to its square.
 func (a *analyzer) theveninAll(nominal *solve.Result) {
-	a.rails() // built once, before the workers read it
+	a.rails().index(nil) // built once, before the workers read it
 	a.pool.each(len(a.bjts), func(w *worker, j int) {
 		t := &a.tmpl[j]
 		if lc := a.localCircuit(a.bjts[j], nominal); lc != nil {
@@ -214,26 +215,29 @@ func findRoot(parent map[string]string, x string) string {
 	return x
 }
 
-// railNets are the nets an ideal source holds: ground and every net tied
-// to it through voltage sources, inductors and zero-ohm resistors. A
-// change elsewhere in the circuit cannot move them.
-type railNets struct {
+// Localizer finds, for a transistor, the part of a circuit that taking
+// the transistor out can change: the nets reached from its terminals
+// without passing through a rail (ground and every net tied to it through
+// voltage sources, inductors and zero-ohm resistors, which no change
+// elsewhere can move). Build it once per circuit (NewLocalizer, linear in
+// the circuit); each Part then costs the size of that part.
+type Localizer struct {
+	c      *netlist.Circuit
 	parent map[string]string
 	// at lists the elements on each net (by key), for the searches.
 	at map[string][]*netlist.Element
 	// controlled is set when the circuit has E, F, G or H sources, whose
 	// controls can couple nets that share no element.
 	controlled bool
+	// idx is each element's position in the circuit.
+	idx map[*netlist.Element]int
 }
 
-// rails builds railNets once per analysis.
-func (a *analyzer) rails() *railNets {
-	if a.rnet != nil {
-		return a.rnet
-	}
-	r := &railNets{parent: map[string]string{}, at: map[string][]*netlist.Element{}}
+// NewLocalizer indexes circuit c.
+func NewLocalizer(c *netlist.Circuit) *Localizer {
+	r := &Localizer{c: c, parent: map[string]string{}, at: map[string][]*netlist.Element{}}
 	find := func(x string) string { return findRoot(r.parent, x) }
-	for _, e := range a.c.Elements {
+	for _, e := range c.Elements {
 		switch e.Kind {
 		case 'E', 'F', 'G', 'H':
 			r.controlled = true
@@ -258,26 +262,33 @@ func (a *analyzer) rails() *railNets {
 	for k := range r.parent {
 		r.parent[k] = find(k)
 	}
-	a.rnet = r
 	return r
 }
 
+// rails returns the analysis's Localizer, built once.
+func (a *analyzer) rails() *Localizer {
+	if a.rnet == nil {
+		a.rnet = NewLocalizer(a.c)
+	}
+	return a.rnet
+}
+
 // isRail reports whether net key k is held by an ideal source.
-func (r *railNets) isRail(k string) bool {
+func (r *Localizer) isRail(k string) bool {
 	return findRoot(r.parent, k) == findRoot(r.parent, netlist.Ground)
 }
 
-// localCircuit is the part of the circuit that removing transistor q can
-// change: the elements reached from its terminals without passing through
-// a rail, with every rail net they touch held at its nominal voltage by a
-// source of its own. Solving it gives what solving the whole circuit
-// gives for those nets (the rails do not move), at the cost of the part
-// instead of the board. It returns nil when the circuit has controlled
-// sources (their controls can reach past the search) or the part is most
-// of the board anyway.
-func (a *analyzer) localCircuit(q *netlist.Element, nominal *solve.Result) *netlist.Circuit {
-	r := a.rails()
-	if r.controlled || nominal == nil {
+// Part returns the part of the circuit that taking transistor q out can
+// change, as a circuit of its own: the elements reached from q's
+// terminals without passing through a rail, in netlist order, with every
+// rail net they touch held at its voltage in nominal by a source of its
+// own. Solving it gives what solving the whole circuit gives for those
+// nets, since the rails do not move. It returns nil when the circuit has
+// controlled sources (their controls can reach past the search), when
+// nominal is nil, or when the part is more than half of the circuit
+// anyway (then solve the whole).
+func (r *Localizer) Part(q *netlist.Element, nominal *solve.Result) *netlist.Circuit {
+	if r.controlled || nominal == nil || q == nil || len(q.Nodes) < 3 {
 		return nil
 	}
 	seen := map[string]bool{}
@@ -306,17 +317,15 @@ func (a *analyzer) localCircuit(q *netlist.Element, nominal *solve.Result) *netl
 				}
 			}
 		}
-		if 2*len(els) > len(a.c.Elements) {
+		if 2*len(els) > len(r.c.Elements) {
 			return nil
 		}
 	}
-	tc := *a.c
+	sort.Slice(els, func(i, j int) bool { return r.index(els[i]) < r.index(els[j]) })
+	tc := *r.c
 	tc.Elements = make([]*netlist.Element, 0, len(els)+8)
 	held := map[string]bool{}
-	for _, e := range a.c.Elements { // in netlist order
-		if !inEl[e] {
-			continue
-		}
+	for _, e := range els {
 		tc.Elements = append(tc.Elements, e)
 		for _, n := range e.Nodes {
 			k := nodeKey(n)
@@ -328,6 +337,22 @@ func (a *analyzer) localCircuit(q *netlist.Element, nominal *solve.Result) *netl
 		}
 	}
 	return &tc
+}
+
+// index returns an element's position in the circuit (built on first use).
+func (r *Localizer) index(e *netlist.Element) int {
+	if r.idx == nil {
+		r.idx = make(map[*netlist.Element]int, len(r.c.Elements))
+		for i, x := range r.c.Elements {
+			r.idx[x] = i
+		}
+	}
+	return r.idx[e]
+}
+
+// localCircuit is the analysis's Localizer's Part.
+func (a *analyzer) localCircuit(q *netlist.Element, nominal *solve.Result) *netlist.Circuit {
+	return a.rails().Part(q, nominal)
 }
 
 // isGroundKey reports whether a net key is ground.

@@ -445,6 +445,15 @@ func OfContext(ctx context.Context, an *checks.Analysis, name string) (Plane, er
 	if an == nil || len(an.Cases) == 0 || an.Circuit == nil {
 		return Plane{}, fmt.Errorf("no analysis")
 	}
+	return of(ctx, an, name, checks.NewLocalizer(an.Circuit))
+}
+
+// of is Of with the circuit's Localizer: the load line is solved on the
+// part of the board that taking the transistor out can change (the rest
+// is held by the rails), so plotting every transistor of a large board
+// costs in proportion to the board, not to its square. ctx stops its
+// solves (nil for never).
+func of(ctx context.Context, an *checks.Analysis, name string, loc *checks.Localizer) (Plane, error) {
 	nom := an.Cases[0]
 	var t *checks.Transistor
 	for i := range nom.Transistors {
@@ -485,7 +494,11 @@ func OfContext(ctx context.Context, an *checks.Analysis, name string) (Plane, er
 			opt.DeviceTemp[netlist.Key(d.Name)] = d.Temp
 		}
 	}
-	if ll, err := LoadLineOf(an.Circuit, t.Name, opt); err != nil {
+	circ := an.Circuit
+	if part := loc.Part(circ.Element(t.Name), nom.Solution); part != nil {
+		circ = part
+	}
+	if ll, err := LoadLineOf(circ, t.Name, opt); err != nil {
 		pl.LoadNote = err.Error()
 	} else {
 		pl.Load = &ll
@@ -519,12 +532,16 @@ func AllContext(ctx context.Context, an *checks.Analysis) []Plane {
 	if an == nil || len(an.Cases) == 0 {
 		return nil
 	}
+	if an.Circuit == nil {
+		return nil
+	}
+	loc := checks.NewLocalizer(an.Circuit)
 	var out []Plane
 	for _, t := range an.Cases[0].Transistors {
 		if ctx != nil && ctx.Err() != nil {
 			break
 		}
-		if pl, err := OfContext(ctx, an, t.Name); err == nil {
+		if pl, err := of(ctx, an, t.Name, loc); err == nil {
 			out = append(out, pl)
 		}
 	}

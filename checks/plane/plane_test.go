@@ -373,3 +373,50 @@ func TestOf(t *testing.T) {
 		t.Errorf("All = %+v", all)
 	}
 }
+
+// The load line Of solves on the local part of a board (up to the rails)
+// is the one solved on the whole board: same end points and curve to
+// 1e-9 relative, for every transistor of three stages on one rail with a
+// follower, and of the demo board.
+func TestLocalLoadLineMatchesWholeBoard(t *testing.T) {
+	src := "stages\nVCC vcc 0 12\n.model N NPN(IS=5f BF=180 VAF=80)\n"
+	for _, i := range []string{"1", "2", "3"} {
+		src += "R1_" + i + " vcc b" + i + " 47k\nR2_" + i + " b" + i + " 0 10k\nRC" + i + " vcc c" + i + " 4.7k\nRE" + i + " e" + i + " 0 1k\nQ" + i + " c" + i + " b" + i + " e" + i + " N\n"
+	}
+	src += "QF c1 c2 f N\nRF f 0 3.3k\n.end\n"
+	demo, err := netlist.Read("../../rulesets/demo/bench-logger.cir", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []*netlist.Circuit{circuit(t, src), demo} {
+		an, err := checks.Analyze(c, checks.Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, tr := range an.Cases[0].Transistors {
+			pl, err := Of(an, tr.Name)
+			if err != nil {
+				t.Fatal(err)
+			}
+			opt := solve.Options{Temp: solve.Temp(an.Cases[0].Solution.Temp)}
+			whole, err := LoadLineOf(c, tr.Name, opt)
+			if (err != nil) != (pl.Load == nil) {
+				t.Fatalf("%s: whole-board load line error %v, local %v", tr.Name, err, pl.LoadNote)
+			}
+			if err != nil {
+				continue
+			}
+			ll := pl.Load
+			if !near(ll.VOpen, whole.VOpen, 1e-9) || !near(ll.IShort, whole.IShort, 1e-9) || len(ll.Curve) != len(whole.Curve) {
+				t.Errorf("%s: local load line %g V, %g A (%d points), whole board %g V, %g A (%d)",
+					tr.Name, ll.VOpen, ll.IShort, len(ll.Curve), whole.VOpen, whole.IShort, len(whole.Curve))
+				continue
+			}
+			for k := range ll.Curve {
+				if !near(ll.Curve[k].IC, whole.Curve[k].IC, 1e-9) && math.Abs(ll.Curve[k].IC-whole.Curve[k].IC) > 1e-15 {
+					t.Errorf("%s: point %d: %g A, whole board %g A", tr.Name, k, ll.Curve[k].IC, whole.Curve[k].IC)
+				}
+			}
+		}
+	}
+}

@@ -312,6 +312,19 @@ func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]
 			}
 		}
 	}
+	// --shard: every input is read (so that a file another one includes
+	// is known as included whichever shard it falls in), only the shard's
+	// are checked and reported.
+	if run.shardN > 1 {
+		var ins []input
+		var rs []readOut
+		for k := range inputs {
+			if k%run.shardN == run.shardI-1 {
+				ins, rs = append(ins, inputs[k]), append(rs, reads[k])
+			}
+		}
+		inputs, reads = ins, rs
+	}
 	files := make([]report.File, len(inputs))
 	errs := make([]error, len(inputs))
 	pr := newProgress(c.App.ErrWriter, len(inputs), "checking")

@@ -172,6 +172,8 @@ type checkRun struct {
 	board     []byte
 	// timeout is the --file-timeout budget of each file (0: none).
 	timeout time.Duration
+	// shardI of shardN is the part of the inputs checked (--shard).
+	shardI, shardN int
 }
 
 func newCheckRun(c *cli.Context) (*checkRun, error) {
@@ -192,12 +194,10 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
-	si, sn, err := parseShard(c.String("shard"))
-	if err != nil {
+	run := &checkRun{set: set}
+	if run.shardI, run.shardN, err = parseShard(c.String("shard")); err != nil {
 		return nil, err
 	}
-	inputs = shardOf(inputs, si, sn)
-	run := &checkRun{set: set}
 	if run.timeout, err = fileTimeout(c); err != nil {
 		return nil, err
 	}

@@ -227,6 +227,9 @@ func runMerge(c *cli.Context) error {
 	if err := emit(c, &out); err != nil {
 		return err
 	}
+	if counts["exit"] == exitBadInput {
+		return &statusError{code: exitBadInput}
+	}
 	rank := map[string]int{"error": 0, "warning": 1, "note": 2}
 	for sev, n := range counts {
 		if r, ok := rank[sev]; ok && n > 0 && r <= rank[failOn] {
@@ -292,6 +295,84 @@ func (sh *shardReport) sarifItems() error {
 	return nil
 }
 
+// mergeInvocations joins the shards' single invocations: the exit code is
+// the largest (2 for a file that could not be judged outranks 1 for
+// findings), the run succeeded when every shard's did, and the
+// notifications are the files' notes in netlist order, then the files'
+// status notifications in netlist order, as one run writes them.
+func mergeInvocations(shards []*shardReport) (*object, int, error) {
+	var inv *object
+	code, ok := 0, true
+	var notes, status []merged
+	for _, sh := range shards {
+		runs, _ := sh.top.array("runs")
+		r, err := readObject(runs[0])
+		if err != nil {
+			return nil, 0, err
+		}
+		invs, err := r.array("invocations")
+		if err != nil || len(invs) != 1 {
+			return nil, 0, fmt.Errorf("%s: want one invocation", sh.name)
+		}
+		o, err := readObject(invs[0])
+		if err != nil {
+			return nil, 0, err
+		}
+		if inv == nil {
+			inv = o
+		}
+		var c int
+		var good bool
+		_ = json.Unmarshal(o.vals["exitCode"], &c)
+		_ = json.Unmarshal(o.vals["executionSuccessful"], &good)
+		code, ok = max(code, c), ok && good
+		if raw, has := o.vals["toolExecutionNotifications"]; has {
+			var ns []json.RawMessage
+			if err := json.Unmarshal(raw, &ns); err != nil {
+				return nil, 0, fmt.Errorf("%s: notifications: %v", sh.name, err)
+			}
+			for _, n := range ns {
+				m := merged{str(n, "properties", "netlist"), n}
+				if str(n, "properties", "file_status") != "" {
+					status = append(status, m)
+				} else {
+					notes = append(notes, m)
+				}
+			}
+		}
+	}
+	sort.SliceStable(notes, func(i, j int) bool { return notes[i].path < notes[j].path })
+	sort.SliceStable(status, func(i, j int) bool { return status[i].path < status[j].path })
+	var all []json.RawMessage
+	for _, m := range append(notes, status...) {
+		all = append(all, m.raw)
+	}
+	out := &object{keys: append([]string(nil), inv.keys...), vals: map[string]json.RawMessage{}}
+	for k, v := range inv.vals {
+		out.vals[k] = v
+	}
+	if err := out.set("executionSuccessful", ok); err != nil {
+		return nil, 0, err
+	}
+	if err := out.set("exitCode", code); err != nil {
+		return nil, 0, err
+	}
+	if len(all) > 0 {
+		if err := out.set("toolExecutionNotifications", all); err != nil {
+			return nil, 0, err
+		}
+	} else if _, has := out.vals["toolExecutionNotifications"]; has {
+		delete(out.vals, "toolExecutionNotifications")
+		for i, k := range out.keys {
+			if k == "toolExecutionNotifications" {
+				out.keys = append(out.keys[:i], out.keys[i+1:]...)
+				break
+			}
+		}
+	}
+	return out, code, nil
+}
+
 // merged is one item with the netlist it belongs to.
 type merged struct {
 	path string
@@ -311,15 +392,25 @@ func byPath(shards []*shardReport) []merged {
 	return all
 }
 
-// first returns the shard holding the first netlist in path order (the
-// one whose values an unsharded run takes for run-wide fields), else the
-// first shard.
+// first returns the shard holding the first checked netlist in path
+// order (the one whose values, such as the ambient, an unsharded run takes
+// for its run-wide fields), else the first shard.
 func first(shards []*shardReport) *shardReport {
-	best := shards[0]
+	var best *shardReport
+	bestPath := ""
 	for _, sh := range shards {
-		if len(sh.paths) > 0 && (len(best.paths) == 0 || sh.paths[0] < best.paths[0]) {
-			best = sh
+		for i, p := range sh.paths {
+			if st := str(sh.items[i], "status"); st != "" && st != "checked" {
+				continue
+			}
+			if best == nil || p < bestPath {
+				best, bestPath = sh, p
+			}
+			break
 		}
+	}
+	if best == nil {
+		return shards[0]
 	}
 	return best
 }
@@ -336,6 +427,11 @@ func mergeJSON(w io.Writer, shards []*shardReport) (map[string]int, error) {
 		o, err := readObject(m.raw)
 		if err != nil {
 			return nil, err
+		}
+		switch st := str(m.raw, "status"); st {
+		case "", "checked", "library", "included":
+		default:
+			counts["exit"] = exitBadInput // a file could not be judged
 		}
 		sum, err := readObject(o.vals["summary"])
 		if err != nil {
@@ -485,13 +581,14 @@ func mergeSARIF(w io.Writer, shards []*shardReport) (map[string]int, error) {
 		return nil, err
 	}
 	if _, ok := run.vals["invocations"]; ok {
-		inv, err := mergeInvocations(shards)
+		inv, code, err := mergeInvocations(shards)
 		if err != nil {
 			return nil, err
 		}
 		if err := run.set("invocations", []*object{inv}); err != nil {
 			return nil, err
 		}
+		counts["exit"] = code
 	}
 	out := &object{keys: append([]string(nil), top.keys...), vals: map[string]json.RawMessage{}}
 	for k, v := range top.vals {
@@ -501,79 +598,4 @@ func mergeSARIF(w io.Writer, shards []*shardReport) (map[string]int, error) {
 		return nil, err
 	}
 	return counts, writeIndented(w, out)
-}
-
-// mergeInvocations joins the shards' invocations into the one an unsharded
-// run writes: successful only when every shard was, the highest exit code
-// (2 input errors, 1 findings at --fail-on, 0 clean), and the
-// tool-execution notifications ordered as one run orders them: every
-// file's input notes in path order, then every file's status.
-func mergeInvocations(shards []*shardReport) (*object, error) {
-	var inv *object
-	success, exit := true, 0
-	type note struct {
-		part, path string
-		raw        json.RawMessage
-	}
-	var notes []note
-	for _, sh := range shards {
-		rs, _ := sh.top.array("runs")
-		r, err := readObject(rs[0])
-		if err != nil {
-			return nil, err
-		}
-		invs, err := r.array("invocations")
-		if err != nil || len(invs) != 1 {
-			return nil, fmt.Errorf("%s: want one invocation", sh.name)
-		}
-		o, err := readObject(invs[0])
-		if err != nil {
-			return nil, err
-		}
-		if inv == nil || sh == first(shards) {
-			inv = o
-		}
-		var ok bool
-		var code int
-		if json.Unmarshal(o.vals["executionSuccessful"], &ok) != nil || json.Unmarshal(o.vals["exitCode"], &code) != nil {
-			return nil, fmt.Errorf("%s: invocation without executionSuccessful or exitCode", sh.name)
-		}
-		success = success && ok
-		exit = max(exit, code)
-		if _, has := o.vals["toolExecutionNotifications"]; has {
-			ns, err := o.array("toolExecutionNotifications")
-			if err != nil {
-				return nil, fmt.Errorf("%s: toolExecutionNotifications: %v", sh.name, err)
-			}
-			for _, n := range ns {
-				notes = append(notes, note{str(n, "properties", "part"), str(n, "properties", "netlist"), n})
-			}
-		}
-	}
-	sort.SliceStable(notes, func(i, j int) bool {
-		if notes[i].part != notes[j].part {
-			return notes[i].part == "input"
-		}
-		return notes[i].path < notes[j].path
-	})
-	out := &object{keys: append([]string(nil), inv.keys...), vals: map[string]json.RawMessage{}}
-	for k, v := range inv.vals {
-		out.vals[k] = v
-	}
-	if err := out.set("executionSuccessful", success); err != nil {
-		return nil, err
-	}
-	if err := out.set("exitCode", exit); err != nil {
-		return nil, err
-	}
-	if len(notes) > 0 {
-		raws := make([]json.RawMessage, len(notes))
-		for i, n := range notes {
-			raws[i] = n.raw
-		}
-		if err := out.set("toolExecutionNotifications", raws); err != nil {
-			return nil, err
-		}
-	}
-	return out, nil
 }

@@ -116,6 +116,16 @@ func TestOpLatchStableState(t *testing.T) {
 	if !regions["saturation"] || !regions["cutoff"] || regions["active"] {
 		t.Errorf("regions %v; want one saturated and one cut off", regions)
 	}
+	chk, _, _ := runCLI(t, "check", "--format", "json", "testdata/op/latch.cir")
+	var cr struct {
+		Results []struct {
+			StableStates []string `json:"stable_states"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal([]byte(chk), &cr); err != nil || len(cr.Results) != 1 ||
+		strings.Join(cr.Results[0].StableStates, ",") != "nominal,stable state 2" {
+		t.Errorf("check JSON stable_states: %+v %v", cr, err)
+	}
 	out, _, _ := runCLI(t, "op", "testdata/op/latch.cir")
 	if !strings.Contains(out, "several DC solutions") || !strings.Contains(out, "shown: stable state 1") {
 		t.Errorf("op text does not say there are other states:\n%s", out)

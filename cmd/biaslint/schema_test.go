@@ -57,6 +57,8 @@ func TestJSONReportsValidateAgainstSchemas(t *testing.T) {
 	// batch with files that could not be judged (exit status 2).
 	validate(t, check, "check", "--format", "json", "testdata/dialect/stiff.cir", "testdata/dialect/handtyped.cir", "testdata/dialect/spice2.cir")
 	validate(t, op, "op", "--format", "json", "testdata/dialect/stiff.cir")
+	// A circuit with two stable states.
+	validate(t, check, "check", "--format", "json", "testdata/op/latch.cir")
 	out, _, _ := runCLI(t, "check", "--format", "json", "testdata/batch")
 	if inst, err := jsonschema.UnmarshalJSON(strings.NewReader(out)); err != nil || check.Validate(inst) != nil {
 		t.Errorf("the mixed batch's report does not validate: %v %v", err, check.Validate(inst))

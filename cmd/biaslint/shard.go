@@ -32,22 +32,10 @@ func parseShard(s string) (i, n int, err error) {
 	return i, n, nil
 }
 
-// shardOf keeps the inputs of shard i of n: input k (from 0, in input
-// order) belongs to shard k mod n + 1. The split depends only on the
-// input list, so every job of a CI matrix that names the same FILE
-// arguments gets a disjoint part, and together they cover every file.
-func shardOf(ins []input, i, n int) []input {
-	if n <= 1 {
-		return ins
-	}
-	var out []input
-	for k, in := range ins {
-		if k%n == i-1 {
-			out = append(out, in)
-		}
-	}
-	return out
-}
+// A shard's inputs: input k (from 0, in input order) belongs to shard
+// k mod n + 1 (checkRun.all). The split depends only on the input list, so
+// every job of a CI matrix that names the same FILE arguments gets a
+// disjoint part, and together they cover every file.
 
 // withoutFlag returns flags without the one named name.
 func withoutFlag(flags []cli.Flag, name string) []cli.Flag {

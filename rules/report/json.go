@@ -67,13 +67,18 @@ type jsonFile struct {
 	TemperatureFrom string   `json:"temperature_from,omitempty"`
 	// Unjudged lists the cases that could not be solved and why (every
 	// other case is judged).
-	Unjudged    []jsonUnjudged `json:"unjudged_cases,omitempty"`
-	Transistors int            `json:"transistors"`
-	BJTs        []jsonBJT      `json:"bjts"`
-	Findings    []jsonFinding  `json:"findings"`
-	Waived      []jsonFinding  `json:"waived"`
-	Notes       []jsonNote     `json:"notes"`
-	Summary     Counts         `json:"summary"`
+	Unjudged []jsonUnjudged `json:"unjudged_cases,omitempty"`
+	// StableStates names the cases that hold the stable states of a
+	// circuit whose first DC solution was unstable (positive feedback),
+	// the nominal case first; States describes them and the unstable point.
+	StableStates []string      `json:"stable_states,omitempty"`
+	States       string        `json:"states,omitempty"`
+	Transistors  int           `json:"transistors"`
+	BJTs         []jsonBJT     `json:"bjts"`
+	Findings     []jsonFinding `json:"findings"`
+	Waived       []jsonFinding `json:"waived"`
+	Notes        []jsonNote    `json:"notes"`
+	Summary      Counts        `json:"summary"`
 }
 
 // jsonBJT is one transistor in the case that matters for its role
@@ -258,6 +263,15 @@ func JSON(w io.Writer, r *Report) error {
 		}
 		if an := f.Analysis; an != nil && an.TempFrom != "" {
 			jf.Temperature, jf.TemperatureFrom = finite(an.Temp), an.TempFrom
+		}
+		if an := f.Analysis; an != nil && an.States != nil {
+			for _, ci := range an.States.Cases {
+				if ci < len(an.Cases) {
+					c := an.Cases[ci]
+					jf.StableStates = append(jf.StableStates, rules.CaseName(c.Scenario, c.Corner))
+				}
+			}
+			jf.States = an.States.Message
 		}
 		if an := f.Analysis; an != nil {
 			for _, c := range an.Cases {

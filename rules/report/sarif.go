@@ -77,10 +77,10 @@ type sarifNotification struct {
 	Level     string          `json:"level"`
 	Message   sarifText       `json:"message"`
 	Locations []sarifLocation `json:"locations,omitempty"`
-	// Properties name the checked netlist the notification belongs to and
-	// its part ("input" for a note about reading it, "status" for how its
-	// check ended), so that the reports of several runs merge in order.
-	Properties map[string]string `json:"properties,omitempty"`
+	// Properties name the checked netlist the notification is about
+	// ("netlist") and, for a file's status, that status ("file_status"),
+	// so that reports of several runs can be merged in file order.
+	Properties map[string]any `json:"properties,omitempty"`
 }
 
 // sarifInvocation records how the run ended.
@@ -247,8 +247,7 @@ func SARIF(w io.Writer, r *Report) error {
 			if file == "" {
 				file = f.Path
 			}
-			note := sarifNotification{Level: n.Severity.String(), Message: sarifText{n.Msg},
-				Properties: map[string]string{"netlist": f.Path, "part": "input"}}
+			note := sarifNotification{Level: n.Severity.String(), Message: sarifText{n.Msg}, Properties: map[string]any{"netlist": f.Path}}
 			note.Locations = []sarifLocation{physical(file, n.Pos)}
 			inv.ToolExecutionNotifications = append(inv.ToolExecutionNotifications, note)
 		}
@@ -275,14 +274,14 @@ func statusNotifications(r *Report) []sarifNotification {
 		if f.Status.Of() == StatusChecked {
 			continue
 		}
-		props := map[string]string{"netlist": f.Path, "part": "status"}
 		if !f.Status.Failed() || len(f.Errors) == 0 {
 			lvl := "note"
 			if f.Status.Failed() {
 				lvl = "error"
 			}
 			out = append(out, sarifNotification{Level: lvl, Message: sarifText{f.Path + ": " + StatusText(f)},
-				Locations: []sarifLocation{physical(f.Path, netlist.Pos{})}, Properties: props})
+				Locations:  []sarifLocation{physical(f.Path, netlist.Pos{})},
+				Properties: map[string]any{"netlist": f.Path, "file_status": string(f.Status.Of())}})
 			continue
 		}
 		for _, e := range f.Errors {
@@ -290,7 +289,8 @@ func statusNotifications(r *Report) []sarifNotification {
 			if file == "" {
 				file = f.Path
 			}
-			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)}, Properties: props})
+			out = append(out, sarifNotification{Level: "error", Message: sarifText{e.Msg}, Locations: []sarifLocation{physical(file, e.Pos)},
+				Properties: map[string]any{"netlist": f.Path, "file_status": string(f.Status.Of())}})
 		}
 	}
 	return out
