@@ -249,3 +249,16 @@ func (p *includePolicy) confineTop(path string) ([]byte, error) {
 	}
 	return p.base(path)
 }
+
+// ReadRegular reads the file at path for a caller outside the netlist
+// reader (a rule set, a board file): only a regular file is read, opened
+// without blocking, and at most limit+1 bytes of it, so a caller sees that
+// it is over its limit (len > limit) without holding more. A FIFO, device,
+// socket or folder gives an error saying what it is.
+func ReadRegular(path string, limit int) ([]byte, error) {
+	src, err := readRegular(path, limit)
+	if msg, ok := refused(err, false); ok {
+		return nil, errors.New(msg)
+	}
+	return src, err
+}

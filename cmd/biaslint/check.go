@@ -139,6 +139,9 @@ func idList(vals []string) []string {
 	return out
 }
 
+// maxPartsFile bounds a --parts library in bytes.
+const maxPartsFile = 4 << 20
+
 // loadParts returns the parts library: the built-in classes, after any
 // --parts FILE entries.
 func loadParts(c *cli.Context) (*rulesets.Library, error) {
@@ -150,9 +153,12 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 	if path == "" {
 		return lib, nil
 	}
-	src, err := os.ReadFile(path)
+	src, err := netlist.ReadRegular(path, maxPartsFile)
 	if err != nil {
 		return nil, badInput(fmt.Errorf("%s: error: cannot read parts library: %v", path, err))
+	}
+	if len(src) > maxPartsFile {
+		return nil, badInput(fmt.Errorf("%s: error: parts library is over the %d-byte limit", path, maxPartsFile))
 	}
 	user, err := rulesets.LoadParts(path, src)
 	if err != nil {

@@ -314,3 +314,38 @@ func TestClassFoldersConfined(t *testing.T) {
 		t.Errorf("want alice's include refused and bob's board checked:\n%s", out)
 	}
 }
+
+// TestHostileSideFiles: a rule set (or a rule set's extends), board file,
+// parts library or project file that is a device or a FIFO is an error at
+// once, never a hang or a read without end.
+func TestHostileSideFiles(t *testing.T) {
+	if _, err := os.Stat("/dev/zero"); err != nil {
+		t.Skip(err)
+	}
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "pipe.yaml")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Skipf("no FIFOs: %v", err)
+	}
+	writeFile(t, filepath.Join(dir, "extends-zero.yaml"), []byte("name: x\nextends: /dev/zero\n"))
+	writeFile(t, filepath.Join(dir, "extends-fifo.yaml"), []byte("name: x\nextends: pipe.yaml\n"))
+	for _, tc := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--ruleset", "/dev/zero"}, "a device, not a regular file"},
+		{[]string{"--ruleset", fifo}, "named pipe (FIFO)"},
+		{[]string{"--ruleset", filepath.Join(dir, "extends-zero.yaml")}, "extends-zero.yaml:2:10: error: rule set \"/dev/zero\": is a device"},
+		{[]string{"--ruleset", filepath.Join(dir, "extends-fifo.yaml")}, "named pipe (FIFO)"},
+		{[]string{"--board", "/dev/zero"}, "a device, not a regular file"},
+		{[]string{"--board", fifo}, "named pipe (FIFO)"},
+		{[]string{"--parts", "/dev/zero"}, "a device, not a regular file"},
+		{[]string{"--config", fifo}, "named pipe (FIFO)"},
+	} {
+		args := append(append([]string{"check"}, tc.args...), good)
+		out, errs, code := runWithin(t, 10*time.Second, args...)
+		if code != exitBadInput || out != "" || !strings.Contains(errs, tc.want) {
+			t.Errorf("%v: exit %d, stdout %q, stderr %q; want 2 and %q", tc.args, code, out, errs, tc.want)
+		}
+	}
+}

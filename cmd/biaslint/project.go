@@ -9,7 +9,6 @@ package main
 import (
 	"errors"
 	"fmt"
-	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -91,17 +90,14 @@ type projectSetting struct {
 // readProjectFile parses a project file. Unknown keys, values of the
 // wrong shape and YAML errors are located errors.
 func readProjectFile(path, shown string) ([]projectSetting, error) {
-	f, err := os.Open(path)
+	// A regular file only, never blocking (a link in a repository could
+	// point at a FIFO or a device).
+	src, err := netlist.ReadRegular(path, maxProjectFile)
 	if err != nil {
 		var pe *fs.PathError
 		if errors.As(err, &pe) {
 			err = pe.Err
 		}
-		return nil, fmt.Errorf("%s: error: cannot read project file: %v", shown, err)
-	}
-	defer f.Close()
-	src, err := io.ReadAll(io.LimitReader(f, maxProjectFile+1))
-	if err != nil {
 		return nil, fmt.Errorf("%s: error: cannot read project file: %v", shown, err)
 	}
 	if len(src) > maxProjectFile {
