@@ -8,6 +8,7 @@
 package checks
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"strings"
@@ -83,6 +84,10 @@ type Options struct {
 	// number done and the number known so far (the total grows as stages
 	// add cases). Calls are serialised.
 	Progress func(done, total int)
+	// Context, if not nil, bounds the analysis: once it is done every
+	// solve stops at its next Newton iteration and Analyze returns an error
+	// wrapping the context's (context.DeadlineExceeded for a time budget).
+	Context context.Context
 }
 
 // Tolerances are relative tolerances (0.05 for 5 %).
@@ -160,6 +165,10 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	}
 	a.pool = newPool(a)
 	an, err := a.run()
+	if ctx := a.opt.Context; ctx != nil && ctx.Err() != nil {
+		// Stopped: the cases solved after the stop are not results.
+		return nil, fmt.Errorf("analysis stopped: %w", ctx.Err())
+	}
 	if err != nil {
 		return nil, err
 	}

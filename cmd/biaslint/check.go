@@ -60,7 +60,7 @@ func checkCommand() *cli.Command {
 			rulesetFlag, setFlag,
 			&cli.StringSliceFlag{Name: "only", Usage: "judge only these rule `IDS` (comma-separated or repeated)"},
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
-			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag,
+			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag, fileTimeoutFlag, fileElementsFlag, fileMiBFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
 			colorFlag, outputFlag, demoFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
@@ -141,6 +141,9 @@ func idList(vals []string) []string {
 	return out
 }
 
+// maxPartsFile bounds a --parts library in bytes.
+const maxPartsFile = 4 << 20
+
 // loadParts returns the parts library: the built-in classes, after any
 // --parts FILE entries.
 func loadParts(c *cli.Context) (*rulesets.Library, error) {
@@ -152,9 +155,12 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 	if path == "" {
 		return lib, nil
 	}
-	src, err := os.ReadFile(path)
+	src, err := netlist.ReadRegular(path, maxPartsFile)
 	if err != nil {
 		return nil, badInput(fmt.Errorf("%s: error: cannot read parts library: %v", path, err))
+	}
+	if len(src) > maxPartsFile {
+		return nil, badInput(fmt.Errorf("%s: error: parts library is over the %d-byte limit", path, maxPartsFile))
 	}
 	user, err := rulesets.LoadParts(path, src)
 	if err != nil {
@@ -178,6 +184,8 @@ type checkRun struct {
 	board     []byte
 	// fixes asks for the computed fixes (rules/fix) of each file's findings.
 	fixes bool
+	// timeout is the --file-timeout budget of each file (0: none).
+	timeout time.Duration
 	// shardI of shardN is the part of the inputs checked (--shard).
 	shardI, shardN int
 }
@@ -202,6 +210,9 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	}
 	run := &checkRun{set: set, fixes: wantFixes(c)}
 	if run.shardI, run.shardN, err = parseShard(c.String("shard")); err != nil {
+		return nil, err
+	}
+	if run.timeout, err = fileTimeout(c); err != nil {
 		return nil, err
 	}
 	if run.boardPath = c.String("board"); run.boardPath != "" {

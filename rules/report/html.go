@@ -32,9 +32,19 @@ type HTMLOptions struct {
 // findings table, the waived findings with their reasons, one output-plane
 // plot per transistor with its margins against the ratings, the input
 // notes, and the safety cautions.
+//
+// html/template escapes every text; the page is then passed through
+// Printable, so a control character or a bidirectional override in a name
+// shows as an escape instead of reordering what the browser displays (the
+// page's own markup holds none).
 func HTML(w io.Writer, r *Report, opt HTMLOptions) error {
 	page := htmlPageOf(r, opt)
-	return htmlTemplate.Execute(w, page)
+	var b strings.Builder
+	if err := htmlTemplate.Execute(&b, page); err != nil {
+		return err
+	}
+	_, err := io.WriteString(w, Printable(b.String()))
+	return err
 }
 
 type htmlPage struct {

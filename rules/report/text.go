@@ -351,6 +351,8 @@ func StatusText(f *File) string {
 		s = "checked"
 	case StatusInputErrors:
 		s = "not checked: input errors"
+	case StatusOverBudget:
+		s = "not checked: over its budget"
 	case StatusLibrary:
 		s = "library (only .subckt, .model, .param or .lib definitions, no circuit): listed, not checked on its own"
 	case StatusIncluded:
@@ -376,7 +378,10 @@ func writeUnchecked(ew *errWriter, p paint, f *File, opt TextOptions) {
 		ew.printf("  %s: %s: %s\n", e.Pos, p.severity(rules.SeverityError), e.Msg)
 	}
 	writeNotes(ew, f, opt)
-	if f.Status.Failed() {
+	switch {
+	case f.Status.Of() == StatusOverBudget:
+		ew.printf("\n  %s: not checked, over its budget\n", f.Path)
+	case f.Status.Failed():
 		ew.printf("\n  %s: not checked, %s\n", f.Path, plural(len(f.Errors), "input error"))
 	}
 }
