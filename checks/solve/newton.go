@@ -1,6 +1,7 @@
 package solve
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -113,12 +114,23 @@ type work struct {
 	// junctions were limited in the last evaluation.
 	limited  []int
 	singular *SingularError
+	// ctx is Options.Context; stopped is set once it is done.
+	ctx     context.Context
+	stopped error
 	// off marks, by element index, the elements removed (offRemoved) or
 	// opened (offOpen) for this solve; offB, offD the removed devices;
 	// inject the test currents by unknown.
 	off        []uint8
 	offB, offD []bool
 	inject     map[int]float64
+}
+
+// stop reports whether the solve must stop because its context is done.
+func (w *work) stop() bool {
+	if w.stopped == nil && w.ctx != nil {
+		w.stopped = w.ctx.Err()
+	}
+	return w.stopped != nil
 }
 
 const (
@@ -213,7 +225,7 @@ func (s *System) newWork(opt Options) (*work, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1}
+	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
 	if w.lin == nil {
 		if s.lin == nil {
 			s.lin = NewSparseLU()
@@ -229,6 +241,14 @@ func (s *System) newWork(opt Options) (*work, error) {
 	if err := w.variants(opt); err != nil {
 		return nil, err
 	}
+	if b := s.spare; b != nil {
+		// The buffers of the last solve: every one is written before it
+		// is read (evaluate, assemble, residualOK, the linear solve).
+		s.spare = nil
+		w.jb, w.evB, w.jd, w.evD = b.jb, b.evB, b.jd, b.evD
+		w.rhs, w.xnew, w.res, w.mag = b.rhs, b.xnew, b.res, b.mag
+		return w, nil
+	}
 	nb, nd := len(s.bjts), len(s.diodes)
 	w.jb, w.evB = make([][2]float64, nb), make([]device.BJTEval, nb)
 	w.jd, w.evD = make([]float64, nd), make([][2]float64, nd)
@@ -237,11 +257,20 @@ func (s *System) newWork(opt Options) (*work, error) {
 	return w, nil
 }
 
+// release keeps a finished solve's buffers for the next one (a System is
+// not used concurrently, so one spare set is enough).
+func (s *System) release(w *work) {
+	if w != nil {
+		s.spare = w
+	}
+}
+
 // Solve finds the DC operating point: plain Newton first, then GMIN
 // stepping, then source stepping. It returns a *ConvergenceError if all
 // fail, and never returns a result with a non-finite value.
 func (s *System) Solve(opt Options) (*Result, error) {
-	r, _, _, err := s.solve(opt)
+	r, w, _, err := s.solve(opt)
+	s.release(w)
 	return r, err
 }
 
@@ -258,6 +287,9 @@ func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 	if w.newton(x, !warm, st.maxIter) {
 		return s.verified(w, x, MethodNewton), w, x, nil
 	}
+	if w.stop() {
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
+	}
 	tried = append(tried, fmt.Sprintf("newton (%d iterations)", w.iters))
 
 	copy(x, x0)
@@ -265,12 +297,18 @@ func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 	if ok {
 		return s.verified(w, x, MethodGminStepping), w, x, nil
 	}
+	if w.stop() {
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
+	}
 	tried = append(tried, msg)
 
 	copy(x, x0)
 	ok, msg = w.sourceStepping(x)
 	if ok {
 		return s.verified(w, x, MethodSourceStepping), w, x, nil
+	}
+	if w.stop() {
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
 	}
 	tried = append(tried, msg)
 
@@ -449,7 +487,7 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 			w.bad = w.bad[:0]
 			return true
 		}
-		if k == maxIter {
+		if k == maxIter || w.stop() {
 			return false
 		}
 		w.iters++
@@ -542,7 +580,7 @@ func (w *work) gminStepping(x []float64, cold bool) (bool, string) {
 	prev := make([]float64, len(x))
 	g, good, factor := gminStart, 0.0, float64(gminFactor)
 	maxIter := min(w.st.maxIter, stepIter)
-	for step := 1; step <= w.st.maxSteps; step++ {
+	for step := 1; step <= w.st.maxSteps && !w.stop(); step++ {
 		w.gshunt = g
 		if w.newton(x, cold, maxIter) {
 			cold = false
@@ -582,7 +620,7 @@ func (w *work) sourceStepping(x []float64) (bool, string) {
 	prev := make([]float64, len(x))
 	good, step := 0.0, srcStart
 	maxIter := min(w.st.maxIter, stepIter)
-	for n := 1; n <= w.st.maxSteps; n++ {
+	for n := 1; n <= w.st.maxSteps && !w.stop(); n++ {
 		w.lambda = math.Min(1, good+step)
 		if w.newton(x, false, maxIter) {
 			copy(prev, x)

@@ -136,6 +136,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			plotCommand(),
 			initCommand(),
 			demoCommand(),
+			fixCommand(),
 			mergeCommand(),
 			versionCommand(),
 			completionCommand(),
