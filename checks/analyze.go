@@ -8,8 +8,10 @@
 package checks
 
 import (
+	"context"
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/biaslint/biaslint/checks/board"
 	"github.com/biaslint/biaslint/checks/device"
@@ -82,6 +84,10 @@ type Options struct {
 	// number done and the number known so far (the total grows as stages
 	// add cases). Calls are serialised.
 	Progress func(done, total int)
+	// Context, if not nil, bounds the analysis: once it is done every
+	// solve stops at its next Newton iteration and Analyze returns an error
+	// wrapping the context's (context.DeadlineExceeded for a time budget).
+	Context context.Context
 }
 
 // Tolerances are relative tolerances (0.05 for 5 %).
@@ -128,6 +134,8 @@ type analyzer struct {
 	// min" and "hfe max" corners (0 where the corner does not apply).
 	hfeFactor [][2]float64
 	pool      *pool
+	// near is the adjacency the nearby parts are found from (nearby.go).
+	near *nearbyIndex
 	// enet is the resistor network of the emitter resistances, rnet the
 	// nets held by ideal sources.
 	enet *emitterNetwork
@@ -157,6 +165,10 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	}
 	a.pool = newPool(a)
 	an, err := a.run()
+	if ctx := a.opt.Context; ctx != nil && ctx.Err() != nil {
+		// Stopped: the cases solved after the stop are not results.
+		return nil, fmt.Errorf("analysis stopped: %w", ctx.Err())
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -178,6 +190,9 @@ func newAnalyzer(c *netlist.Circuit, opt Options) (*analyzer, error) {
 	b.Merge(opt.Board, errs)
 	a := &analyzer{c: c, opt: opt, board: b, parts: opt.Parts}
 	a.notes.Merge(errs)
+	for _, p := range b.UnmatchedParts(c) {
+		a.notes.Warnf(p.Pos, "ratings for %s match no model in the circuit (%s); they are not used", p.Model, modelList(c))
+	}
 	if a.parts == nil {
 		lib, err := rulesets.Parts()
 		if err != nil {
@@ -251,7 +266,7 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 	a.tmpl = make([]Transistor, len(a.bjts))
 	for i, el := range a.bjts {
 		a.tmpl[i] = Transistor{Name: el.Name, Polarity: a.polarity(el)}
-		a.tmpl[i].Rating = a.ratings(el, a.modelName(el), a.tmpl[i].Polarity)
+		a.tmpl[i].Rating = a.ratings(el, a.model(el), a.tmpl[i].Polarity)
 	}
 	sp := caseSpec{scenario: "nominal", kind: KindNominal, ambient: a.ambient, temp: a.temp, thermal: opt.Thermal, guess: -1}
 	res, th, err := a.solveThermal(a.sys, &sp, nil)
@@ -293,6 +308,23 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 		tj[op.Name] = t
 	}
 	return &OpPoint{Solution: res, Tj: tj, Temp: a.temp, TempFrom: a.tempFrom, NotPhysical: notPhys, States: multi}, nil
+}
+
+// modelList names a circuit's BJT models for a message, at most a few.
+func modelList(c *netlist.Circuit) string {
+	var names []string
+	for _, k := range c.SortedModelKeys() {
+		if m := c.Models[k]; m.Type == netlist.NPN || m.Type == netlist.PNP {
+			names = append(names, m.Name)
+		}
+	}
+	switch {
+	case len(names) == 0:
+		return "it has no transistor models"
+	case len(names) > 6:
+		return fmt.Sprintf("its transistor models are %s and %d more", strings.Join(names[:6], ", "), len(names)-6)
+	}
+	return "its transistor models are " + strings.Join(names, ", ")
 }
 
 // prepare records the nominal values and the nets' first positions.
@@ -352,12 +384,13 @@ func (a *analyzer) template(el *netlist.Element) Transistor {
 				EG: p.EG, XTI: p.XTI, XTB: p.XTB}
 		}
 	}
-	t.Rating = a.ratings(el, t.Model, t.Polarity)
+	t.Rating = a.ratings(el, m, t.Polarity)
 	t.Bleed = a.g.bleed(el)
 	t.StiffDrive = a.g.stiff(el)
 	for _, d := range a.g.drives(el).sources {
 		t.Drives = append(t.Drives, d.Name)
 	}
+	t.Nearby = a.nearby(el, t.Drives)
 	t.EmitterR = a.emitterResistance(el)
 	// BaseRth and BaseVth are solved after the nominal case (theveninAll).
 	t.BaseRth, t.BaseVth = math.NaN(), math.NaN()
@@ -371,14 +404,6 @@ func (a *analyzer) model(el *netlist.Element) *netlist.Model {
 		m = a.c.Models[el.Model]
 	}
 	return m
-}
-
-// modelName returns the name of a transistor's model card as written.
-func (a *analyzer) modelName(el *netlist.Element) string {
-	if m := a.model(el); m != nil {
-		return m.Name
-	}
-	return ""
 }
 
 // polarity returns "pnp" for a transistor with a PNP model, else "npn".
@@ -427,13 +452,17 @@ func DeratedPower(r Ratings, ta float64) float64 {
 	return math.Max(0, math.Min(r.Pd, (r.TjMax-ta)/r.RthJA))
 }
 
-// ratings merges a device's ratings: the library class its model matches
-// (else the generic class, with a note), overlaid by *@part values (see
-// combineRatings, which also notes, once per model, which values came from
-// where when the user gave only some).
-func (a *analyzer) ratings(el *netlist.Element, model, polarity string) Ratings {
-	lib, ok := a.parts.Lookup(model, polarity)
-	part := a.board.Part(model)
+// ratings merges a device's ratings: the library entry its model matches
+// (see partEntry; else the generic class, with a note), overlaid by *@part
+// values (see combineRatings, which also notes, once per model, which
+// values came from where when the user gave only some).
+func (a *analyzer) ratings(el *netlist.Element, m *netlist.Model, polarity string) Ratings {
+	model := el.Model
+	if m != nil {
+		model = m.Name
+	}
+	lib, ok := a.partEntry(el, m, polarity)
+	part := a.board.PartFor(m)
 	if !ok {
 		lib, _ = a.parts.Generic()
 	}
@@ -453,6 +482,25 @@ func (a *analyzer) ratings(el *netlist.Element, model, polarity string) Ratings 
 		a.notes.Notef(el.Pos, "%s: model %s has no ratings in the parts library or a *@part annotation; checked against the conservative %q class", el.Name, model, lib.Class)
 	}
 	return r
+}
+
+// partEntry finds the parts-library entry of a transistor's model: by the
+// model's own name (a model defined inside a subcircuit keeps it), then by
+// its flat name. A model named for a registered type of the other polarity
+// is not given that type's ratings, and a note says so.
+func (a *analyzer) partEntry(el *netlist.Element, m *netlist.Model, polarity string) (rulesets.PartRatings, bool) {
+	if m == nil {
+		return rulesets.PartRatings{}, false
+	}
+	names := []string{m.Local, m.Name}
+	if p, ok := a.parts.Lookup(polarity, names...); ok {
+		return p, true
+	}
+	if p, ok := a.parts.LookupType(names...); ok {
+		a.notes.Notef(el.Pos, "%s: model %s is %s, but %s is an %s type; its ratings are not used", el.Name, m.Name,
+			strings.ToUpper(polarity), p.Name, strings.ToUpper(p.Polarity))
+	}
+	return rulesets.PartRatings{}, false
 }
 
 // resistor computes one resistor's facts with resistance r, Ohm.

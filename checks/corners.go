@@ -429,7 +429,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		for _, op := range outs[groups[gi]].res.BJTs {
 			held[netlist.Key(op.Name)] = op.Temp
 		}
-		o := tightOptions(solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: held, Guess: outs[groups[gi]].res})
+		o := tightOptions(solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: held, Guess: outs[groups[gi]].res, Context: a.opt.Context})
 		r, sens, dv, err := w.sys.SolveSensitivities(o, names)
 		if err != nil {
 			errs[k] = err

@@ -21,10 +21,13 @@ import (
 // Ratings are the absolute-maximum and characteristic values of a part, as
 // the parts library or a *@part annotation gives them. Missing values are NaN.
 type Ratings struct {
-	// Part is the library entry or annotation the values came from.
+	// Part is the library entry or annotation the values came from: a
+	// registered type with its hFE group ("BC547B"), a class
+	// ("small-signal-npn", "generic") or the model an annotation names.
 	Part string `expr:"part"`
-	// Origin says where the values come from ("library: small-signal
-	// class, typical of the class, from memory", "annotation", ...).
+	// Origin says where the values come from ("parts library: from memory
+	// of the type's data sheets; check your maker's", "annotation at
+	// board.cir:9:1", ...).
 	Origin string `expr:"origin"`
 	// Generic is true when the device had no entry of its own and was
 	// checked against the conservative generic small-signal class.
@@ -213,6 +216,10 @@ type Transistor struct {
 	SwingPeak       float64 `expr:"swing_peak"`
 	SwingGain       float64 `expr:"swing_gain"`
 	HeadroomMissing float64 `expr:"headroom_missing"`
+
+	// Nearby are the parts around the transistor that set its bias, by
+	// role (see nearby.go); findings name them as their cause.
+	Nearby []Nearby `expr:"-"`
 
 	// Pos is where the device's line is; Chain the instances that placed it.
 	Pos   netlist.Pos        `expr:"-"`

@@ -35,7 +35,7 @@ const deratingRef = 25.0
 // When the user gives some values but not all, the returned note names
 // which came from where. part may be nil (the class alone, no note).
 func combineRatings(lib rulesets.PartRatings, part *board.Part) (Ratings, string) {
-	r := Ratings{Part: lib.Class, Origin: "parts library: " + lib.Origin,
+	r := Ratings{Part: lib.Name, Origin: "parts library: " + lib.Origin,
 		VCEO: lib.VCEO, VCBO: lib.VCBO, VEBO: lib.VEBO, ICMax: lib.ICMax, Pd: lib.Pd,
 		TjMax: lib.TjMax, RthJA: lib.RthJA, HFEMin: lib.HFEMin, HFEMax: lib.HFEMax}
 	if lib.Class == "" {

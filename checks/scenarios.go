@@ -365,7 +365,7 @@ func (w *worker) sweep(s *swingSource, specs []caseSpec, outs []caseOut, nominal
 		if err := w.apply(w.swing, &w.swingDirty, []setting{{key, s.centre + v}}); err != nil {
 			return nil, err
 		}
-		o := solve.Options{Temp: solve.Temp(a.temp), DeviceTemp: held, Guess: guess}
+		o := solve.Options{Temp: solve.Temp(a.temp), DeviceTemp: held, Guess: guess, Context: a.opt.Context}
 		if tight {
 			o = tightOptions(o)
 		}

@@ -64,7 +64,7 @@ func (a *analyzer) stableStates(sp *caseSpec, out *caseOut) ([]*solve.Result, *s
 	for _, op := range out.res.BJTs {
 		temps[netlist.Key(op.Name)] = op.Temp
 	}
-	opt := solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: temps}
+	opt := solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: temps, Context: a.opt.Context}
 	st, err := sys.Stability(opt, out.res)
 	if err != nil || !st.Unstable {
 		return nil, nil, nil // a point that cannot be tested is kept

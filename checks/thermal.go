@@ -89,7 +89,7 @@ type thermalOut struct {
 // solveThermal solves one case on sys: with the electro-thermal iteration
 // when sp.thermal, else once with the transistors at sp.heldTemps.
 func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Result) (*solve.Result, thermalOut, error) {
-	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Open: opened(sp)}
+	base := solve.Options{Temp: solve.Temp(sp.temp), Guess: guess, Open: opened(sp), Context: a.opt.Context}
 	if !sp.thermal {
 		base.DeviceTemp = sp.heldTemps
 		res, err := sys.Solve(base)

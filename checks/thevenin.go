@@ -1,6 +1,7 @@
 package checks
 
 import (
+	"context"
 	"math"
 	"sort"
 
@@ -77,7 +78,7 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 	}
 	tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'I', Name: "I#test",
 		Nodes: []string{netlist.Ground, name(emit)}, Source: &netlist.Source{DC: 1, HasDC: true}, Pos: q.Pos})
-	res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(a.temp)})
+	res, err := solve.Solve(tc, solve.Options{Temp: solve.Temp(a.temp), Context: a.opt.Context})
 	if err != nil {
 		return math.NaN()
 	}
@@ -147,11 +148,12 @@ func (w *worker) thevenin(j int, open []string, temp float64, guess *solve.Resul
 	if w.err != nil {
 		return math.NaN(), math.NaN()
 	}
-	return theveninOn(w.sys, w.a.bjts[j], w.a.tmpl[j].Polarity, open, temp, guess)
+	return theveninOn(w.a.opt.Context, w.sys, w.a.bjts[j], w.a.tmpl[j].Polarity, open, temp, guess)
 }
 
-// theveninOn is thevenin on System sys, for transistor q of polarity pol.
-func theveninOn(sys *solve.System, q *netlist.Element, pol string, open []string, temp float64, guess *solve.Result) (rth, vth float64) {
+// theveninOn is thevenin on System sys, for transistor q of polarity pol;
+// ctx (nil for none) stops its solve (solve.Options.Context).
+func theveninOn(ctx context.Context, sys *solve.System, q *netlist.Element, pol string, open []string, temp float64, guess *solve.Result) (rth, vth float64) {
 	if len(q.Nodes) < 3 {
 		return math.NaN(), math.NaN()
 	}
@@ -159,7 +161,7 @@ func theveninOn(sys *solve.System, q *netlist.Element, pol string, open []string
 	if pol == "pnp" {
 		sign = -1
 	}
-	o := tightOptions(solve.Options{Temp: solve.Temp(temp), Remove: []string{q.Name}, Open: open, Guess: guess})
+	o := tightOptions(solve.Options{Temp: solve.Temp(temp), Remove: []string{q.Name}, Open: open, Guess: guess, Context: ctx})
 	vbe := func(r *solve.Result) float64 {
 		return r.Voltage[nodeKey(q.Nodes[1])] - r.Voltage[nodeKey(q.Nodes[2])]
 	}
@@ -187,7 +189,7 @@ func (a *analyzer) theveninAll(nominal *solve.Result) {
 		t := &a.tmpl[j]
 		if lc := a.localCircuit(a.bjts[j], nominal); lc != nil {
 			if sys, err := solve.Prepare(lc); err == nil {
-				t.BaseRth, t.BaseVth = theveninOn(sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
+				t.BaseRth, t.BaseVth = theveninOn(a.opt.Context, sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
 				return
 			}
 		}
@@ -196,7 +198,7 @@ func (a *analyzer) theveninAll(nominal *solve.Result) {
 			t.BaseRth, t.BaseVth = math.NaN(), math.NaN()
 			return
 		}
-		t.BaseRth, t.BaseVth = theveninOn(w.sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
+		t.BaseRth, t.BaseVth = theveninOn(a.opt.Context, w.sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
 	})
 }
 

@@ -1,6 +1,7 @@
 package checks
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"path/filepath"
@@ -65,7 +66,7 @@ func TestLocalTheveninMatchesWholeBoard(t *testing.T) {
 				continue
 			}
 			local++
-			r1, v1 := theveninOn(sys, q, a.tmpl[j].Polarity, nil, a.temp, nom)
+			r1, v1 := theveninOn(context.Background(), sys, q, a.tmpl[j].Polarity, nil, a.temp, nom)
 			r2, v2 := w.thevenin(j, nil, a.temp, nom)
 			same := func(x, y float64) bool {
 				return x == y || (math.IsNaN(x) && math.IsNaN(y)) || math.Abs(x-y) <= 1e-9*math.Max(1e-3, math.Abs(y))

@@ -62,6 +62,12 @@ type Element struct {
 	// Control is the flat name of the controlling voltage source of an F or
 	// H element (the first one of a POLY element).
 	Control string
+	// ValueText and ValuePos are the main value as written on the element
+	// line and where it starts, when it is a literal number (10k, 4k7,
+	// 2.2e3); ValueText is "" when the value is an expression, a parameter
+	// name or not written.
+	ValueText string
+	ValuePos  Pos
 	// Poly, when not nil, makes an E, F, G or H element a SPICE2
 	// polynomial source of PolyN controlling values: the controlling
 	// voltages V(Nodes[2+2k]) - V(Nodes[3+2k]) of E and G, or the branch
@@ -130,7 +136,11 @@ const (
 // Model is a .model card. Params holds every parameter given, keyed by the
 // canonical upper-case name (aliases such as VA for VAF already folded).
 type Model struct {
-	Name   string
+	// Name is the model's flat name: its own name, prefixed with the
+	// instance path when it is defined inside a subcircuit (X1.QMOD).
+	Name string
+	// Local is the name as written on the .model card (QMOD).
+	Local  string
 	Type   ModelType
 	Params map[string]float64
 	// Text holds parameters whose values are words rather than numbers

@@ -75,10 +75,11 @@
 //
 // # Limits
 //
-// LoadOptions bounds the work one input can cause: 16 MiB per file, 1 MiB
-// per line, includes nested 16 deep, subcircuit instances and definitions
-// nested 32 deep, 200000 flat elements, POLY(n) with n at most 20 and at
-// most 200 coefficients; expressions are at most 4096 bytes
+// LoadOptions bounds the work one input can cause: 16 MiB per file, 64 MiB
+// for a netlist with all its includes (a file included again counted
+// again), 1 MiB per line, includes nested 16 deep, subcircuit instances and
+// definitions nested 32 deep, 200000 flat elements, POLY(n) with n at most
+// 20 and at most 200 coefficients; expressions are at most 4096 bytes
 // with parentheses nested at most 64 deep, and parameters may refer to each
 // other at most 200 deep. An ErrorList keeps MaxErrors errors and counts the
 // rest. ReadFile in LoadOptions replaces os.ReadFile, so tests and fuzzing
@@ -94,4 +95,11 @@
 // a socket or a folder is a located error and never blocks. A refused
 // include names the path as written and how to allow it
 // (LoadOptions.IncludeHint); nothing of the refused file is read.
+//
+// # Messages repeat little of the input
+//
+// A message quotes at most 24 bytes of any name, value or line (cut with
+// "..."), whatever file it is in, and a file that is not a netlist at all
+// (binary, or most of its lines unreadable as netlist lines) gets one error
+// for the file and nothing of it is quoted or read (quote.go).
 package netlist

@@ -233,7 +233,7 @@ func (f *flattener) node(w Word, e *env) string {
 // model evaluates a .model card in scope e into Circuit.Models.
 func (f *flattener) model(m *ModelStmt, e *env) {
 	name := join(e.path, m.Name.Text)
-	out := &Model{Name: name, Type: ModelType(m.Type), Params: map[string]float64{}, Pos: m.Pos}
+	out := &Model{Name: name, Local: m.Name.Text, Type: ModelType(m.Type), Params: map[string]float64{}, Pos: m.Pos}
 	for _, p := range m.Params {
 		canon, known := canonicalParam(out.Type, p.Name.Text)
 		if _, dup := out.Params[canon]; dup {
@@ -307,6 +307,9 @@ func (f *flattener) element(s *ElementStmt, def *Subckt, e *env) *Element {
 	ok := true
 	if s.Value != nil {
 		el.Value, ok = f.ev.eval(*s.Value, e)
+		if !s.Value.Braced && looksNumeric(s.Value.Text) {
+			el.ValueText, el.ValuePos = s.Value.Text, s.Value.Pos
+		}
 		if ok {
 			f.valueLetters(s.Kind, s.Name.Text, *s.Value, e)
 		}

@@ -73,7 +73,12 @@ type includePolicy struct {
 func newPolicy(top string, o *LoadOptions) *includePolicy {
 	p := &includePolicy{osFS: o.osFiles, hint: o.IncludeHint, base: o.ReadFile}
 	if p.hint == nil {
-		p.hint = func(dir string) string { return fmt.Sprintf("add %s to LoadOptions.IncludeDirs", dir) }
+		p.hint = func(dir string) string {
+			if dir == "" {
+				dir = "the folder the link points into"
+			}
+			return fmt.Sprintf("add %s to LoadOptions.IncludeDirs", dir)
+		}
 	}
 	seen := map[string]bool{}
 	for _, d := range append([]string{filepath.Dir(top)}, o.IncludeDirs...) {
@@ -113,7 +118,21 @@ func withinAny(path string, dirs []string) bool {
 }
 
 // allowed returns the folders for messages.
-func (p *includePolicy) allowed() string { return strings.Join(p.shown, ", ") }
+// Only the netlist's own folder is named: the others are the checking
+// machine's settings (a course's model folder, say), and the message goes
+// back to whoever wrote the netlist.
+func (p *includePolicy) allowed() string {
+	if len(p.shown) == 0 {
+		return "none"
+	}
+	s := p.shown[0]
+	if n := len(p.shown) - 1; n == 1 {
+		s += " and 1 more folder"
+	} else if n > 1 {
+		s += fmt.Sprintf(" and %d more folders", n)
+	}
+	return s
+}
 
 // check returns the path to open for path, or a refusal. In file-system
 // mode the path returned has its links resolved, so the file checked is the
@@ -136,7 +155,7 @@ func (p *includePolicy) check(path string) (string, error) {
 	}
 	if !withinAny(r, p.real) {
 		return "", &refusedError{msg: fmt.Sprintf("is a symbolic link to a file outside the folders includes may be read from (%s)", p.allowed()),
-			hint: p.hint, dir: "DIR (the folder the link points into)"}
+			hint: p.hint, dir: ""}
 	}
 	return r, nil
 }
@@ -229,4 +248,17 @@ func (p *includePolicy) confineTop(path string) ([]byte, error) {
 		path = r
 	}
 	return p.base(path)
+}
+
+// ReadRegular reads the file at path for a caller outside the netlist
+// reader (a rule set, a board file): only a regular file is read, opened
+// without blocking, and at most limit+1 bytes of it, so a caller sees that
+// it is over its limit (len > limit) without holding more. A FIFO, device,
+// socket or folder gives an error saying what it is.
+func ReadRegular(path string, limit int) ([]byte, error) {
+	src, err := readRegular(path, limit)
+	if msg, ok := refused(err, false); ok {
+		return nil, errors.New(msg)
+	}
+	return src, err
 }

@@ -79,6 +79,9 @@ func TestIncludePolicy(t *testing.T) {
 		{"fifo", "pipe.lib", nil, []string{":2:10:", "named pipe (FIFO), not a regular file"}},
 		{"folder", "sub", nil, []string{":2:10:", "a folder, not a regular file"}},
 		{"dev zero outside", "/dev/zero", nil, []string{":2:10:", "is outside the folders"}},
+		// Folders other than the netlist's own are counted, not named: they
+		// are the checking machine's settings.
+		{"other folders not named", "/etc/passwd", []string{outside, filepath.Join(root, "board", "sub")}, []string{"/board and 2 more folders)", "to allow it, add /etc to LoadOptions.IncludeDirs"}},
 		{"dev zero allowed", "/dev/zero", []string{"/dev"}, []string{":2:10:", "a device, not a regular file"}},
 		{"dev null allowed", "/dev/null", []string{"/dev"}, []string{":2:10:", "a device, not a regular file"}},
 	} {
@@ -105,6 +108,9 @@ func TestIncludePolicy(t *testing.T) {
 				return
 			}
 			mustMention(t, err, tc.want...)
+			if len(tc.dirs) > 0 && !strings.Contains(tc.include, tc.dirs[0]) && strings.Contains(err.Error(), tc.dirs[0]) {
+				t.Errorf("the message names an allowed folder other than the netlist's: %v", err)
+			}
 			if strings.Contains(err.Error(), "confidential") || strings.Contains(err.Error(), "root:x") {
 				t.Errorf("the message repeats the refused file's text: %v", err)
 			}
@@ -239,5 +245,17 @@ func TestNotNetlist(t *testing.T) {
 		if err != nil && strings.Contains(err.Error(), "does not read as a netlist") {
 			t.Errorf("%s: read as not a netlist: %v", name, err)
 		}
+	}
+}
+
+// TestTotalSize: a file included over and over is counted each time, so
+// the bytes one netlist makes the reader hold are bounded.
+func TestTotalSize(t *testing.T) {
+	part := strings.Repeat("* filler comment\n", 600) // about 10 kB
+	top := "total probe\nV1 a 0 5\nR1 a 0 1k\n" + strings.Repeat(".include part.inc\n", 20) + ".end\n"
+	_, err := Read("top.cir", &LoadOptions{ReadFile: memFS(map[string]string{"top.cir": top, "part.inc": part}).ReadFile, MaxTotalSize: 100_000})
+	mustMention(t, err, "top.cir:13:10:", "more than the limit of 100000 bytes", `"part.inc" and the includes after it are not read`)
+	if l := AsErrorList(err); l == nil || len(l.Errors()) != 1 || !strings.HasPrefix(l.Errors()[0].Pos.String(), "top.cir:") {
+		t.Errorf("want one error, at the include that passes the limit: %v", err)
 	}
 }

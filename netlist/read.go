@@ -3,6 +3,7 @@ package netlist
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"io/fs"
 	"path/filepath"
 	"strings"
@@ -15,6 +16,7 @@ const (
 	DefaultMaxIncludeDepth = 16       // nested .include / .lib levels
 	DefaultMaxSubcktDepth  = 32       // nested subcircuit instances
 	DefaultMaxElements     = 200000   // flat elements after flattening
+	DefaultMaxTotalSize    = 64 << 20 // bytes of one netlist and all its includes
 )
 
 // LoadOptions controls how netlist files are read. The zero value (or a nil
@@ -34,6 +36,10 @@ type LoadOptions struct {
 	MaxLineLength int
 	// MaxElements bounds the flat element count (0: default 200000).
 	MaxElements int
+	// MaxTotalSize bounds the bytes read for one netlist, the top file and
+	// every include together, however often a file is included (0: default
+	// 64 MiB), so the memory reading takes is bounded too.
+	MaxTotalSize int
 	// ReadDir lists the names in a directory, for an include name that
 	// matches a file only without regard to letter case; nil means
 	// os-backed listing when ReadFile is nil too, else no such lookup.
@@ -45,8 +51,9 @@ type LoadOptions struct {
 	// is a located error.
 	IncludeDirs []string
 	// IncludeHint ends the message about a refused include: how the user
-	// allows a folder (the CLI names its --include-dir flag). Nil says to
-	// add the folder to IncludeDirs.
+	// allows a folder (the CLI names its --include-dir flag); dir is ""
+	// for a link, whose target is not named. Nil says to add the folder to
+	// IncludeDirs.
 	IncludeHint func(dir string) string
 	// ConfineTop holds the top file itself to the policy: its path, links
 	// resolved, must lie inside its folder or IncludeDirs. For files found
@@ -72,6 +79,7 @@ func (o *LoadOptions) withDefaults() LoadOptions {
 	set(&r.MaxFileSize, DefaultMaxFileSize)
 	set(&r.MaxLineLength, DefaultMaxLineLength)
 	set(&r.MaxElements, DefaultMaxElements)
+	set(&r.MaxTotalSize, DefaultMaxTotalSize)
 	if r.ReadFile == nil {
 		if r.ReadDir == nil {
 			r.ReadDir = osReadDir
@@ -101,6 +109,18 @@ type reader struct {
 	tpos  Pos
 	// sections counts the .lib sections opened (see Deck.LibraryOnly).
 	sections int
+	// total is the bytes read so far, every file counted each time it is
+	// read (LoadOptions.MaxTotalSize); over is set once it passed.
+	total int
+	over  bool
+}
+
+// byteSize prints a byte count, with MiB for the large ones.
+func byteSize(n int) string {
+	if n >= 1<<20 {
+		return fmt.Sprintf("%d bytes (%d MiB)", n, n>>20)
+	}
+	return fmt.Sprintf("%d bytes", n)
 }
 
 // fileState is the per-file state of the line reader.
@@ -136,11 +156,21 @@ func (r *reader) readFile(name string, src []byte, depth int, stack []string, wa
 		r.errs.Addf(orFile(incPos, name), "file %q is larger than the limit of %d bytes (%d MiB)", verbatim(name), r.opts.MaxFileSize, r.opts.MaxFileSize>>20)
 		return
 	}
+	if r.total += len(src); r.total > r.opts.MaxTotalSize {
+		r.over = true
+		r.errs.Addf(orFile(incPos, name), "the netlist and its includes come to more than the limit of %s together; %q and the includes after it are not read",
+			verbatim(byteSize(r.opts.MaxTotalSize)), verbatim(name))
+		return
+	}
 	src = bytes.TrimPrefix(src, []byte("\xef\xbb\xbf"))
 	// A file that is not a netlist at all gets one error, quoting nothing
 	// of it: binary (at its first control byte), or mostly foreign lines.
 	if line, col, c, ok := firstBinary(src); ok {
-		r.errs.Addf(Pos{File: name, Line: line, Col: col}, "file %q is not text: control byte 0x%02x", verbatim(name), c)
+		if incPos.IsValid() {
+			r.errs.Addf(incPos, "file %q is not text: control byte 0x%02x on its line %d; nothing of it is read", verbatim(name), c, line)
+		} else {
+			r.errs.Addf(Pos{File: name, Line: line, Col: col}, "file %q is not text: control byte 0x%02x", verbatim(name), c)
+		}
 		return
 	}
 	if foreign, counted, first := notNetlist(string(src), top); foreign*2 > counted {
@@ -415,6 +445,9 @@ func (f *fileState) include(l *logical) bool {
 	if f.depth+1 > r.opts.MaxIncludeDepth {
 		r.errs.Addf(t[1].pos, "includes nested deeper than the limit of %d", r.opts.MaxIncludeDepth)
 		return true
+	}
+	if r.over {
+		return true // past MaxTotalSize: reported once, nothing more is read
 	}
 	// r.opts.ReadFile holds the include policy (Parse wraps it; open.go).
 	src, err := r.opts.ReadFile(name)

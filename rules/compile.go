@@ -311,7 +311,7 @@ type piece struct {
 // its subject; problems are located errors in l.errs.
 func (l *loader) compileRule(r *rawRule, params map[string]bool) *Rule {
 	rule := &Rule{ID: r.id, Severity: r.severity, Subject: r.subject, Unit: r.unit,
-		Rationale: r.rationale, Fix: r.fix, Unjudged: r.unjudged, Set: r.set, Pos: r.pos}
+		Rationale: r.rationale, Fix: r.fix, Unjudged: r.unjudged, Set: r.set, Pos: r.pos, Related: r.related}
 	c := &compiled{}
 	before := len(l.errs.Errors())
 	usedParams := map[string]bool{}

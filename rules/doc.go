@@ -30,6 +30,17 @@
 //	    rationale: why the rule exists, with its source
 //	    fix: what to change
 //	    unjudged: note               # severity when it cannot be judged (default note)
+//	    related: [base resistor, bleed resistor]   # parts a finding names as its cause
+//
+// related (transistor rules only) lists roles of the parts around the
+// transistor that the finding names, in this order, as related locations:
+// base resistor, divider resistor, bleed resistor, collector resistor,
+// emitter resistor, drive (package checks, nearby.go, says how each is
+// found). When the transistor has no part in the first role listed, the
+// finding says where one belongs (a bleed resistor between base and
+// emitter, an emitter resistor, a base resistor in series with a base that
+// has none). The computed fix searches the values of the related
+// resistors.
 //
 // Expressions use the expr language (github.com/expr-lang/expr). The names
 // available are the facts of the subject, as tagged in package checks

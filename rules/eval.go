@@ -58,6 +58,17 @@ type Finding struct {
 	Waived       bool        `json:"waived,omitempty"`
 	WaiverReason string      `json:"waiver_reason,omitempty"`
 	WaiverPos    netlist.Pos `json:"waiver_pos,omitempty"`
+	// Related are the other parts that make the finding happen (a weak
+	// switch's base resistor, the divider of a beta-sensitive stage), and
+	// the places where a missing part belongs, as the rule's related key
+	// asks for them.
+	Related []Related `json:"related,omitempty"`
+	// Measure is how far the worst case is past the rule's limit, in the
+	// rule's measure (larger is worse); not reported.
+	Measure float64 `json:"-"`
+	// Change is a computed resistor value change that clears the finding
+	// in every case (package rules/fix), or nil.
+	Change *Change `json:"change,omitempty"`
 	// WaiverExternal: the waiver is in a board file, not in the netlist.
 	WaiverExternal bool `json:"waiver_external,omitempty"`
 	// AlsoIn lists the other cases where the rule is violated on the
@@ -69,6 +80,59 @@ type Finding struct {
 	// lead orders the finding first at its position: it names the drive
 	// of a device whose operating point is not physical, the cause.
 	lead bool
+}
+
+// Related is one part that takes part in a finding, or the place where a
+// missing one belongs.
+type Related struct {
+	// Role is what the part does for the finding's device (see
+	// checks.NearbyRoles).
+	Role string `json:"role"`
+	// Name is the flat element name ("" when Missing).
+	Name string `json:"name,omitempty"`
+	// Pos is the element's line; for a missing part, the first line that
+	// names the net it belongs on.
+	Pos     netlist.Pos        `json:"pos"`
+	Chain   []netlist.Instance `json:"chain,omitempty"`
+	Missing bool               `json:"missing,omitempty"`
+	// Message says it in words: "RB (base resistor)", or "no bleed
+	// resistor: one belongs from net b to net 0".
+	Message string `json:"message"`
+}
+
+// Change is a resistor value change, verified by solving, that clears a
+// finding in every case and corner without raising another.
+type Change struct {
+	// Rule is the id of the finding it was searched for.
+	Rule string `json:"rule"`
+	// Element is the flat name of the resistor (the first, when the value
+	// is written once in a subcircuit used several times).
+	Element string `json:"element"`
+	// Pos is where the value's text starts; Old is that text as written
+	// and New its replacement. OldValue and NewValue are in Ohm.
+	Pos      netlist.Pos `json:"pos"`
+	Old      string      `json:"old"`
+	New      string      `json:"new"`
+	OldValue float64     `json:"old_value"`
+	NewValue float64     `json:"new_value"`
+	// Series is the IEC 60063 series the new value is from, "E12" or "E24".
+	Series string `json:"series"`
+	// Elements counts the flat resistors that share the value text.
+	Elements int `json:"elements"`
+	// Cases is the number of cases the verifying solve judged.
+	Cases int `json:"cases"`
+	// Clears lists every finding the change clears ("rule on device").
+	Clears []string `json:"clears"`
+}
+
+// String says what a change does, for reports: "RB 47k -> 1.2k (E12)
+// clears weak-switch-drive in all 9 cases".
+func (c *Change) String() string {
+	where := ""
+	if c.Elements > 1 {
+		where = fmt.Sprintf(" (the value of %d instances)", c.Elements)
+	}
+	return fmt.Sprintf("%s %s -> %s (%s)%s clears %s in all %d cases", c.Element, c.Old, c.New, c.Series, where, c.Rule, c.Cases)
 }
 
 // CaseName names a case as AlsoIn writes it: "scenario" or "scenario/corner".
@@ -84,7 +148,14 @@ type EvalOptions struct {
 	// Only keeps just these rule ids; Skip drops these. Unknown ids are an
 	// error (see RuleSet.Select).
 	Only, Skip []string
+	// Applied, when not nil, receives AppliedKey(rule, device) for every
+	// rule whose applies condition held on a subject in some case and
+	// that could be judged there (whether it passed or not).
+	Applied map[string]bool
 }
+
+// AppliedKey is the key of EvalOptions.Applied for a rule on a subject.
+func AppliedKey(rule, subject string) string { return rule + "\x00" + netlist.Key(subject) }
 
 // subjectRef is one subject in one case, ready for the expressions.
 type subjectRef struct {
@@ -136,7 +207,10 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 				if r.Subject != s.kind || r.c == nil {
 					continue
 				}
-				o, ok := judge(r, s, c, ci)
+				o, ok, applied := judge(r, s, c, ci)
+				if applied && opts.Applied != nil {
+					opts.Applied[AppliedKey(r.ID, s.name)] = true
+				}
 				if !ok {
 					continue
 				}
@@ -251,10 +325,10 @@ func subjects(c *checks.Case, params map[string]float64) []subjectRef {
 
 // judge runs one rule on one subject. ok is false when the rule does not
 // apply or passes.
-func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
+func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok, applied bool) {
 	base := Finding{Rule: r.ID, Severity: r.Severity, Subject: s.kind, Device: s.name, Pos: s.pos,
 		Chain: s.chain, Scenario: c.Scenario, Corner: c.Corner, Nets: s.nets, Fix: r.Fix}
-	unjudged := func(p *program, err error) (outcome, bool) {
+	unjudged := func(p *program, err error) (outcome, bool, bool) {
 		f := base
 		f.Severity = r.Unjudged
 		f.Unjudged = true
@@ -265,7 +339,7 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 			}
 		}
 		f.Message = fmt.Sprintf("rule %s could not be judged for %s %s: %s", r.ID, s.kind, s.name, reason)
-		return outcome{unjudged: true, caseIdx: ci, f: f}, true
+		return outcome{unjudged: true, caseIdx: ci, f: f}, true, false
 	}
 	if r.c.applies != nil {
 		v, err := expr.Run(r.c.applies.prog, s.env)
@@ -273,7 +347,7 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 			return unjudged(r.c.applies, err)
 		}
 		if b, _ := v.(bool); !b {
-			return outcome{}, false
+			return outcome{}, false, false
 		}
 	}
 	v, err := expr.Run(r.c.when.prog, s.env)
@@ -281,10 +355,15 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 		return unjudged(r.c.when, err)
 	}
 	if b, _ := v.(bool); !b {
-		return outcome{}, false
+		return outcome{}, false, true
 	}
 	f := base
 	f.Message, f.Values = render(r.c.message, s.env)
+	if len(r.Related) > 0 {
+		if te, ok := s.env.(transistorEnv); ok {
+			f.Related = relatedOf(r.Related, &te.Transistor, c)
+		}
+	}
 	o = outcome{violated: true, caseIdx: ci}
 	val, vok := runFloat(r.c.value, s.env)
 	lim, lok := runFloat(r.c.limit, s.env)
@@ -301,8 +380,9 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok bool) {
 	case f.HasLimit:
 		o.measure = val - lim
 	}
+	f.Measure = o.measure
 	o.f = f
-	return o, true
+	return o, true, true
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
@@ -396,4 +476,55 @@ func render(ps []piece, env any) (string, []Quantity) {
 		}
 	}
 	return b.String(), qs
+}
+
+// relatedOf lists the parts near t in the given roles, in that order. The
+// first role is the rule's main one: when t has no part in it, the list
+// says where one belongs (a bleed resistor between the base and emitter
+// nets, an emitter resistor in the emitter, a base resistor in series
+// with a base that has no resistor at all), located at the first line
+// that names the base net, or at the transistor.
+func relatedOf(roles []string, t *checks.Transistor, c *checks.Case) []Related {
+	var out []Related
+	has := map[string]bool{}
+	for _, n := range t.Nearby {
+		has[n.Role] = true
+	}
+	for i, role := range roles {
+		for _, n := range t.Nearby {
+			if n.Role == role {
+				out = append(out, Related{Role: role, Name: n.Name, Pos: n.Pos, Chain: n.Chain,
+					Message: n.Name + " (" + role + ")"})
+			}
+		}
+		if has[role] || i > 0 {
+			continue
+		}
+		pos, where := t.Pos, ""
+		switch {
+		case role == checks.NearBleed:
+			pos, where = netPos(c, t.Base, t.Pos), "between "+t.Name+"'s base (net "+t.Base+") and emitter (net "+t.Emitter+")"
+		case role == checks.NearBaseResistor && !has[checks.NearDivider]:
+			pos, where = netPos(c, t.Base, t.Pos), "in series with "+t.Name+"'s base (net "+t.Base+")"
+		case role == checks.NearEmitter:
+			where = "between " + t.Name + "'s emitter and net " + t.Emitter
+		default:
+			// A collector on a rail, no drive, no divider: nothing is
+			// missing.
+			continue
+		}
+		out = append(out, Related{Role: role, Pos: pos, Missing: true, Message: "no " + role + ": one belongs " + where})
+	}
+	return out
+}
+
+// netPos is the first line that names net in case c, else def.
+func netPos(c *checks.Case, net string, def netlist.Pos) netlist.Pos {
+	k := netlist.Key(net)
+	for i := range c.Nodes {
+		if netlist.Key(c.Nodes[i].Name) == k && c.Nodes[i].Pos.IsValid() {
+			return c.Nodes[i].Pos
+		}
+	}
+	return def
 }

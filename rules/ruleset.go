@@ -118,6 +118,9 @@ type Rule struct {
 	// any of the rule's expressions refer to. Both sorted.
 	Facts  []string
 	Params []string
+	// Related are the roles of the nearby parts (checks.NearbyRoles) that
+	// a finding of the rule names as its cause.
+	Related []string
 
 	c *compiled
 }
@@ -218,6 +221,9 @@ func sortedKeys(m map[string]bool) []string {
 	return ks
 }
 
+// maxRuleSetFile bounds a rule-set file in bytes.
+const maxRuleSetFile = 4 << 20
+
 // LoadOptions adjust a rule set as it is loaded.
 type LoadOptions struct {
 	// Set overrides parameters: name to value text, as a rule-set file
@@ -288,7 +294,11 @@ func (l *loader) resolve(ref, from string, fromBuiltin bool, at netlist.Pos, sta
 		if abs, e := filepath.Abs(path); e == nil {
 			key = "file:" + abs
 		}
-		src, err = os.ReadFile(path)
+		// Only a regular file, never blocking, and no more than the limit
+		// (an extends chain can be written by whoever wrote a rule file).
+		if src, err = netlist.ReadRegular(path, maxRuleSetFile); err == nil && len(src) > maxRuleSetFile {
+			err = fmt.Errorf("larger than the limit of %d bytes", maxRuleSetFile)
+		}
 	}
 	if err != nil {
 		l.errs.Addf(at, "rule set %q: %v", ref, err)

@@ -3,9 +3,11 @@ package rules
 import (
 	"math"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 
+	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/rulesets"
 	"go.yaml.in/yaml/v3"
@@ -63,6 +65,8 @@ type rawRule struct {
 	applies, when, measure, value, limit *rawExpr
 	message                              *rawExpr
 	unit, rationale, fix, set            string
+	// related are the roles of the nearby parts a finding names.
+	related []string
 }
 
 var ruleIDPattern = regexp.MustCompile(`^[a-z][a-z0-9]*(-[a-z0-9]+)*$`)
@@ -308,7 +312,7 @@ func (p *fileParser) rule(n *yaml.Node) *rawRule {
 	exprKeys := map[string]**rawExpr{"applies": &r.applies, "when": &r.when, "measure": &r.measure,
 		"value": &r.value, "limit": &r.limit, "message": &r.message}
 	ok := p.mapping(n, "rule", []string{"id", "severity", "subject", "applies", "when", "measure", "value", "limit",
-		"unit", "message", "rationale", "fix", "unjudged"},
+		"unit", "message", "rationale", "fix", "unjudged", "related"},
 		func(key string, k, v *yaml.Node) {
 			expr := func() *rawExpr {
 				s := p.str(v, key)
@@ -343,6 +347,15 @@ func (p *fileParser) rule(n *yaml.Node) *rawRule {
 				r.rationale = p.str(v, key)
 			case "fix":
 				r.fix = p.str(v, key)
+			case "related":
+				for _, item := range p.seq(v, key) {
+					role := p.str(item, key)
+					if !slices.Contains(checks.NearbyRoles, role) {
+						p.errs.Addf(p.pos(item), "related: %q is not a role of a nearby part (known: %s)", role, strings.Join(checks.NearbyRoles, ", "))
+						continue
+					}
+					r.related = append(r.related, role)
+				}
 			}
 		})
 	if !ok {
@@ -364,6 +377,9 @@ func (p *fileParser) rule(n *yaml.Node) *rawRule {
 	}
 	if r.message == nil {
 		missing("message")
+	}
+	if len(r.related) > 0 && subjSeen && r.subject != SubjectTransistor {
+		p.errs.Addf(r.pos, "rule %s: related names parts near a transistor; the rule's subject is %s", r.id, r.subject)
 	}
 	if (r.value == nil) != (r.limit == nil) {
 		p.errs.Addf(r.pos, "rule %s: value and limit go together; give both or neither", r.id)

@@ -137,6 +137,55 @@ func (s *Settings) Device(name string) *Device { return s.Devices[netlist.Key(na
 // Part returns the ratings given for the named model, or nil.
 func (s *Settings) Part(model string) *Part { return s.Parts[netlist.Key(model)] }
 
+// PartFor returns the ratings given for a model, or nil. Ratings given
+// for the model's own name as written on its .model card (MYSW) match it
+// wherever it is defined, at top level or inside any subcircuit; ratings
+// given for its flat hierarchical name (X1.MYSW) match that one model and
+// win, value by value, over those for its own name.
+func (s *Settings) PartFor(m *netlist.Model) *Part {
+	if m == nil {
+		return nil
+	}
+	full := s.Parts[netlist.Key(m.Name)]
+	var own *Part
+	if m.Local != "" && netlist.Key(m.Local) != netlist.Key(m.Name) {
+		own = s.Parts[netlist.Key(m.Local)]
+	}
+	if full == nil || own == nil {
+		if full != nil {
+			return full
+		}
+		return own
+	}
+	merged := *own
+	merged.Model, merged.Pos = full.Model, full.Pos
+	for _, k := range RatingKeys {
+		if v := *full.field(k); !math.IsNaN(v) {
+			*merged.field(k) = v
+		}
+	}
+	return &merged
+}
+
+// UnmatchedParts lists, sorted by name, the parts given ratings that match
+// no model of c by its flat or its own name (see PartFor).
+func (s *Settings) UnmatchedParts(c *netlist.Circuit) []*Part {
+	used := map[string]bool{}
+	for _, m := range c.Models {
+		used[netlist.Key(m.Name)] = true
+		if m.Local != "" {
+			used[netlist.Key(m.Local)] = true
+		}
+	}
+	var out []*Part
+	for _, k := range sortedKeys(s.Parts) {
+		if !used[k] {
+			out = append(out, s.Parts[k])
+		}
+	}
+	return out
+}
+
 // FromCircuit reads the *@part, *@device and *@waive annotations of a flat
 // circuit. Annotations inside a subcircuit name devices of that subcircuit:
 // "*@device RCOIL power=0.5" in the body of X1 sets X1.RCOIL. Problems are

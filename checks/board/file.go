@@ -50,9 +50,14 @@ func ReadFile(path string) ([]byte, error) {
 	if fi.Size() > MaxFileSize {
 		return nil, fmt.Errorf("%s: error: board file is %d bytes, over the %d-byte limit", path, fi.Size(), MaxFileSize)
 	}
-	src, err := os.ReadFile(path)
+	// A regular file only, never blocking, and no more than the limit
+	// (a device reports no size).
+	src, err := netlist.ReadRegular(path, MaxFileSize)
 	if err != nil {
 		return nil, fmt.Errorf("%s: error: cannot read board file: %v", path, unwrapPathErr(err))
+	}
+	if len(src) > MaxFileSize {
+		return nil, fmt.Errorf("%s: error: board file is over the %d-byte limit", path, MaxFileSize)
 	}
 	return src, nil
 }

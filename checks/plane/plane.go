@@ -1,6 +1,7 @@
 package plane
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"sort"
@@ -434,17 +435,25 @@ func caseName(c checks.Case) string {
 // temperature. A load line that cannot be found leaves Load nil with the
 // reason in LoadNote; a transistor not in the analysis is an error.
 func Of(an *checks.Analysis, name string) (Plane, error) {
+	return OfContext(context.Background(), an, name)
+}
+
+// OfContext is Of whose load-line solves stop when ctx is done
+// (solve.Options.Context; nil for never): the plane is then returned
+// without a load line, with the reason in LoadNote.
+func OfContext(ctx context.Context, an *checks.Analysis, name string) (Plane, error) {
 	if an == nil || len(an.Cases) == 0 || an.Circuit == nil {
 		return Plane{}, fmt.Errorf("no analysis")
 	}
-	return of(an, name, checks.NewLocalizer(an.Circuit))
+	return of(ctx, an, name, checks.NewLocalizer(an.Circuit))
 }
 
 // of is Of with the circuit's Localizer: the load line is solved on the
 // part of the board that taking the transistor out can change (the rest
 // is held by the rails), so plotting every transistor of a large board
-// costs in proportion to the board, not to its square.
-func of(an *checks.Analysis, name string, loc *checks.Localizer) (Plane, error) {
+// costs in proportion to the board, not to its square. ctx stops its
+// solves (nil for never).
+func of(ctx context.Context, an *checks.Analysis, name string, loc *checks.Localizer) (Plane, error) {
 	nom := an.Cases[0]
 	var t *checks.Transistor
 	for i := range nom.Transistors {
@@ -470,7 +479,7 @@ func of(an *checks.Analysis, name string, loc *checks.Localizer) (Plane, error) 
 	}
 	pl.Swings = trajectories(pl.Points)
 
-	opt := solve.Options{DeviceTemp: map[string]float64{}}
+	opt := solve.Options{DeviceTemp: map[string]float64{}, Context: ctx}
 	devTemp := nom.Ambient
 	if r := nom.Solution; r != nil {
 		opt.Temp = solve.Temp(r.Temp)
@@ -515,7 +524,11 @@ func of(an *checks.Analysis, name string, loc *checks.Localizer) (Plane, error) 
 
 // All computes the plane of every transistor of the nominal case, in
 // order.
-func All(an *checks.Analysis) []Plane {
+func All(an *checks.Analysis) []Plane { return AllContext(context.Background(), an) }
+
+// AllContext is All that stops when ctx is done (nil for never): the
+// planes made so far are returned, and ctx.Err() says it stopped.
+func AllContext(ctx context.Context, an *checks.Analysis) []Plane {
 	if an == nil || len(an.Cases) == 0 {
 		return nil
 	}
@@ -525,7 +538,10 @@ func All(an *checks.Analysis) []Plane {
 	loc := checks.NewLocalizer(an.Circuit)
 	var out []Plane
 	for _, t := range an.Cases[0].Transistors {
-		if pl, err := of(an, t.Name, loc); err == nil {
+		if ctx != nil && ctx.Err() != nil {
+			break
+		}
+		if pl, err := of(ctx, an, t.Name, loc); err == nil {
 			out = append(out, pl)
 		}
 	}

@@ -1,6 +1,7 @@
 package solve
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -113,12 +114,23 @@ type work struct {
 	// junctions were limited in the last evaluation.
 	limited  []int
 	singular *SingularError
+	// ctx is Options.Context; stopped is set once it is done.
+	ctx     context.Context
+	stopped error
 	// off marks, by element index, the elements removed (offRemoved) or
 	// opened (offOpen) for this solve; offB, offD the removed devices;
 	// inject the test currents by unknown.
 	off        []uint8
 	offB, offD []bool
 	inject     map[int]float64
+}
+
+// stop reports whether the solve must stop because its context is done.
+func (w *work) stop() bool {
+	if w.stopped == nil && w.ctx != nil {
+		w.stopped = w.ctx.Err()
+	}
+	return w.stopped != nil
 }
 
 const (
@@ -213,7 +225,7 @@ func (s *System) newWork(opt Options) (*work, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1}
+	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
 	if w.lin == nil {
 		if s.lin == nil {
 			s.lin = NewSparseLU()
@@ -275,6 +287,9 @@ func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 	if w.newton(x, !warm, st.maxIter) {
 		return s.verified(w, x, MethodNewton), w, x, nil
 	}
+	if w.stop() {
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
+	}
 	tried = append(tried, fmt.Sprintf("newton (%d iterations)", w.iters))
 
 	copy(x, x0)
@@ -282,12 +297,18 @@ func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 	if ok {
 		return s.verified(w, x, MethodGminStepping), w, x, nil
 	}
+	if w.stop() {
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
+	}
 	tried = append(tried, msg)
 
 	copy(x, x0)
 	ok, msg = w.sourceStepping(x)
 	if ok {
 		return s.verified(w, x, MethodSourceStepping), w, x, nil
+	}
+	if w.stop() {
+		return nil, nil, nil, fmt.Errorf("solve stopped: %w", w.stopped)
 	}
 	tried = append(tried, msg)
 
@@ -466,7 +487,7 @@ func (w *work) newton(x []float64, cold bool, maxIter int) bool {
 			w.bad = w.bad[:0]
 			return true
 		}
-		if k == maxIter {
+		if k == maxIter || w.stop() {
 			return false
 		}
 		w.iters++
@@ -559,7 +580,7 @@ func (w *work) gminStepping(x []float64, cold bool) (bool, string) {
 	prev := make([]float64, len(x))
 	g, good, factor := gminStart, 0.0, float64(gminFactor)
 	maxIter := min(w.st.maxIter, stepIter)
-	for step := 1; step <= w.st.maxSteps; step++ {
+	for step := 1; step <= w.st.maxSteps && !w.stop(); step++ {
 		w.gshunt = g
 		if w.newton(x, cold, maxIter) {
 			cold = false
@@ -599,7 +620,7 @@ func (w *work) sourceStepping(x []float64) (bool, string) {
 	prev := make([]float64, len(x))
 	good, step := 0.0, srcStart
 	maxIter := min(w.st.maxIter, stepIter)
-	for n := 1; n <= w.st.maxSteps; n++ {
+	for n := 1; n <= w.st.maxSteps && !w.stop(); n++ {
 		w.lambda = math.Min(1, good+step)
 		if w.newton(x, false, maxIter) {
 			copy(prev, x)

@@ -1,6 +1,7 @@
 package solve
 
 import (
+	"context"
 	"fmt"
 	"math"
 )
@@ -52,6 +53,12 @@ type Options struct {
 	// (BenchmarkLinear: faster than DenseLU from 5 unknowns up, since the
 	// dense one estimates the condition at every factorisation).
 	Linear LinearSolver
+	// Context, if not nil, stops the solve when it is done: every Newton
+	// iteration (of plain Newton and of each stepping step) checks it, and
+	// Solve then returns its error (errors.Is(err, context.DeadlineExceeded)
+	// for a deadline). A per-file time budget uses it, so a timed-out check
+	// stops computing instead of running on unseen.
+	Context context.Context
 
 	// The variants below change the circuit for one solve without
 	// changing the System's structure, so the matrix pattern, its ordering

@@ -7,6 +7,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -340,7 +341,19 @@ func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]
 			return
 		}
 		if r.err == nil {
-			*f, r.err = run.one(c, r.circ, opt)
+			var over bool
+			r.err, over = withBudget(in.name, run.timeout, func(ctx context.Context) error {
+				o := opt
+				o.Context = ctx // stops every solve of this file when the budget runs out
+				var err error
+				*f, err = run.one(c, r.circ, o)
+				return err
+			})
+			if over {
+				*f, errs[i] = overBudget(in.name, r.circ.Title, run.timeout)
+				f.Notes = r.circ.Notes
+				return
+			}
 		}
 		if r.err != nil {
 			errs[i] = r.err

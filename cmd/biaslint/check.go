@@ -18,6 +18,7 @@ import (
 	"github.com/biaslint/biaslint/checks/board"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/rules"
+	"github.com/biaslint/biaslint/rules/fix"
 	"github.com/biaslint/biaslint/rules/report"
 	"github.com/biaslint/biaslint/rulesets"
 )
@@ -33,7 +34,7 @@ var (
 	}
 	partsFlag = &cli.StringFlag{
 		Name:  "parts",
-		Usage: "extra parts library `FILE` (YAML); its entries take precedence over the built-in classes",
+		Usage: "extra parts library `FILE` (YAML); its entries take precedence over the built-in types and classes",
 	}
 	boardFlag = &cli.StringFlag{
 		Name:  "board",
@@ -59,7 +60,7 @@ func checkCommand() *cli.Command {
 			rulesetFlag, setFlag,
 			&cli.StringSliceFlag{Name: "only", Usage: "judge only these rule `IDS` (comma-separated or repeated)"},
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
-			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag,
+			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag, fileTimeoutFlag, fileElementsFlag, fileMiBFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
 			colorFlag, outputFlag, demoFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
@@ -68,6 +69,7 @@ func checkCommand() *cli.Command {
 			&cli.IntFlag{Name: "monte-carlo", Usage: "add `N` Monte Carlo runs drawing every resistor and supply within its tolerance"},
 			&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "seed `S` of the Monte Carlo draws (the same seed gives the same report)"},
 			&cli.StringFlag{Name: "distribution", Value: "uniform", Usage: "Monte Carlo distribution within each tolerance: uniform or normal (3 sigma at the tolerance)"},
+			fixesFlag,
 			shardFlag,
 			configFlag, noConfigFlag,
 		},
@@ -139,6 +141,9 @@ func idList(vals []string) []string {
 	return out
 }
 
+// maxPartsFile bounds a --parts library in bytes.
+const maxPartsFile = 4 << 20
+
 // loadParts returns the parts library: the built-in classes, after any
 // --parts FILE entries.
 func loadParts(c *cli.Context) (*rulesets.Library, error) {
@@ -150,15 +155,22 @@ func loadParts(c *cli.Context) (*rulesets.Library, error) {
 	if path == "" {
 		return lib, nil
 	}
-	src, err := os.ReadFile(path)
+	src, err := netlist.ReadRegular(path, maxPartsFile)
 	if err != nil {
 		return nil, badInput(fmt.Errorf("%s: error: cannot read parts library: %v", path, err))
+	}
+	if len(src) > maxPartsFile {
+		return nil, badInput(fmt.Errorf("%s: error: parts library is over the %d-byte limit", path, maxPartsFile))
 	}
 	user, err := rulesets.LoadParts(path, src)
 	if err != nil {
 		return nil, badInput(err)
 	}
-	return &rulesets.Library{Entries: append(append([]rulesets.PartRatings(nil), user.Entries...), lib.Entries...)}, nil
+	all, err := rulesets.Combine(user, lib)
+	if err != nil {
+		return nil, badInput(err)
+	}
+	return all, nil
 }
 
 // checkRun is the shared part of check and report: read, analyse and judge
@@ -170,6 +182,10 @@ type checkRun struct {
 	// and parsed against each netlist.
 	boardPath string
 	board     []byte
+	// fixes asks for the computed fixes (rules/fix) of each file's findings.
+	fixes bool
+	// timeout is the --file-timeout budget of each file (0: none).
+	timeout time.Duration
 	// shardI of shardN is the part of the inputs checked (--shard).
 	shardI, shardN int
 }
@@ -192,8 +208,11 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
-	run := &checkRun{set: set}
+	run := &checkRun{set: set, fixes: wantFixes(c)}
 	if run.shardI, run.shardN, err = parseShard(c.String("shard")); err != nil {
+		return nil, err
+	}
+	if run.timeout, err = fileTimeout(c); err != nil {
 		return nil, err
 	}
 	if run.boardPath = c.String("board"); run.boardPath != "" {
@@ -279,7 +298,52 @@ func (run *checkRun) one(c *cli.Context, circ *netlist.Circuit, opt checks.Optio
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
+	if run.fixes {
+		var st fix.Stats
+		findings, st = fix.SearchStats(circ, findings, run.judge(opt), fix.Options{MaxWork: checkFixWork(len(an.Cases))})
+		if st.Unsearched > 0 {
+			notes = append(notes, &netlist.Error{Pos: netlist.Pos{File: circ.File, Line: 1, Col: 1}, Severity: netlist.SevNote,
+				Msg: fmt.Sprintf("computed fixes: %d of %d findings searched before the search's budget (%d cases solved) ran out; 'biaslint fix' searches further",
+					st.Searched, st.Searched+st.Unsearched, st.Work)})
+		}
+	}
 	return report.File{Path: circ.File, Title: circ.Title, Analysis: an, Findings: findings, Notes: notes}, nil
+}
+
+// fixesFlag turns the computed fixes of check on or off.
+var fixesFlag = &cli.BoolFlag{Name: "fixes", Value: true,
+	Usage: "search E12/E24 resistor values that clear findings, verified by solving (--fixes=false: do not)"}
+
+// wantFixes reports whether a check run shows computed fixes: asked for,
+// and a format that shows them (not the CSV tables).
+func wantFixes(c *cli.Context) bool {
+	return c.Bool("fixes") && c.String("format") != "csv" && c.String("summary") != "csv"
+}
+
+// checkFixWork is the budget of check's fix search for a netlist whose
+// check solved cases cases: about one more check of a large board, and
+// room for a few dozen solves of a small one.
+func checkFixWork(cases int) int { return max(400, cases) }
+
+// judge returns the fix search's Judge: analyse a changed circuit with
+// the run's options (no progress bar; the quick judgement without the
+// corners, the Monte Carlo runs and the electro-thermal solve) and
+// evaluate the rule set.
+func (run *checkRun) judge(opt checks.Options) fix.Judge {
+	opt.Progress = nil
+	return func(c *netlist.Circuit, quick bool) (fix.Verdict, error) {
+		o := opt
+		if quick {
+			o.Corners, o.MonteCarlo, o.Thermal = false, 0, false
+		}
+		an, err := checks.Analyze(c, o)
+		if err != nil {
+			return fix.Verdict{}, err
+		}
+		v := fix.Verdict{Applied: map[string]bool{}, Cases: len(an.Cases)}
+		v.Findings, err = rules.Evaluate(run.set, an, rules.EvalOptions{Applied: v.Applied})
+		return v, err
+	}
 }
 
 func runCheck(c *cli.Context) error {

@@ -98,6 +98,9 @@ func inputsOf(c *cli.Context) ([]input, error) {
 	var ins []input
 	for _, f := range found {
 		o := &netlist.LoadOptions{IncludeDirs: dirs, IncludeHint: includeHint, ConfineTop: f.searched}
+		if err := sizeBudget(c, o); err != nil {
+			return nil, err
+		}
 		if f.root != "" {
 			// A folder argument: its files may include from all of it.
 			o.IncludeDirs = append([]string{f.root}, dirs...)
@@ -141,6 +144,9 @@ func includeDirs(c *cli.Context) ([]string, error) {
 
 // includeHint tells how to allow a folder an include was refused from.
 func includeHint(dir string) string {
+	if dir == "" {
+		return "pass --include-dir with the folder the link points into"
+	}
 	if strings.ContainsAny(dir, " \t'\"") {
 		dir = strconv.Quote(dir)
 	}

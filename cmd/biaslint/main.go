@@ -132,6 +132,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			reportCommand(),
 			plotCommand(),
 			initCommand(),
+			fixCommand(),
 			mergeCommand(),
 			versionCommand(),
 			completionCommand(),

@@ -9,7 +9,6 @@ package main
 import (
 	"errors"
 	"fmt"
-	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -49,8 +48,9 @@ var (
 // resolved against the project file's folder.
 var (
 	projectKeys = []string{"ruleset", "set", "only", "skip", "parts", "board", "fail-on", "ambient",
-		"ambient-range", "corners", "thermal", "monte-carlo", "seed", "distribution"}
-	pathKeys = map[string]bool{"parts": true, "board": true}
+		"ambient-range", "corners", "thermal", "monte-carlo", "seed", "distribution",
+		"include-dir", "file-timeout", "file-elements", "file-mib"}
+	pathKeys = map[string]bool{"parts": true, "board": true, "include-dir": true}
 )
 
 // findProjectFile looks for ProjectFile in dir and its parents, stopping
@@ -90,17 +90,14 @@ type projectSetting struct {
 // readProjectFile parses a project file. Unknown keys, values of the
 // wrong shape and YAML errors are located errors.
 func readProjectFile(path, shown string) ([]projectSetting, error) {
-	f, err := os.Open(path)
+	// A regular file only, never blocking (a link in a repository could
+	// point at a FIFO or a device).
+	src, err := netlist.ReadRegular(path, maxProjectFile)
 	if err != nil {
 		var pe *fs.PathError
 		if errors.As(err, &pe) {
 			err = pe.Err
 		}
-		return nil, fmt.Errorf("%s: error: cannot read project file: %v", shown, err)
-	}
-	defer f.Close()
-	src, err := io.ReadAll(io.LimitReader(f, maxProjectFile+1))
-	if err != nil {
 		return nil, fmt.Errorf("%s: error: cannot read project file: %v", shown, err)
 	}
 	if len(src) > maxProjectFile {
@@ -163,7 +160,7 @@ func readProjectFile(path, shown string) ([]projectSetting, error) {
 					s.values = append(s.values, v.Content[j].Value+"="+val)
 				}
 			}
-		case v.Kind == yaml.SequenceNode && (key == "ruleset" || key == "only" || key == "skip"):
+		case v.Kind == yaml.SequenceNode && (key == "ruleset" || key == "only" || key == "skip" || key == "include-dir"):
 			for _, item := range v.Content {
 				if val, ok := scalar(item); ok {
 					s.values = append(s.values, val)
@@ -183,6 +180,16 @@ func readProjectFile(path, shown string) ([]projectSetting, error) {
 				(strings.ContainsAny(val, `/\`) || strings.HasSuffix(val, ".yaml") || strings.HasSuffix(val, ".yml"))
 			if isFile && !filepath.IsAbs(val) {
 				s.values[j] = filepath.Join(dir, filepath.FromSlash(val))
+			}
+			// The project file travels with the netlists (a pull request
+			// can change it): it may name files and folders of its own tree
+			// only, links resolved, so it cannot make the check read (and
+			// quote) a file elsewhere on the machine.
+			if isFile && !insideFolder(s.values[j], dir) {
+				errs.Addf(at(v), "project file: %s %s is outside the project file's folder; a file or folder outside it can only be named with --%s on the command line", key, val, key)
+			}
+			if msg := loosensBudget(key, val); msg != "" {
+				errs.Addf(at(v), "project file: %s", msg)
 			}
 		}
 		out = append(out, s)
@@ -290,4 +297,22 @@ fail-on: error
 #   vceo_share: 80%
 # skip: [no-emitter-degeneration]
 `
+}
+
+// insideFolder reports whether path lies in dir or below it, both with
+// their symbolic links resolved (a path that does not exist is judged as
+// written).
+func insideFolder(path, dir string) bool {
+	real := func(p string) string {
+		a, err := filepath.Abs(p)
+		if err != nil {
+			return p
+		}
+		if r, err := filepath.EvalSymlinks(a); err == nil {
+			return r
+		}
+		return a
+	}
+	rel, err := filepath.Rel(real(dir), real(path))
+	return err == nil && rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator)) && !filepath.IsAbs(rel)
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 
 	"github.com/urfave/cli/v2"
 
@@ -47,7 +48,14 @@ func runReport(c *cli.Context) error {
 	files := run.report.Files
 	planes := make([][]plane.Plane, len(files))
 	pr := newProgress(c.App.ErrWriter, len(files), "plotting")
-	parallel(len(files), func(i int) { planes[i] = plane.All(files[i].Analysis) }, pr.step)
+	parallel(len(files), func(i int) {
+		// The plots of a file get their own --file-timeout: past it the
+		// plots not yet made are left out (the page counts them).
+		_, _ = withBudget(files[i].Path, run.timeout, func(ctx context.Context) error {
+			planes[i] = plane.AllContext(ctx, files[i].Analysis)
+			return ctx.Err()
+		})
+	}, pr.step)
 	pr.finish()
 	var out bytes.Buffer
 	if err := report.HTML(&out, &run.report, report.HTMLOptions{Planes: planes, Title: c.String("title")}); err != nil {

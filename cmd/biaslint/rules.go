@@ -137,6 +137,9 @@ func writeExplain(w *bytes.Buffer, rs *rules.RuleSet, r *rules.Rule) {
 		section("value against limit", r.Value+"  against  "+r.Limit+unitSuffix(r.Unit))
 	}
 	section("fix", r.Fix)
+	if len(r.Related) > 0 {
+		section("names as its cause", strings.Join(r.Related, ", "))
+	}
 	if len(r.Params) > 0 {
 		fmt.Fprintf(w, "parameters\n")
 		for _, name := range r.Params {

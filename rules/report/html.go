@@ -32,9 +32,19 @@ type HTMLOptions struct {
 // findings table, the waived findings with their reasons, one output-plane
 // plot per transistor with its margins against the ratings, the input
 // notes, and the safety cautions.
+//
+// html/template escapes every text; the page is then passed through
+// Printable, so a control character or a bidirectional override in a name
+// shows as an escape instead of reordering what the browser displays (the
+// page's own markup holds none).
 func HTML(w io.Writer, r *Report, opt HTMLOptions) error {
 	page := htmlPageOf(r, opt)
-	return htmlTemplate.Execute(w, page)
+	var b strings.Builder
+	if err := htmlTemplate.Execute(&b, page); err != nil {
+		return err
+	}
+	_, err := io.WriteString(w, Printable(b.String()))
+	return err
 }
 
 type htmlPage struct {
@@ -43,6 +53,8 @@ type htmlPage struct {
 	Grid                                 *htmlGrid
 	Totals                               Counts
 	Cautions                             []string
+	// Judged counts the files that were checked (the others have a status).
+	Judged int
 }
 
 type htmlFile struct {
@@ -65,6 +77,8 @@ type htmlFile struct {
 type htmlFinding struct {
 	Severity, Rule, Device, Pos, Message string
 	Value, Case, Fix, Reason, WaiverPos  string
+	// Related names the parts that make the finding happen.
+	Related string
 }
 
 type htmlDevice struct {
@@ -106,7 +120,10 @@ type htmlGridCell struct {
 
 func htmlFindingOf(x rules.Finding) htmlFinding {
 	h := htmlFinding{Severity: string(x.Severity), Rule: x.Rule, Device: x.Device, Pos: x.Pos.String(),
-		Message: x.Message, Fix: x.Fix}
+		Message: x.Message, Fix: x.Fix, Related: relatedText(x.Related)}
+	if x.Change != nil {
+		h.Fix = x.Change.String() + ". " + x.Fix
+	}
 	if x.HasLimit {
 		h.Value = units.Format(x.Value, x.Unit) + " against " + units.Format(x.Limit, x.Unit)
 	}
@@ -128,7 +145,7 @@ func htmlFindingOf(x rules.Finding) htmlFinding {
 }
 
 func htmlPageOf(r *Report, opt HTMLOptions) htmlPage {
-	page := htmlPage{Title: opt.Title, Version: r.Version, Totals: r.Counts(), Cautions: Cautions}
+	page := htmlPage{Title: opt.Title, Version: r.Version, Totals: r.Counts(), Cautions: Cautions, Judged: r.Judged()}
 	if page.Title == "" {
 		page.Title = "biaslint review"
 	}
@@ -362,7 +379,7 @@ dl.summary dd { margin: 0; }
 .chip.error { background: var(--err); } .chip.warning { background: var(--warn); } .chip.note { background: var(--note); }
 .count-error { color: var(--err); font-weight: 600; } .count-warning { color: var(--warn); font-weight: 600; }
 table.findings, table.waived { width: 100%; }
-td.fix { color: var(--muted); min-width: 14rem; } td.msg { min-width: 18rem; }
+td.fix { color: var(--muted); min-width: 14rem; } td.msg { min-width: 18rem; } div.related { color: var(--muted); font-size: 0.9em; margin-top: 0.2rem; }
 table.findings td.pos, table.waived td.pos { overflow-wrap: anywhere; min-width: 8rem; }
 table.grid td.n { text-align: center; min-width: 2.2rem; }
 table.grid td.path { white-space: nowrap; }
@@ -401,7 +418,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <body>
 <header class="page">
 <h1>{{.Title}}</h1>
-<p>{{len .Files}} netlist{{if ne (len .Files) 1}}s{{end}} checked against rule set <strong>{{.RuleSet}}</strong>{{if .RuleSetDesc}}: {{.RuleSetDesc}}{{end}}</p>
+<p>{{len .Files}} netlist{{if ne (len .Files) 1}}s{{end}}{{if ne .Judged (len .Files)}} ({{.Judged}} of them){{end}} checked against rule set <strong>{{.RuleSet}}</strong>{{if .RuleSetDesc}}: {{.RuleSetDesc}}{{end}}</p>
 <p>{{plural .Totals.Error "error"}}, {{plural .Totals.Warning "warning"}}, {{plural .Totals.Note "note"}}, {{.Totals.Waived}} waived</p>
 </header>
 <main>
@@ -436,7 +453,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <table class="findings">
 <thead><tr><th>severity</th><th>rule</th><th>device</th><th>location</th><th>finding</th><th>value against limit</th><th>worst case</th><th>fix</th></tr></thead>
 <tbody>
-{{range .Findings}}<tr class="finding"><td><span class="chip {{.Severity}}">{{.Severity}}</span></td><td><code>{{.Rule}}</code></td><td>{{.Device}}</td><td class="pos">{{.Pos}}</td><td class="msg">{{.Message}}</td><td>{{.Value}}</td><td>{{.Case}}</td><td class="fix">{{.Fix}}</td></tr>
+{{range .Findings}}<tr class="finding"><td><span class="chip {{.Severity}}">{{.Severity}}</span></td><td><code>{{.Rule}}</code></td><td>{{.Device}}</td><td class="pos">{{.Pos}}</td><td class="msg">{{.Message}}{{if .Related}}<div class="related">related: {{.Related}}</div>{{end}}</td><td>{{.Value}}</td><td>{{.Case}}</td><td class="fix">{{.Fix}}</td></tr>
 {{end}}</tbody>
 </table>
 {{else}}<p class="none">No findings.</p>{{end}}
@@ -445,7 +462,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <table class="waived">
 <thead><tr><th>severity</th><th>rule</th><th>device</th><th>location</th><th>finding</th><th>reason</th><th>waiver</th></tr></thead>
 <tbody>
-{{range .Waived}}<tr class="waived-finding"><td><span class="chip {{.Severity}}">{{.Severity}}</span></td><td><code>{{.Rule}}</code></td><td>{{.Device}}</td><td class="pos">{{.Pos}}</td><td class="msg">{{.Message}}</td><td>{{.Reason}}</td><td class="pos">{{.WaiverPos}}</td></tr>
+{{range .Waived}}<tr class="waived-finding"><td><span class="chip {{.Severity}}">{{.Severity}}</span></td><td><code>{{.Rule}}</code></td><td>{{.Device}}</td><td class="pos">{{.Pos}}</td><td class="msg">{{.Message}}{{if .Related}}<div class="related">related: {{.Related}}</div>{{end}}</td><td>{{.Reason}}</td><td class="pos">{{.WaiverPos}}</td></tr>
 {{end}}</tbody>
 </table>
 {{end}}

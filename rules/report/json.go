@@ -31,10 +31,43 @@ type jsonFinding struct {
 	Fix      string             `json:"fix,omitempty"`
 	Unjudged bool               `json:"unjudged,omitempty"`
 	Missing  []string           `json:"missing,omitempty"`
+	// Related are the parts that make the finding happen, and where a
+	// missing one belongs.
+	Related []jsonRelated `json:"related,omitempty"`
+	// Change is the computed value change that clears the finding.
+	Change *jsonChange `json:"change,omitempty"`
 	// Cases lists every case in which the rule is violated, worst first.
 	Cases     []string `json:"cases"`
 	Reason    string   `json:"reason,omitempty"`
 	WaiverPos string   `json:"waiver_position,omitempty"`
+}
+
+// jsonRelated is one related part of a finding.
+type jsonRelated struct {
+	Role    string `json:"role"`
+	Name    string `json:"name,omitempty"`
+	File    string `json:"file"`
+	Line    int    `json:"line"`
+	Column  int    `json:"column"`
+	Missing bool   `json:"missing,omitempty"`
+	Message string `json:"message"`
+}
+
+// jsonChange is a computed resistor value change (rules.Change).
+type jsonChange struct {
+	Element  string   `json:"element"`
+	File     string   `json:"file"`
+	Line     int      `json:"line"`
+	Column   int      `json:"column"`
+	Old      string   `json:"old"`
+	New      string   `json:"new"`
+	OldValue float64  `json:"old_value"`
+	NewValue float64  `json:"new_value"`
+	Series   string   `json:"series"`
+	Elements int      `json:"elements"`
+	Cases    int      `json:"cases"`
+	Clears   []string `json:"clears"`
+	Text     string   `json:"text"`
 }
 
 // jsonUnjudged is one case that could not be solved.
@@ -88,9 +121,14 @@ type jsonFile struct {
 // case and its hottest junction. A value that is not known (a missing
 // rating) is left out.
 type jsonBJT struct {
-	Name       string   `json:"name"`
-	Model      string   `json:"model"`
-	Polarity   string   `json:"polarity"`
+	Name     string `json:"name"`
+	Model    string `json:"model"`
+	Polarity string `json:"polarity"`
+	// Part names the ratings' source (a library type or class, or a
+	// *@part annotation); Generic is true when the device was judged
+	// against the generic class.
+	Part       string   `json:"part"`
+	Generic    bool     `json:"generic,omitempty"`
 	Role       string   `json:"role"`
 	RoleFrom   string   `json:"role_from"`
 	RoleReason string   `json:"role_reason"`
@@ -135,7 +173,8 @@ func bjtsOf(an *checks.Analysis) []jsonBJT {
 	hottest := map[string]float64{}
 	worst := map[string]float64{}
 	row := func(t *checks.Transistor, c *checks.Case) jsonBJT {
-		return jsonBJT{Name: t.Name, Model: t.Model, Polarity: t.Polarity, Role: t.Role, RoleFrom: t.RoleFrom,
+		return jsonBJT{Name: t.Name, Model: t.Model, Polarity: t.Polarity, Part: t.Rating.Part,
+			Generic: t.Rating.Generic, Role: t.Role, RoleFrom: t.RoleFrom,
 			RoleReason: t.RoleReason, Case: rules.CaseName(c.Scenario, c.Corner), Region: t.Region,
 			VCE: finite(t.VCE), IC: finite(t.IC), Power: finite(t.Power), Tj: finite(t.Tj)}
 	}
@@ -224,6 +263,15 @@ func toJSON(f rules.Finding) jsonFinding {
 		Message: f.Message, Values: map[string]float64{}, Nets: f.Nets, Fix: f.Fix,
 		Unjudged: f.Unjudged, Missing: f.Missing,
 		Cases: append([]string{rules.CaseName(f.Scenario, f.Corner)}, f.AlsoIn...),
+	}
+	for _, r := range f.Related {
+		j.Related = append(j.Related, jsonRelated{Role: r.Role, Name: r.Name, File: r.Pos.File, Line: r.Pos.Line,
+			Column: r.Pos.Col, Missing: r.Missing, Message: r.Message})
+	}
+	if c := f.Change; c != nil {
+		j.Change = &jsonChange{Element: c.Element, File: c.Pos.File, Line: c.Pos.Line, Column: c.Pos.Col, Old: c.Old, New: c.New,
+			OldValue: c.OldValue, NewValue: c.NewValue, Series: c.Series, Elements: c.Elements, Cases: c.Cases,
+			Clears: c.Clears, Text: c.String()}
 	}
 	for _, q := range f.Values {
 		j.Values[q.Name] = q.Value

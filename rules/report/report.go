@@ -33,6 +33,10 @@ const (
 	// StatusIncluded: another file of the run includes this one, so it is
 	// checked as part of that file and not again on its own.
 	StatusIncluded Status = "included"
+	// StatusOverBudget: checking the file ran past a per-file budget (the
+	// time limit); StatusDetail says which. The run goes on with the
+	// other files.
+	StatusOverBudget Status = "over-budget"
 )
 
 // Of returns s, with the zero value read as StatusChecked.

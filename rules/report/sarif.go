@@ -37,9 +37,31 @@ type sarifConfig struct {
 type sarifRegion struct {
 	StartLine   int `json:"startLine"`
 	StartColumn int `json:"startColumn,omitempty"`
+	EndLine     int `json:"endLine,omitempty"`
+	EndColumn   int `json:"endColumn,omitempty"`
+}
+
+// sarifFix is a proposed fix: one replacement of a value's text.
+type sarifFix struct {
+	Description     sarifText           `json:"description"`
+	ArtifactChanges []sarifArtifactEdit `json:"artifactChanges"`
+}
+
+type sarifArtifactEdit struct {
+	ArtifactLocation struct {
+		URI string `json:"uri"`
+	} `json:"artifactLocation"`
+	Replacements []sarifReplacement `json:"replacements"`
+}
+
+type sarifReplacement struct {
+	DeletedRegion   sarifRegion `json:"deletedRegion"`
+	InsertedContent sarifText   `json:"insertedContent"`
 }
 
 type sarifLocation struct {
+	// ID numbers a related location within its result.
+	ID               *int `json:"id,omitempty"`
 	PhysicalLocation struct {
 		ArtifactLocation struct {
 			URI string `json:"uri"`
@@ -47,6 +69,7 @@ type sarifLocation struct {
 		Region *sarifRegion `json:"region,omitempty"`
 	} `json:"physicalLocation"`
 	LogicalLocations []sarifLogical `json:"logicalLocations,omitempty"`
+	Message          *sarifText     `json:"message,omitempty"`
 }
 
 type sarifLogical struct {
@@ -61,14 +84,17 @@ type sarifSuppression struct {
 }
 
 type sarifResult struct {
-	RuleID              string             `json:"ruleId"`
-	RuleIndex           int                `json:"ruleIndex"`
-	Level               string             `json:"level"`
-	Message             sarifText          `json:"message"`
-	Locations           []sarifLocation    `json:"locations"`
-	PartialFingerprints map[string]string  `json:"partialFingerprints,omitempty"`
-	Suppressions        []sarifSuppression `json:"suppressions,omitempty"`
-	Properties          map[string]any     `json:"properties,omitempty"`
+	RuleID              string            `json:"ruleId"`
+	RuleIndex           int               `json:"ruleIndex"`
+	Level               string            `json:"level"`
+	Message             sarifText         `json:"message"`
+	Locations           []sarifLocation   `json:"locations"`
+	PartialFingerprints map[string]string `json:"partialFingerprints,omitempty"`
+	// RelatedLocations are the parts that make the finding happen.
+	RelatedLocations []sarifLocation    `json:"relatedLocations,omitempty"`
+	Suppressions     []sarifSuppression `json:"suppressions,omitempty"`
+	Fixes            []sarifFix         `json:"fixes,omitempty"`
+	Properties       map[string]any     `json:"properties,omitempty"`
 }
 
 // sarifNotification is a message about the run itself: here a warning or
@@ -221,6 +247,9 @@ func SARIF(w io.Writer, r *Report) error {
 			loc := physical(file, x.Pos)
 			loc.LogicalLocations = []sarifLogical{{Name: x.Device, Kind: "element"}}
 			res.Locations = []sarifLocation{loc}
+			for i, rel := range x.Related {
+				res.RelatedLocations = append(res.RelatedLocations, relatedLocation(i, rel, f.Path))
+			}
 			res.PartialFingerprints = map[string]string{FingerprintKey: Fingerprint(x)}
 			// netlist names the checked file the result came from (its
 			// location may be an included file or the board file), so that
@@ -233,6 +262,17 @@ func SARIF(w io.Writer, r *Report) error {
 				props["alsoIn"] = x.AlsoIn
 			}
 			res.Properties = props
+			if ch := x.Change; ch != nil {
+				var edit sarifArtifactEdit
+				edit.ArtifactLocation.URI = fileURI(ch.Pos.File)
+				// The region covers the value's text on its line; the end
+				// column is one past its last byte (SARIF 2.1.0, 3.30).
+				edit.Replacements = []sarifReplacement{{
+					DeletedRegion: sarifRegion{StartLine: ch.Pos.Line, StartColumn: ch.Pos.Col,
+						EndLine: ch.Pos.Line, EndColumn: ch.Pos.Col + len(ch.Old)},
+					InsertedContent: sarifText{ch.New}}}
+				res.Fixes = []sarifFix{{Description: sarifText{ch.String()}, ArtifactChanges: []sarifArtifactEdit{edit}}}
+			}
 			if x.Waived {
 				kind := "inSource"
 				if x.WaiverExternal {
@@ -304,4 +344,21 @@ func level(s rules.Severity) string {
 		return "warning"
 	}
 	return "note"
+}
+
+// relatedLocation is one related part of a finding as a SARIF location
+// (a part that is missing is located where it belongs and has no
+// logical location).
+func relatedLocation(id int, r rules.Related, path string) sarifLocation {
+	file := r.Pos.File
+	if file == "" {
+		file = path
+	}
+	loc := physical(file, r.Pos)
+	loc.ID = &id
+	if r.Name != "" {
+		loc.LogicalLocations = []sarifLogical{{Name: r.Name, Kind: "element"}}
+	}
+	loc.Message = &sarifText{r.Message}
+	return loc
 }

@@ -94,6 +94,9 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			if len(x.Nets) > 0 {
 				ew.printf("    nets     %s\n", nets(x))
 			}
+			if len(x.Related) > 0 {
+				ew.printf("    related  %s\n", relatedText(x.Related))
+			}
 			if x.HasLimit {
 				ew.printf("    value    %s against limit %s\n", units.Format(x.Value, x.Unit), units.Format(x.Limit, x.Unit))
 			}
@@ -104,7 +107,13 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				}
 				ew.printf("\n")
 			}
-			if x.Fix != "" {
+			switch {
+			case x.Change != nil:
+				ew.printf("    fix      %s; 'biaslint fix' applies it\n", x.Change.String())
+				if x.Fix != "" {
+					ew.printf("             %s\n", x.Fix)
+				}
+			case x.Fix != "":
 				ew.printf("    fix      %s\n", x.Fix)
 			}
 		}
@@ -119,6 +128,12 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			}
 		}
 		writeNotes(ew, f, opt)
+		if line := genericLine(f); line != "" {
+			ew.printf("\n  %s\n", line)
+		}
+		if line := libraryLine(f); line != "" {
+			ew.printf("\n  %s\n", line)
+		}
 		if opt.Transistors {
 			writeTransistors(ew, f)
 		}
@@ -239,6 +254,95 @@ func writeTransistors(ew *errWriter, f *File) {
 	ew.printf("\n%s", b.String())
 }
 
+// maxGenericNamed is how many devices the generic-ratings line names
+// before it counts the rest.
+const maxGenericNamed = 8
+
+// byPart groups the transistors of a file's nominal case that keep
+// returns true for, by the ratings' part name, as "Q1, Q2 (2N3904), Q3
+// (BC547B)" naming at most maxGenericNamed devices and counting the rest;
+// "" when there are none.
+func byPart(f *File, keep func(t *checks.Transistor) bool, label func(t *checks.Transistor) string) string {
+	if f.Analysis == nil || len(f.Analysis.Cases) == 0 {
+		return ""
+	}
+	var groups []string
+	names := map[string][]string{}
+	n := 0
+	for i := range f.Analysis.Cases[0].Transistors {
+		t := &f.Analysis.Cases[0].Transistors[i]
+		if !keep(t) {
+			continue
+		}
+		g := label(t)
+		if _, seen := names[g]; !seen {
+			groups = append(groups, g)
+		}
+		names[g] = append(names[g], t.Name)
+		n++
+	}
+	if n == 0 {
+		return ""
+	}
+	var parts []string
+	shown := 0
+	for _, g := range groups {
+		ns := names[g]
+		if left := maxGenericNamed - shown; len(ns) > left {
+			ns = ns[:max(left, 0)]
+		}
+		shown += len(ns)
+		if len(ns) > 0 {
+			parts = append(parts, strings.Join(ns, ", ")+" ("+g+")")
+		}
+	}
+	out := strings.Join(parts, ", ")
+	if n > shown {
+		out += fmt.Sprintf(" and %d more", n-shown)
+	}
+	return out
+}
+
+// genericLine names, in one line, the transistors of a file that were
+// judged against the generic class because neither the parts library nor
+// an annotation knew their model; "" when there are none.
+func genericLine(f *File) string {
+	list := byPart(f, func(t *checks.Transistor) bool { return t.Rating.Generic },
+		func(t *checks.Transistor) string { return "model " + t.Model })
+	if list == "" {
+		return ""
+	}
+	return "generic ratings: " + list + " judged against the conservative generic class; name a library type or give *@part ratings"
+}
+
+// libraryLine names, in one line, the transistors of a file judged against
+// the parts library's types and classes, whose ratings are recalled from
+// data sheets, with the caution to check the part's own; "" when none.
+func libraryLine(f *File) string {
+	list := byPart(f, func(t *checks.Transistor) bool {
+		return !t.Rating.Generic && strings.HasPrefix(t.Rating.Origin, "parts library:")
+	}, func(t *checks.Transistor) string { return t.Rating.Part })
+	if list == "" {
+		return ""
+	}
+	return "library ratings: " + list + ", from memory of data sheets; check the data sheet of the part you use"
+}
+
+// relatedText lists a finding's related parts on one line: "RB at
+// board.cir:5:1 (base resistor); no bleed resistor: one belongs ...
+// (near board.cir:5:1)".
+func relatedText(rs []rules.Related) string {
+	parts := make([]string, len(rs))
+	for i, r := range rs {
+		if r.Missing {
+			parts[i] = r.Message + " (near " + r.Pos.String() + ")"
+			continue
+		}
+		parts[i] = r.Name + " at " + r.Pos.String() + " (" + r.Role + ")"
+	}
+	return strings.Join(parts, "; ")
+}
+
 // StatusText says in words why a file was not checked.
 func StatusText(f *File) string {
 	var s string
@@ -247,6 +351,8 @@ func StatusText(f *File) string {
 		s = "checked"
 	case StatusInputErrors:
 		s = "not checked: input errors"
+	case StatusOverBudget:
+		s = "not checked: over its budget"
 	case StatusLibrary:
 		s = "library (only .subckt, .model, .param or .lib definitions, no circuit): listed, not checked on its own"
 	case StatusIncluded:
@@ -272,7 +378,10 @@ func writeUnchecked(ew *errWriter, p paint, f *File, opt TextOptions) {
 		ew.printf("  %s: %s: %s\n", e.Pos, p.severity(rules.SeverityError), e.Msg)
 	}
 	writeNotes(ew, f, opt)
-	if f.Status.Failed() {
+	switch {
+	case f.Status.Of() == StatusOverBudget:
+		ew.printf("\n  %s: not checked, over its budget\n", f.Path)
+	case f.Status.Failed():
 		ew.printf("\n  %s: not checked, %s\n", f.Path, plural(len(f.Errors), "input error"))
 	}
 }

@@ -1,0 +1,105 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+)
+
+// TestFileTimeout: a file past its time budget is reported as not checked,
+// with the reason, and the other files of the batch are checked in full.
+func TestFileTimeout(t *testing.T) {
+	demo := "rulesets/demo/bench-logger.cir"
+	// One file named: a tiny budget always runs out before the first
+	// Newton iteration; the run fails as for any file it cannot judge.
+	out, errs, code := runCLI(t, "check", "--file-timeout", "1ns", demo)
+	if code != exitBadInput || out != "" {
+		t.Errorf("exit %d, stdout %q; want 2 and nothing", code, out)
+	}
+	if want := demo + ":1:1: error: not checked: checking took longer than the limit of 1ns per file (raise it with --file-timeout)"; strings.TrimSpace(errs) != want {
+		t.Errorf("stderr %q, want %q", errs, want)
+	}
+
+	// A batch in which one file runs out of time (its context is done from
+	// the start: the same as a budget that ran out, without waiting).
+	dir := t.TempDir()
+	for name, from := range map[string]string{"slow.cir": demo, "quick.cir": good} {
+		src, err := os.ReadFile(from)
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(dir, name), src)
+	}
+	saved := budgetContext
+	defer func() { budgetContext = saved }()
+	budgetContext = func(path string, d time.Duration) (context.Context, context.CancelFunc) {
+		if filepath.Base(path) == "slow.cir" {
+			return context.WithDeadline(context.Background(), time.Now().Add(-time.Second))
+		}
+		return saved(path, d)
+	}
+	out, errs, code = runCLI(t, "check", "--format", "json", dir)
+	if code != exitBadInput {
+		t.Errorf("exit %d, want 2 (a file could not be checked): %s", code, errs)
+	}
+	var rep struct {
+		Results []struct {
+			File, Status string
+			StatusDetail string `json:"status_detail"`
+			Findings     []json.RawMessage
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatalf("JSON: %v\n%s", err, out)
+	}
+	got := map[string]string{}
+	for _, r := range rep.Results {
+		got[filepath.Base(r.File)] = r.Status
+		switch filepath.Base(r.File) {
+		case "slow.cir":
+			if !strings.Contains(r.StatusDetail, "--file-timeout") || len(r.Findings) != 0 {
+				t.Errorf("slow.cir: detail %q, %d findings", r.StatusDetail, len(r.Findings))
+			}
+		case "quick.cir":
+			if len(r.Findings) == 0 {
+				t.Errorf("quick.cir: no findings; it was not checked in full")
+			}
+		}
+	}
+	if got["slow.cir"] != "over-budget" || got["quick.cir"] != "checked" {
+		t.Errorf("statuses %v, want slow.cir over-budget and quick.cir checked", got)
+	}
+	// The text report says it in words.
+	out, _, _ = runCLI(t, "check", dir)
+	if !strings.Contains(out, "slow.cir: not checked, over its budget") || !strings.Contains(out, "quick.cir: 1 transistor") {
+		t.Errorf("text report:\n%s", out)
+	}
+}
+
+// TestFileSizeBudgets: --file-elements and --file-mib bound one netlist;
+// past them is a located error of that file. Bad values are usage errors.
+func TestFileSizeBudgets(t *testing.T) {
+	_, errs, code := runCLI(t, "check", "--file-elements", "3", good)
+	if code != exitBadInput || !strings.Contains(errs, "floating-base.bad.cir:") || !strings.Contains(errs, "more than 3 elements") {
+		t.Errorf("--file-elements 3: exit %d, %s", code, errs)
+	}
+	dir := t.TempDir()
+	writeFile(t, filepath.Join(dir, "filler.inc"), []byte(strings.Repeat("* filler comment line of a shared model file\n", 15000))) // about 700 kB
+	writeFile(t, filepath.Join(dir, "top.cir"), []byte("Includes past the byte budget\n.include filler.inc\n.include filler.inc\nV1 a 0 5\nR1 a 0 1k\n.end\n"))
+	_, errs, code = runCLI(t, "check", "--file-mib", "1", filepath.Join(dir, "top.cir"))
+	if code != exitBadInput || !strings.Contains(errs, "top.cir:3:10:") || !strings.Contains(errs, "limit of 1048576 bytes (1 MiB)") {
+		t.Errorf("--file-mib 1: exit %d, %s", code, errs)
+	}
+	for _, args := range [][]string{
+		{"--file-timeout", "-1s"}, {"--file-elements", "0"}, {"--file-mib", "0"}, {"--file-timeout", "soon"},
+	} {
+		_, errs, code := runCLI(t, append(append([]string{"check"}, args...), good)...)
+		if code != exitBadInput || !strings.Contains(errs, strings.TrimLeft(args[0], "-")) {
+			t.Errorf("%v: exit %d, %q", args, code, errs)
+		}
+	}
+}
