@@ -17,8 +17,9 @@ package checks
 //     that is not a drive) at its value times 1 -/+ its tolerance.
 //   - "resistors worst Q1 IC-high" and the like: extreme-value analysis.
 //     First-order sensitivities of each transistor's IC (and, for a
-//     switch, its forced beta IC/IB) to each resistor are taken by solving
-//     with the resistor moved by sensitivityStep of its value; each
+//     switch, its forced beta IC/IB) to each resistor are taken by the
+//     direct method on the factorisation of the group's solution (as if
+//     the resistor moved by sensitivityStep of its value); each
 //     resistor then goes to the end of its tolerance that moves the
 //     objective the wrong way, and the corner is solved (the verification
 //     solve). Objectives: IC high for every conducting transistor, IC low
@@ -389,17 +390,27 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			active = append(active, gi)
 		}
 	}
-	// Job a*(len(rs)+1)+0 is active group a's tight base solve; +1+i
-	// moves resistor i.
+	// Slot gi*(len(rs)+1)+0 holds group gi's tight base solve, +1+i the
+	// group with resistor i moved by sensitivityStep of its value, to
+	// first order (solve.System.SolveSensitivities: one solve and one
+	// sparse triangular solve pair per resistor, not a Newton solve each).
 	per := len(rs) + 1
 	ic := make([][]float64, len(groups)*per)
 	beta := make([][]float64, len(groups)*per)
 	// pw[k][i] is the dissipation of resistor rs[i] in solve k, W.
 	pw := make([][]float64, len(groups)*per)
 	errs := make([]error, len(groups)*per)
-	a.pool.each(len(active)*per, func(w *worker, k int) {
-		gi, i := active[k/per], k%per-1
-		k = gi*per + i + 1
+	names := make([]string, len(rs))
+	onNet := map[string][]int{} // the resistors of rs on each net
+	for i, r := range rs {
+		names[i] = r.Name
+		for _, nd := range r.Nodes {
+			onNet[nodeKey(nd)] = append(onNet[nodeKey(nd)], i)
+		}
+	}
+	a.pool.each(len(active), func(w *worker, k int) {
+		gi := active[k]
+		k = gi * per
 		sp := specs[groups[gi]]
 		if w.err != nil {
 			errs[k] = w.err
@@ -410,12 +421,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			return
 		}
 		w.setHFE(0)
-		set := append([]setting(nil), sp.set...)
-		if i >= 0 {
-			key := netlist.Key(rs[i].Name)
-			set = setKey(set, key, rs[i].Value*(1+sensitivityStep))
-		}
-		if err := w.apply(w.sys, &w.dirty, set); err != nil {
+		if err := w.apply(w.sys, &w.dirty, sp.set); err != nil {
 			errs[k] = err
 			return
 		}
@@ -424,24 +430,56 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 			held[netlist.Key(op.Name)] = op.Temp
 		}
 		o := tightOptions(solve.Options{Temp: solve.Temp(sp.temp), DeviceTemp: held, Guess: outs[groups[gi]].res, Context: a.opt.Context})
-		r, err := w.sys.Solve(o)
+		r, sens, dv, err := w.sys.SolveSensitivities(o, names)
 		if err != nil {
 			errs[k] = err
 			return
 		}
+		ic0, ib0 := make([]float64, n), make([]float64, n)
+		sg := make([]float64, n)
 		ic[k], beta[k], pw[k] = make([]float64, n), make([]float64, n), make([]float64, len(rs))
+		vr := make([]float64, len(rs)) // each resistor's voltage
 		for m, el := range rs {
-			v := r.Voltage[nodeKey(el.Nodes[0])] - r.Voltage[nodeKey(el.Nodes[1])]
-			pw[k][m] = v * v / valueOf(&caseSpec{set: set}, netlist.Key(el.Name), el.Value)
+			vr[m] = r.Voltage[nodeKey(el.Nodes[0])] - r.Voltage[nodeKey(el.Nodes[1])]
+			pw[k][m] = vr[m] * vr[m] / valueOf(&sp, netlist.Key(el.Name), el.Value)
 		}
 		for _, op := range r.BJTs {
 			j := a.bjtIdx[netlist.Key(op.Name)]
-			s := 1.0
+			sg[j] = 1
 			if op.Polarity == "pnp" {
-				s = -1
+				sg[j] = -1
 			}
-			ic[k][j] = s * op.IC
+			ic0[j], ib0[j] = op.IC, op.IB
+			ic[k][j] = sg[j] * op.IC
 			beta[k][j] = op.IC / op.IB
+		}
+		for i := range rs {
+			ic[k+1+i] = append([]float64(nil), ic[k]...)
+			beta[k+1+i] = append([]float64(nil), beta[k]...)
+			// The dissipations with resistor i moved: the resistors on the
+			// nets it moves, to first order, and its own value.
+			pw[k+1+i] = append([]float64(nil), pw[k]...)
+			moved := map[int]bool{i: true}
+			for key := range dv[i] {
+				for _, m := range onNet[key] {
+					moved[m] = true
+				}
+			}
+			for m := range moved {
+				el := rs[m]
+				v := vr[m] + sensitivityStep*(dv[i][nodeKey(el.Nodes[0])]-dv[i][nodeKey(el.Nodes[1])])
+				rv := valueOf(&sp, netlist.Key(el.Name), el.Value)
+				if m == i {
+					rv *= 1 + sensitivityStep
+				}
+				pw[k+1+i][m] = v * v / rv
+			}
+			for _, d := range sens[i] {
+				j := a.bjtIdx[netlist.Key(r.BJTs[d.BJT].Name)]
+				c, bb := ic0[j]+d.DIC*sensitivityStep, ib0[j]+d.DIB*sensitivityStep
+				ic[k+1+i][j] = sg[j] * c
+				beta[k+1+i][j] = c / bb
+			}
 		}
 	})
 	failed := make([]bool, len(groups))

@@ -488,8 +488,11 @@ func (a *analyzer) run() (*Analysis, error) {
 	var failOrder []string
 	unphysical := map[string][]string{} // device key -> case names
 	var why []solve.Unphysical
+	// The facts of each case depend on that case alone: computed on the
+	// workers, into their slots.
+	an.Cases = make([]Case, len(specs))
+	a.pool.each(len(specs), func(_ *worker, i int) { an.Cases[i] = a.caseFacts(&specs[i], &outs[i]) })
 	for i := range specs {
-		an.Cases = append(an.Cases, a.caseFacts(&specs[i], &outs[i]))
 		for _, u := range an.Cases[i].Unphysical {
 			k := netlist.Key(u.Device)
 			if unphysical[k] == nil {

@@ -2,6 +2,7 @@ package netlist
 
 import (
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -68,5 +69,20 @@ func TestSineAlias(t *testing.T) {
 	}
 	for _, n := range c.Notes {
 		t.Errorf("unexpected note: %v", n)
+	}
+}
+
+// The unit after an M does not help: 1MOhm is a milliohm too, and gets the
+// alert; 10mOhm says milliohm on purpose and gets none.
+func TestMilliWithUnit(t *testing.T) {
+	c, _ := ReadSource("m.cir", []byte("m\nV1 a 0 5\nR1 a b 1MOhm\nR2 b 0 10mOhm\n.end\n"), &LoadOptions{ReadFile: NoFiles})
+	var alerts []string
+	for _, n := range c.Notes {
+		if n.Alert {
+			alerts = append(alerts, n.Error())
+		}
+	}
+	if len(alerts) != 1 || !strings.Contains(alerts[0], "R1: 1MOhm is 1 milliohm") {
+		t.Errorf("alerts %q; want one, on R1", alerts)
 	}
 }

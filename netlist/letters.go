@@ -28,6 +28,17 @@ var unitsOf = map[Kind][]string{
 	'I': {"a", "amp", "amps", "ampere", "amperes"},
 }
 
+// fitsUnit reports whether unit (as written) is a unit of kind k's value.
+func fitsUnit(k Kind, unit string) bool {
+	u := strings.ToLower(unit)
+	for _, w := range unitsOf[k] {
+		if u == w {
+			return true
+		}
+	}
+	return false
+}
+
 // unitNames name the unit each kind's value is in, for messages, and
 // unitSymbols give its symbol for units.Format.
 var (
@@ -59,7 +70,7 @@ func (f *flattener) valueLetters(k Kind, elem string, v Value, e *env) {
 // letters checks the letters of value v of element elem of kind k and
 // alerts once per position.
 func (f *flattener) letters(k Kind, elem string, v Value) {
-	fits, ok := unitsOf[k]
+	_, ok := unitsOf[k]
 	t := strings.TrimSpace(v.Text)
 	if !ok || v.Braced || t == "" || !looksNumeric(t) || f.alerted[v.Pos] {
 		return
@@ -78,13 +89,15 @@ func (f *flattener) letters(k Kind, elem string, v Value) {
 	unit := unitNames[k]
 	num := t[:len(t)-len(r.Suffix)-len(r.Unit)]
 	suf := strings.ToLower(r.Suffix)
+	ohms := r.Unit == "" || fitsUnit('R', r.Unit) // 1M, 1Mohm, 1MR
 	switch {
-	case r.Suffix == "M" && k == 'R' && r.Unit == "":
+	case r.Suffix == "M" && k == 'R' && ohms:
 		say("%s: %s is %s milliohm (SPICE reads M as milli); write %sMEG for %s megohm", elem, t, num, num, num)
 		return
-	case suf == "m" && k == 'R' && r.Unit == "":
+	case r.Suffix == "m" && k == 'R' && r.Unit == "":
 		// A lower-case m is also how a current-sense shunt is written on
-		// purpose: said without assuming the slip.
+		// purpose: said without assuming the slip (and not at all when
+		// the unit follows, 10mOhm).
 		say("%s: %s is %s milliohm (SPICE reads m as milli); if a megohm is meant, write %sMEG", elem, t, num, num)
 		return
 	case suf == "f" && r.Unit == "" && k != 'C':
@@ -97,19 +110,14 @@ func (f *flattener) letters(k Kind, elem string, v Value) {
 	if r.Unit == "" {
 		return
 	}
-	u := strings.ToLower(r.Unit)
-	for _, w := range fits {
-		if u == w {
-			return
-		}
+	if fitsUnit(k, r.Unit) {
+		return
 	}
-	for other, ws := range unitsOf {
-		for _, w := range ws {
-			if u == w && other != k && len(u) > 0 {
-				say("%s: unit %q (%s) does not fit a %s and is ignored: the value is read as %s",
-					elem, r.Unit, unitNames[other], kindName(k), units.Format(r.Value, unitSymbols[k]))
-				return
-			}
+	for _, other := range []Kind{'R', 'C', 'L', 'V', 'I'} {
+		if other != k && fitsUnit(other, r.Unit) {
+			say("%s: unit %q (%s) does not fit a %s and is ignored: the value is read as %s",
+				elem, r.Unit, unitNames[other], kindName(k), units.Format(r.Value, unitSymbols[k]))
+			return
 		}
 	}
 	say("%s: the letters %q after %s are not a unit biaslint knows and are ignored: the value is read as %s",

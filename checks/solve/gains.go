@@ -19,10 +19,11 @@ import (
 // transistor's terminal currents at fixed junction voltages when it is
 // evaluated at T + step, and ΔIC, ΔIB that change plus the Jacobian's
 // response to Δx: the derivative dP/dT by the direct method of
-// sensitivity analysis (as in SPICE's .sens). All transistors share one
-// factorisation of J, so
-// the cost is one assembly and factorisation plus one pair of triangular
-// solves per transistor, instead of a Newton solve each.
+// sensitivity analysis (differentiating the converged circuit equations).
+// All transistors share one factorisation of J, so the cost is one
+// assembly and factorisation plus one sparse pair of triangular solves per
+// transistor (SparseLU.SolveSparse: only what the change reaches), instead
+// of a Newton solve each.
 //
 // The solution's own work space is used, internal nodes included.
 func (s *System) SolveGains(opt Options, step float64) (*Result, []float64, error) {
@@ -34,6 +35,7 @@ func (s *System) SolveGains(opt Options, step float64) (*Result, []float64, erro
 		return nil, nil, err
 	}
 	g, err := s.powerGains(w, x, step)
+	s.release(w)
 	return r, g, err
 }
 
@@ -62,7 +64,7 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 		// The device currents enter the KCL rows as +IC (c), +IB (b) and
 		// −(IC + IB) (e); the step moves them by Δf, so J·Δx = −Δf.
 		c, bb, e := el.inner[0], el.inner[1], el.inner[2]
-		rows := rows[:0]
+		rows = rows[:0]
 		add := func(i int, v float64) {
 			if i >= 0 {
 				b[i] += v
@@ -123,6 +125,7 @@ func (s *System) SolveResponse(opt Options, inject map[string]float64) (*Result,
 	for i, nm := range s.nodeNames {
 		out[netlist.Key(nm)] = dx[i]
 	}
+	s.release(w)
 	return r, out, nil
 }
 
@@ -147,4 +150,95 @@ func solveFew(lin LinearSolver, x, b []float64, rows []int, set *[]int) error {
 		*set = append(*set, i)
 	}
 	return nil
+}
+
+// Sensitivity is the first-order change of one transistor's collector and
+// base currents (as BJTOp.IC and IB, A) per unit relative change of a
+// resistor, d/d ln R.
+type Sensitivity struct {
+	// BJT is the transistor's index in circuit order (Result.BJTs).
+	BJT      int
+	DIC, DIB float64
+}
+
+// SolveSensitivities solves the System at opt (as Solve) and returns, with
+// the result, for each named resistor the first-order changes of the
+// transistor currents that a relative change of its resistance causes,
+// by the direct method on the factorisation of the converged Jacobian:
+// J·Δx = −∂F/∂ln R, whose right-hand side is the resistor's current at
+// its two nodes, one sparse triangular solve pair each. Transistors a
+// resistor does not reach are left out (their change is zero to first
+// order). dv[i] holds, by node key, the node voltages resistor i moves
+// (V per unit d ln R; the others are unchanged to first order). A name
+// that is not a resistor of non-zero value is an error.
+func (s *System) SolveSensitivities(opt Options, names []string) (r *Result, sens [][]Sensitivity, dv []map[string]float64, err error) {
+	r, w, x, err := s.solve(opt)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	w.evaluate(x, true, false)
+	if err := w.assemble(x); err != nil {
+		return nil, nil, nil, err
+	}
+	// The transistors at each unknown (their internal terminals).
+	at := make(map[int][]int, 3*len(s.bjts))
+	for j, el := range s.bjts {
+		for t, u := range el.inner {
+			if u >= 0 && (t == 0 || u != el.inner[t-1]) {
+				at[u] = append(at[u], j)
+			}
+		}
+	}
+	out := make([][]Sensitivity, len(names))
+	dv = make([]map[string]float64, len(names))
+	dx := make([]float64, s.n)
+	b := make([]float64, s.n)
+	seen := make([]int, len(s.bjts))
+	var rows, set []int
+	for i, name := range names {
+		el := s.byKey[netlist.Key(name)]
+		if el == nil || el.kind != 'R' || el.short {
+			return nil, nil, nil, fmt.Errorf("sensitivities: %s is not a resistor of non-zero value", name)
+		}
+		p, n := el.nodes[0], el.nodes[1]
+		cur := (volt(x, p) - volt(x, n)) / el.value
+		rows = rows[:0]
+		if p >= 0 {
+			b[p] += cur
+			rows = append(rows, p)
+		}
+		if n >= 0 {
+			b[n] -= cur
+			rows = append(rows, n)
+		}
+		if err := solveFew(w.lin, dx, b, rows, &set); err != nil {
+			return nil, nil, nil, err
+		}
+		dv[i] = map[string]float64{}
+		for _, u := range set {
+			if u < s.nExt && dx[u] != 0 {
+				dv[i][netlist.Key(s.nodeNames[u])] = dx[u]
+			}
+		}
+		for _, u := range set {
+			for _, j := range at[u] {
+				if seen[j] == i+1 {
+					continue
+				}
+				seen[j] = i + 1
+				in := s.bjts[j].inner
+				dvb := volt(dx, in[1])
+				dvbe, dvbc := dvb-volt(dx, in[2]), dvb-volt(dx, in[0])
+				ev := &w.evB[j]
+				out[i] = append(out[i], Sensitivity{BJT: j,
+					DIC: ev.DICdVBE*dvbe + ev.DICdVBC*dvbc,
+					DIB: ev.DIBdVBE*dvbe + ev.DIBdVBC*dvbc})
+			}
+		}
+		for _, u := range set {
+			dx[u] = 0
+		}
+	}
+	s.release(w)
+	return r, out, dv, nil
 }

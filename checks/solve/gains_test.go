@@ -81,3 +81,75 @@ func TestSolveResponseIsTheveninResistance(t *testing.T) {
 		t.Errorf("V(b) = %g, want the divider's 2.105 V", v)
 	}
 }
+
+// SolveSensitivities gives dIC/d ln R and dIB/d ln R of every transistor
+// as re-solving with the resistor moved by 1e-6 of its value does (the
+// definition, forward difference at tight tolerances): to 0.5 %, or within
+// the difference's own rounding (1e-5 of the transistor's current), on
+// the demo board and the field amplifier (hierarchy, controlled sources).
+func TestSolveSensitivitiesMatchResolving(t *testing.T) {
+	for _, f := range []string{"../../rulesets/demo/bench-logger.cir", "../../testdata/op/field-amp.cir"} {
+		c, err := netlist.Read(f, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s, err := Prepare(c)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var names []string
+		for _, el := range s.elems {
+			if el.kind == 'R' && !el.short {
+				names = append(names, el.e.Name)
+			}
+		}
+		o := Options{RelTol: 1e-11, VNTol: 1e-14}
+		r0, sens, dv, err := s.SolveSensitivities(o, names)
+		if err != nil {
+			t.Fatal(err)
+		}
+		checked := 0
+		for i, name := range names {
+			el := s.byKey[netlist.Key(name)]
+			v := el.value
+			if err := s.SetValue(name, v*(1+1e-6)); err != nil {
+				t.Fatal(err)
+			}
+			o2 := o
+			o2.Guess = r0
+			r1, err := s.Solve(o2)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := s.SetValue(name, v); err != nil {
+				t.Fatal(err)
+			}
+			for k, v := range r0.Voltage {
+				fd := (r1.Voltage[k] - v) / 1e-6
+				if d := math.Abs(dv[i][k] - fd); d > 5e-3*math.Abs(fd) && d > 1e-5*math.Abs(v)+1e-9 {
+					t.Errorf("%s, %s: dV(%s)/dlnR %.6g V, re-solving %.6g", f, name, k, dv[i][k], fd)
+				}
+			}
+			got := map[int]Sensitivity{}
+			for _, d := range sens[i] {
+				got[d.BJT] = d
+			}
+			for j := range s.bjts {
+				fdC := (r1.BJTs[j].IC - r0.BJTs[j].IC) / 1e-6
+				fdB := (r1.BJTs[j].IB - r0.BJTs[j].IB) / 1e-6
+				g := got[j]
+				floor := 1e-5*math.Abs(r0.BJTs[j].IC) + 1e-12
+				if d := math.Abs(g.DIC - fdC); d > 5e-3*math.Abs(fdC) && d > floor {
+					t.Errorf("%s, %s on %s: dIC/dlnR %.6g A, re-solving %.6g", f, name, s.bjts[j].e.Name, g.DIC, fdC)
+				}
+				if d := math.Abs(g.DIB - fdB); d > 5e-3*math.Abs(fdB) && d > floor {
+					t.Errorf("%s, %s on %s: dIB/dlnR %.6g A, re-solving %.6g", f, name, s.bjts[j].e.Name, g.DIB, fdB)
+				}
+				checked++
+			}
+		}
+		if checked < 9 {
+			t.Errorf("%s: only %d pairs compared", f, checked)
+		}
+	}
+}

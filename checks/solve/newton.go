@@ -241,6 +241,14 @@ func (s *System) newWork(opt Options) (*work, error) {
 	if err := w.variants(opt); err != nil {
 		return nil, err
 	}
+	if b := s.spare; b != nil {
+		// The buffers of the last solve: every one is written before it
+		// is read (evaluate, assemble, residualOK, the linear solve).
+		s.spare = nil
+		w.jb, w.evB, w.jd, w.evD = b.jb, b.evB, b.jd, b.evD
+		w.rhs, w.xnew, w.res, w.mag = b.rhs, b.xnew, b.res, b.mag
+		return w, nil
+	}
 	nb, nd := len(s.bjts), len(s.diodes)
 	w.jb, w.evB = make([][2]float64, nb), make([]device.BJTEval, nb)
 	w.jd, w.evD = make([]float64, nd), make([][2]float64, nd)
@@ -249,11 +257,20 @@ func (s *System) newWork(opt Options) (*work, error) {
 	return w, nil
 }
 
+// release keeps a finished solve's buffers for the next one (a System is
+// not used concurrently, so one spare set is enough).
+func (s *System) release(w *work) {
+	if w != nil {
+		s.spare = w
+	}
+}
+
 // Solve finds the DC operating point: plain Newton first, then GMIN
 // stepping, then source stepping. It returns a *ConvergenceError if all
 // fail, and never returns a result with a non-finite value.
 func (s *System) Solve(opt Options) (*Result, error) {
-	r, _, _, err := s.solve(opt)
+	r, w, _, err := s.solve(opt)
+	s.release(w)
 	return r, err
 }
 

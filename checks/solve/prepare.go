@@ -61,6 +61,8 @@ type System struct {
 	// lin is the System's own linear solver, used when Options.Linear is
 	// nil: its pattern and ordering are the System's, whatever else ran.
 	lin *SparseLU
+	// spare is the work space of the last solve, reused by the next.
+	spare *work
 }
 
 // Notes returns the notes Prepare made about the circuit (nodes tied to

@@ -84,3 +84,31 @@ func TestShardAndMergeErrors(t *testing.T) {
 		t.Errorf("merge of nothing: exit %d, %q", code, errs)
 	}
 }
+
+// report --shard writes the review page of its part only: the two halves
+// of a folder name every file once between them.
+func TestReportShard(t *testing.T) {
+	files, _ := filepath.Glob("testdata/check/*.cir")
+	dir := t.TempDir()
+	seen := map[string]int{}
+	for i := 1; i <= 2; i++ {
+		out := filepath.Join(dir, fmt.Sprintf("part%d.html", i))
+		if _, errs, code := runCLI(t, "report", "--shard", fmt.Sprintf("%d/2", i), "--corners=false", "--output", out, "testdata/check"); code == exitBadInput {
+			t.Fatalf("report --shard %d/2: %s", i, errs)
+		}
+		page, err := os.ReadFile(out)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range files {
+			if strings.Contains(string(page), filepath.Base(f)) {
+				seen[f]++
+			}
+		}
+	}
+	for _, f := range files {
+		if seen[f] != 1 {
+			t.Errorf("%s is on %d of the two pages, want 1", f, seen[f])
+		}
+	}
+}

@@ -55,6 +55,9 @@ func runPlot(c *cli.Context) error {
 	if len(run.report.Files) != 1 {
 		return badInput(fmt.Errorf("biaslint plot: expected one netlist"))
 	}
+	if f := &run.report.Files[0]; f.Analysis == nil {
+		return badInput(fmt.Errorf("%s: error: nothing to plot: %s", f.Path, report.StatusText(f)))
+	}
 	pl, err := plane.Of(run.report.Files[0].Analysis, device)
 	if err != nil {
 		return badInput(fmt.Errorf("biaslint plot: %v", err))

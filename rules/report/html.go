@@ -53,6 +53,8 @@ type htmlPage struct {
 	Grid                                 *htmlGrid
 	Totals                               Counts
 	Cautions                             []string
+	// Judged counts the files that were checked (the others have a status).
+	Judged int
 }
 
 type htmlFile struct {
@@ -138,7 +140,7 @@ func htmlFindingOf(x rules.Finding) htmlFinding {
 }
 
 func htmlPageOf(r *Report, opt HTMLOptions) htmlPage {
-	page := htmlPage{Title: opt.Title, Version: r.Version, Totals: r.Counts(), Cautions: Cautions}
+	page := htmlPage{Title: opt.Title, Version: r.Version, Totals: r.Counts(), Cautions: Cautions, Judged: r.Judged()}
 	if page.Title == "" {
 		page.Title = "biaslint review"
 	}
@@ -411,7 +413,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <body>
 <header class="page">
 <h1>{{.Title}}</h1>
-<p>{{len .Files}} netlist{{if ne (len .Files) 1}}s{{end}} checked against rule set <strong>{{.RuleSet}}</strong>{{if .RuleSetDesc}}: {{.RuleSetDesc}}{{end}}</p>
+<p>{{len .Files}} netlist{{if ne (len .Files) 1}}s{{end}}{{if ne .Judged (len .Files)}} ({{.Judged}} of them){{end}} checked against rule set <strong>{{.RuleSet}}</strong>{{if .RuleSetDesc}}: {{.RuleSetDesc}}{{end}}</p>
 <p>{{plural .Totals.Error "error"}}, {{plural .Totals.Warning "warning"}}, {{plural .Totals.Note "note"}}, {{.Totals.Waived}} waived</p>
 </header>
 <main>
