@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/biaslint/biaslint/rules"
 )
 
 // corpusLabels are the expectations a topology-corpus netlist states in
@@ -84,12 +86,27 @@ func TestTopologyCorpus(t *testing.T) {
 	if len(paths) < 18 {
 		t.Fatalf("found %d corpus netlists, want at least 18", len(paths))
 	}
+	set, err := rules.LoadDefault(rules.LoadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
 	var devices, rolesRight, mustMissed, falseAlarms int
 	for _, path := range paths {
 		t.Run(filepath.Base(path), func(t *testing.T) {
 			l := readLabels(t, path)
 			if len(l.role) == 0 {
 				t.Fatalf("no role labels")
+			}
+			// A label naming a rule the default set does not have could
+			// never fire: a must-not on it would pass whatever happens.
+			for _, m := range []map[string][]string{l.must, l.mustNot} {
+				for dev, ids := range m {
+					for _, id := range ids {
+						if set.Rule(id) == nil {
+							t.Errorf("%s: label names rule %q, which the default rule set does not have", dev, id)
+						}
+					}
+				}
 			}
 			out, errs, code := runCLI(t, "check", "--format", "json", path)
 			if code == exitBadInput {
