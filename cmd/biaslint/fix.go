@@ -308,11 +308,7 @@ func writeFixSummary(w *bytes.Buffer, ff fixedFile, preview bool) {
 	if n == 1 {
 		word = "value"
 	}
-	fmt.Fprintf(w, "%s: %d %s %s; checked again: %s\n", ff.path, n, word, verb, countText(ff.after))
-}
-
-func countText(c report.Counts) string {
-	return fmt.Sprintf("%d errors, %d warnings, %d notes, %d waived", c.Error, c.Warning, c.Note, c.Waived)
+	fmt.Fprintf(w, "%s: %d %s %s; checked again: %s\n", ff.path, n, word, verb, report.CountText(ff.after))
 }
 
 // unifiedDiff shows the changed lines of one file as a unified diff, one

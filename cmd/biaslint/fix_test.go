@@ -10,6 +10,7 @@ import (
 
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/rules/fix"
+	"github.com/biaslint/biaslint/rulesets/demo"
 )
 
 // findingsJSON runs check --format json on one file and returns its findings.
@@ -31,6 +32,35 @@ func findingsJSON(t *testing.T, args ...string) []jsonFindingOut {
 		t.Fatalf("check %v: %d results", args, len(rep.Results))
 	}
 	return rep.Results[0].Findings
+}
+
+// conducting runs check --format json --fixes=false on one file and
+// returns, for each transistor, whether its collector current in the case
+// the report shows for it (a switch at its on level, other roles at
+// nominal) is above 100 uA, the current the default rules take as
+// conducting.
+func conducting(t *testing.T, path string) map[string]bool {
+	t.Helper()
+	out, errs, code := runCLI(t, "check", "--format", "json", "--fixes=false", path)
+	if code == exitBadInput {
+		t.Fatalf("check %s: exit %d: %s", path, code, errs)
+	}
+	var rep struct {
+		Results []struct {
+			BJTs []struct {
+				Name string   `json:"name"`
+				IC   *float64 `json:"ic"`
+			} `json:"bjts"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil || len(rep.Results) != 1 {
+		t.Fatalf("check %s: %v", path, err)
+	}
+	on := map[string]bool{}
+	for _, q := range rep.Results[0].BJTs {
+		on[q.Name] = q.IC != nil && *q.IC > 100e-6
+	}
+	return on
 }
 
 type jsonFindingOut struct {
@@ -62,9 +92,19 @@ func TestComputedFixesVerified(t *testing.T) {
 	roles, _ := filepath.Glob("testdata/roles/*.cir")
 	files = append(files, roles...)
 	dir := t.TempDir()
+	// The demo's first revision: a shared coil-driver subcircuit whose
+	// bleed resistor, lowered to clamp one instance's reverse drive,
+	// would keep the other instance from turning on.
+	rev := demo.First()
+	demoPath := filepath.Join(dir, rev.Name)
+	if err := os.WriteFile(demoPath, rev.Netlist, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	files = append(files, demoPath)
 	found, verified := 0, 0
 	for _, path := range files {
 		before := findingsJSON(t, path)
+		on := conducting(t, path)
 		was := map[string]bool{}
 		for _, f := range before {
 			was[f.Rule+" "+f.Device] = true
@@ -100,6 +140,16 @@ func TestComputedFixesVerified(t *testing.T) {
 				}
 				if !was[g.Rule+" "+g.Device] {
 					t.Errorf("%s: %s raises %s on %s", path, ch.Text, g.Rule, g.Device)
+					ok = false
+				}
+			}
+			// A fix keeps the circuit working: every transistor that
+			// conducts in the case shown for it (a switch at its on level)
+			// still conducts.
+			still := conducting(t, fixed)
+			for q, was := range on {
+				if was && !still[q] {
+					t.Errorf("%s: %s turns %s off", path, ch.Text, q)
 					ok = false
 				}
 			}

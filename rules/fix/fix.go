@@ -295,7 +295,7 @@ func (s *searcher) direction(el *netlist.Element, target key, series []float64, 
 		if !ok {
 			continue
 		}
-		if s.raises(p) {
+		if s.raises(p) || !s.keepsWorking(el, vals[i]) {
 			continue
 		}
 		text, ok := ValueText(vals[i], el.ValueText)
@@ -314,22 +314,55 @@ func (s *searcher) direction(el *netlist.Element, target key, series []float64, 
 // the search (a rule judged only across corners, such as the hFE spread,
 // is not seen there and is searched with full judgements).
 func (s *searcher) quickSees(target key) bool {
+	p := s.unchangedQuick()
+	return p != nil && p.err == nil && p.present[target]
+}
+
+// unchangedQuick returns the quick judgement of the unchanged circuit
+// (nil when the solve budget is spent before it is made).
+func (s *searcher) unchangedQuick() *probe {
 	k := probeKey{quick: true}
 	p, ok := s.cache[k]
 	if !ok {
 		if s.spent() {
-			return false
+			return nil
 		}
 		s.solves++
 		v, err := s.judge(s.c, true)
 		s.work += v.Cases
-		p = &probe{present: map[key]bool{}, err: err}
+		p = &probe{present: map[key]bool{}, applied: v.Applied, err: err}
 		for _, f := range v.Findings {
 			p.present[keyOf(f)] = true
 		}
 		s.cache[k] = p
 	}
-	return p.err == nil && p.present[target]
+	return p
+}
+
+// keepsWorking reports whether the circuit with the value at el's value
+// position set to ohm still does what it did in the scenarios at nominal
+// values (the quick judgement): every rule that applied to a device
+// there still applies. A rule's applies condition states what the
+// device is doing (a switch that conducts, a linear stage that carries
+// current), so a change that turns another transistor off, or changes
+// its role, is not a fix even when every finding it leaves is gone: a
+// bleed resistor lowered until the reverse drive is clamped can also
+// keep the relay driver beside it from ever turning on.
+func (s *searcher) keepsWorking(el *netlist.Element, ohm float64) bool {
+	base := s.unchangedQuick()
+	if base == nil || base.err != nil {
+		return false // cannot tell: no change is proposed
+	}
+	q := s.solve(el, ohm, true)
+	if q == nil || q.err != nil {
+		return false
+	}
+	for k, on := range base.applied {
+		if on && !q.applied[k] {
+			return false
+		}
+	}
+	return true
 }
 
 // raises reports whether a solve found something the circuit did not

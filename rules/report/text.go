@@ -138,10 +138,10 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			writeTransistors(ew, f)
 		}
 		c := f.Counts()
-		ew.printf("\n  %s: %s, %s judged, %s\n", f.Path, plural(f.Transistors(), "transistor"), plural(f.Cases(), "case"), countText(c))
+		ew.printf("\n  %s: %s, %s judged, %s\n", f.Path, plural(f.Transistors(), "transistor"), plural(f.Cases(), "case"), CountText(c))
 	}
 	if len(r.Files) > 1 {
-		ew.printf("\n%s: %s\n", filesText(r), countText(r.Counts()))
+		ew.printf("\n%s: %s\n", filesText(r), CountText(r.Counts()))
 	}
 	ew.printf("\n")
 	if hazard {
@@ -171,7 +171,8 @@ func plural(n int, word string) string {
 	return fmt.Sprintf("%d %ss", n, word)
 }
 
-func countText(c Counts) string {
+// CountText says c as the text report does: "1 error, 2 warnings, 0 notes, 0 waived".
+func CountText(c Counts) string {
 	return fmt.Sprintf("%s, %s, %s, %d waived", plural(c.Error, "error"), plural(c.Warning, "warning"), plural(c.Note, "note"), c.Waived)
 }
 
