@@ -177,8 +177,8 @@ type Transistor struct {
 	// case of a scenario whose hFE corners were solved; the other fields
 	// are 0 where it is false.
 	BetaJudged   bool    `expr:"beta_judged"`
-	ICHFEMin     float64 `expr:"ic_hfe_min"`
-	ICHFEMax     float64 `expr:"ic_hfe_max"`
+	ICHFEMin     float64 `expr:"ic_at_hfemin"`
+	ICHFEMax     float64 `expr:"ic_at_hfemax"`
 	ICBetaSpread float64 `expr:"ic_beta_spread"`
 
 	// Electro-thermal facts. Thermal is true when the device temperature
@@ -230,8 +230,8 @@ type Transistor struct {
 type Resistor struct {
 	Name string `expr:"name"`
 	// NodeA and NodeB are the flat net names.
-	NodeA string `expr:"node_a"`
-	NodeB string `expr:"node_b"`
+	NodeA string `expr:"net_a"`
+	NodeB string `expr:"net_b"`
 	// R is the resistance, Ohm; V the voltage across it, V; I the current
 	// through it, A; Power = V*I, W.
 	R     float64 `expr:"r"`
@@ -240,8 +240,8 @@ type Resistor struct {
 	Power float64 `expr:"power"`
 	// Rating is the power rating in W (annotation, board file or the
 	// default), and RatingFrom where it came from.
-	Rating     float64 `expr:"rating"`
-	RatingFrom string  `expr:"rating_from"`
+	Rating     float64 `expr:"power_rating"`
+	RatingFrom string  `expr:"power_rating_from"`
 
 	Pos   netlist.Pos        `expr:"-"`
 	Chain []netlist.Instance `expr:"-"`

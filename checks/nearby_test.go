@@ -12,9 +12,14 @@ import (
 // board against the board's schematic as drawn (rulesets/demo): a
 // divider-biased, degenerated stage, a follower whose collector is on the
 // supply, two coil drivers whose coil is reached through the inductor, and
-// a PNP high-side switch with its NPN level shifter.
+// a PNP high-side switch with its NPN level shifter, and an LED current
+// sink. The corrected revision B is read.
 func TestNearby(t *testing.T) {
-	c, err := netlist.ReadSource(demo.Name, demo.Netlist, &netlist.LoadOptions{ReadFile: netlist.NoFiles})
+	rev, err := demo.Lookup("B")
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := netlist.ReadSource(rev.Name, rev.Netlist, &netlist.LoadOptions{ReadFile: netlist.NoFiles})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -29,6 +34,7 @@ func TestNearby(t *testing.T) {
 		"X2.Q1": "base resistor X2.RB, bleed resistor X2.RBE, collector resistor X2.RCOIL, drive VBUZ",
 		"Q5":    "base resistor R5, bleed resistor R6, collector resistor R4, drive VEN",
 		"Q4":    "base resistor R4, bleed resistor R7, collector resistor RLOAD",
+		"Q6":    "divider resistor R8, divider resistor R9, collector resistor RDROP, emitter resistor RE6",
 	}
 	for _, q := range a.Cases[0].Transistors {
 		var got []string

@@ -41,8 +41,8 @@ Q1 c b e ONLYPD
 	if !(tr.Power > 0.5 && tr.Power < 0.625) {
 		t.Fatalf("power %g W, want between 500 and 625 mW for this test", tr.Power)
 	}
-	if fs := findings(t, a, "overdissipation"); len(fs) != 0 {
-		t.Errorf("overdissipation at %g W against the user's 625 mW: %s", tr.Power, fs[0].Message)
+	if fs := findings(t, a, "power-over-rating"); len(fs) != 0 {
+		t.Errorf("power-over-rating at %g W against the user's 625 mW: %s", tr.Power, fs[0].Message)
 	}
 	var note string
 	for _, n := range a.Notes {
@@ -82,7 +82,7 @@ func TestResistorCornerTowardsItsOwnPower(t *testing.T) {
 VCC vcc 0 12
 *@device VCC tol=0
 RBLEED vcc 0 600
-*@device RBLEED power=250m
+*@device RBLEED power_rating=250m
 RB vcc b 470k
 RC vcc c 4.7k
 RE e 0 1k
@@ -93,9 +93,9 @@ Q1 c b e SMALL
 .end
 `
 	a := analyzeWith(t, src, checks.Options{Corners: true})
-	fs := findings(t, a, "resistor-overpower")
+	fs := findings(t, a, "resistor-power-over-rating")
 	if len(fs) != 1 || fs[0].Device != "RBLEED" {
-		t.Fatalf("resistor-overpower findings %v; want RBLEED at its own -5 %% corner", fs)
+		t.Fatalf("resistor-power-over-rating findings %v; want RBLEED at its own -5 %% corner", fs)
 	}
 	f := fs[0]
 	if f.Corner != "resistors worst RBLEED power" || math.Abs(f.Value-144.0/570) > 1e-6 {

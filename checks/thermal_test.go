@@ -153,17 +153,17 @@ Q1 c b e HOT
 		if fs := findings(t, a, "thermal-runaway"); len(fs) != 0 {
 			t.Errorf("IE %s: false runaway: %s", tc.ie, fs[0].Message)
 		}
-		od := findings(t, a, "overdissipation")
+		od := findings(t, a, "power-over-rating")
 		if len(od) != 1 || !strings.Contains(od[0].Message, "junction at about") {
-			t.Errorf("IE %s: overdissipation findings %v", tc.ie, od)
+			t.Errorf("IE %s: power-over-rating findings %v", tc.ie, od)
 		}
-		if fs := findings(t, a, "junction-overtemperature"); len(fs) != 0 {
+		if fs := findings(t, a, "tj-over-rating"); len(fs) != 0 {
 			t.Errorf("IE %s: overtemperature reported a second time: %s", tc.ie, fs[0].Message)
 		}
 		relaxed := map[string]string{"pd_share": "1000%"}
-		ot := findingsSet(t, a, "junction-overtemperature", relaxed)
+		ot := findingsSet(t, a, "tj-over-rating", relaxed)
 		if len(ot) != 1 || !strings.Contains(ot[0].Message, "settles at about") {
-			t.Errorf("IE %s, overdissipation relaxed: overtemperature findings %v", tc.ie, ot)
+			t.Errorf("IE %s, power-over-rating relaxed: overtemperature findings %v", tc.ie, ot)
 		}
 	}
 }

@@ -116,9 +116,9 @@ Q1 c b 0 LINE_NPN
 .end
 `
 	a := analyzeWith(t, strings.Replace(src, "%s", "", 1), full)
-	fs := findings(t, a, "vbe-reverse-overstress")
+	fs := findings(t, a, "vbe-reverse-over-rating")
 	if len(fs) != 1 || fs[0].Scenario != "VLINE low" {
-		t.Fatalf("vbe-reverse-overstress findings %+v, want one at VLINE low", fs)
+		t.Fatalf("vbe-reverse-over-rating findings %+v, want one at VLINE low", fs)
 	}
 	if got, want := fs[0].Value, 10*47e3/57e3; math.Abs(got-want) > 0.05*want {
 		t.Errorf("reverse VBE %g V, want about %g V (divider)", got, want)
@@ -127,7 +127,7 @@ Q1 c b 0 LINE_NPN
 		t.Errorf("nominal (high level) VBE %g V, want forward", nom.VBE)
 	}
 	a = analyzeWith(t, strings.Replace(src, "%s", "DCL 0 b CLAMP", 1), full)
-	if fs := findings(t, a, "vbe-reverse-overstress"); len(fs) != 0 {
+	if fs := findings(t, a, "vbe-reverse-over-rating"); len(fs) != 0 {
 		t.Errorf("clamped line: %d findings, want none", len(fs))
 	}
 }

@@ -555,7 +555,7 @@ func (f *flattener) instance(s *ElementStmt, def *Subckt, e *env, depth int, sta
 		return
 	}
 	if len(s.Nodes) != len(sub.Ports) {
-		f.ev.errorf(s.Pos, "%s: subcircuit %s has %d port%s, the instance gives %d node%s",
+		f.ev.errorf(s.Pos, "%s: subcircuit %s has %d port%s, the instance gives %d net%s",
 			s.Name.Text, sub.Name.Text, len(sub.Ports), plural(len(sub.Ports)), len(s.Nodes), plural(len(s.Nodes)))
 		return
 	}

@@ -309,7 +309,7 @@ func (p *parser) dot(toks []token) {
 	case ".global":
 		for _, it := range its {
 			if it.kind != iValue || it.tok.kind != tWord {
-				p.errs.Addf(it.tok.pos, ".global: expected node names, found %s", it.tok)
+				p.errs.Addf(it.tok.pos, ".global: expected net names, found %s", it.tok)
 				continue
 			}
 			p.d.Globals = append(p.d.Globals, Word{it.tok.text, it.tok.pos})
@@ -479,7 +479,7 @@ func (p *parser) element(toks []token) {
 	ok := true
 	switch letter {
 	case 'V', 'I':
-		ok = p.nodes(e, its, 2, "two nodes")
+		ok = p.nodes(e, its, 2, "two nets")
 		if ok {
 			e.Source = p.source(e, its[2:])
 		}
@@ -594,7 +594,7 @@ func (p *parser) nodes(e *ElementStmt, its []item, n int, what string) bool {
 		}
 		it := its[i]
 		if it.kind != iValue || it.tok.kind != tWord {
-			p.errs.Addf(it.tok.pos, "%s: expected a node name, found %s", e.Name.Text, it.tok)
+			p.errs.Addf(it.tok.pos, "%s: expected a net name, found %s", e.Name.Text, it.tok)
 			return false
 		}
 		e.Nodes = append(e.Nodes, Word{it.tok.text, it.tok.pos})
@@ -614,15 +614,15 @@ func (p *parser) fixed(e *ElementStmt, pos []item, pairs []item) bool {
 	var what string
 	switch e.Kind {
 	case 'R', 'C', 'L':
-		nn, what = 2, "two nodes and a value"
+		nn, what = 2, "two nets and a value"
 	case 'D':
-		nn, what = 2, "anode and cathode nodes and a model"
+		nn, what = 2, "anode and cathode nets and a model"
 	case 'Q':
-		nn, what = 3, "collector, base and emitter nodes and a model"
+		nn, what = 3, "collector, base and emitter nets and a model"
 	case 'E', 'G':
-		nn, what = 4, "output +, output -, control + and control - nodes and a gain"
+		nn, what = 4, "output +, output -, control + and control - nets and a gain"
 	case 'F', 'H':
-		nn, what = 2, "two output nodes, a controlling voltage source and a gain"
+		nn, what = 2, "two output nets, a controlling voltage source and a gain"
 	}
 	if e.Kind == 'E' || e.Kind == 'G' {
 		for _, it := range pairs {
@@ -742,12 +742,12 @@ func hasPoly(calls []item) bool {
 // Initial conditions IC=... after the coefficients matter only to
 // transient analysis and are ignored with a note.
 func (p *parser) poly(e *ElementStmt, its []item) bool {
-	if !p.nodes(e, its, 2, "two output nodes") {
+	if !p.nodes(e, its, 2, "two output nets") {
 		return false
 	}
 	rest := its[2:]
 	if len(rest) == 0 || rest[0].kind != iCall || !strings.EqualFold(rest[0].tok.text, "poly") {
-		p.errs.Addf(e.Name.Pos, "%s: POLY(n) must follow the two output nodes", e.Name.Text)
+		p.errs.Addf(e.Name.Pos, "%s: POLY(n) must follow the two output nets", e.Name.Text)
 		return false
 	}
 	call := rest[0]
@@ -778,13 +778,13 @@ func (p *parser) poly(e *ElementStmt, its []item) bool {
 		case it.kind == iValue && it.tok.kind == tWord:
 			ctl = append(ctl, it)
 		default:
-			p.errs.Addf(it.tok.pos, "%s: expected a controlling %s, found %s", e.Name.Text, map[bool]string{true: "node", false: "voltage source"}[want == 2*n], it.tok)
+			p.errs.Addf(it.tok.pos, "%s: expected a controlling %s, found %s", e.Name.Text, map[bool]string{true: "net", false: "voltage source"}[want == 2*n], it.tok)
 			return false
 		}
 		rest = rest[1:]
 	}
 	if len(ctl) != want {
-		what := fmt.Sprintf("%d controlling node pairs", n)
+		what := fmt.Sprintf("%d controlling net pairs", n)
 		if want == n {
 			what = fmt.Sprintf("%d controlling voltage sources", n)
 		}
@@ -842,13 +842,13 @@ func (p *parser) instance(e *ElementStmt, pos []item, calls []item) bool {
 			continue
 		}
 		if it.tok.kind != tWord {
-			p.errs.Addf(it.tok.pos, "%s: expected a node or subcircuit name, found %s", e.Name.Text, it.tok)
+			p.errs.Addf(it.tok.pos, "%s: expected a net or subcircuit name, found %s", e.Name.Text, it.tok)
 			return false
 		}
 		words = append(words, it)
 	}
 	if len(words) == 0 {
-		p.errs.Addf(e.Name.Pos, "%s needs nodes and a subcircuit name", e.Name.Text)
+		p.errs.Addf(e.Name.Pos, "%s needs nets and a subcircuit name", e.Name.Text)
 		return false
 	}
 	for _, it := range words[:len(words)-1] {

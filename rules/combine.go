@@ -28,6 +28,7 @@ func Combine(sets ...*RuleSet) *RuleSet {
 			descs = append(descs, s.Description)
 		}
 		out.Extends = append(out.Extends, s.Extends...)
+		out.Notes = append(out.Notes, s.Notes...)
 		for _, p := range s.Params {
 			if i, ok := param[p.Name]; ok {
 				out.Params[i] = p

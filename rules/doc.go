@@ -14,12 +14,12 @@
 //	  linear_vce_min: 0.5 V          # short form: value with its unit
 //	  ratio: 3                       # short form: a plain number
 //	disable: [unlimited-base-drive]  # parent rules to switch off
-//	severities:                      # change a parent rule's severity only
+//	levels:                          # change a parent rule's level only
 //	  floating-base: error
 //	rules:
-//	  - id: vce-overstress           # kebab-case, unique
-//	    severity: error              # error | warning | note
-//	    subject: transistor          # transistor | resistor | node
+//	  - id: vce-over-rating          # kebab-case, unique
+//	    level: error                 # error | warning | note
+//	    subject: transistor          # transistor | resistor | net
 //	    applies: linear              # optional: which devices (default all)
 //	    when: vce > param.vceo_share * rating.vceo    # true means violation
 //	    measure: vce / rating.vceo   # optional, larger is worse
@@ -29,7 +29,7 @@
 //	    message: "VCE {vce:V} exceeds {param.vceo_share * rating.vceo:V}"
 //	    rationale: why the rule exists, with its source
 //	    fix: what to change
-//	    unjudged: note               # severity when it cannot be judged (default note)
+//	    unjudged: note               # level when it cannot be judged (default note)
 //	    related: [base resistor, bleed resistor]   # parts a finding names as its cause
 //
 // related (transistor rules only) lists roles of the parts around the
@@ -45,8 +45,8 @@
 // Expressions use the expr language (github.com/expr-lang/expr). The names
 // available are the facts of the subject, as tagged in package checks
 // (vce, ic, role, rating.vceo, gp.vaf, emitter_r, ... for a transistor;
-// r, v, i, power, rating for a resistor; name, v, peak for a node), plus
-// scenario and corner (strings), ambient for resistors and nodes, and
+// r, v, i, power, power_rating for a resistor; name, v, peak for a net),
+// plus scenario and corner (strings), ambient for resistors and nets, and
 // param.NAME for each parameter of the set. Facts lists them. Every
 // expression is compiled once, when the set is loaded: an unknown name, an
 // unknown parameter, a wrong result type (a non-bool when) or a syntax
@@ -59,7 +59,8 @@
 // an expression like the others; UNIT is one of Units, and the value is
 // printed through netlist/units.Format ("{ic:A}" gives "1.02 mA"); the
 // unit "%" prints a fraction as a percentage. Without a unit, numbers are
-// printed in engineering notation without a unit and strings as they are.
+// dimensionless and print without an SI prefix (units.Number: "0.0164"),
+// and strings print as they are.
 // Write "{{" and "}}" for literal braces.
 //
 // Parameter values are numbers in SI units, or text: a SPICE-style value
@@ -68,6 +69,10 @@
 // keeps the unit its first definition gives it; an override in a child set
 // or through LoadOptions.Set may only change its value.
 //
+// The older spellings "severity" (for level), "severities" (for levels),
+// subject "node" (for net) and renamed rule ids (RenamedRules) are still
+// read, each with a located note (RuleSet.Notes).
+//
 // # Extends and overrides
 //
 // A set that extends another starts from the parent's parameters and rules
@@ -75,7 +80,7 @@
 // values or add new ones; a rule with the id of a parent rule replaces that
 // rule in place; new rules come after the parent's; disable removes parent
 // rules (they stay known, so a waiver naming one is not an unknown rule);
-// severities changes a parent rule's severity. Extends chains are
+// levels changes a parent rule's level. Extends chains are
 // cycle-checked and at most MaxExtendsDepth deep.
 //
 // # Evaluation

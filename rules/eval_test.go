@@ -67,15 +67,15 @@ func TestDefaultRules(t *testing.T) {
 		// 1 nA is below the 1 uA conduction threshold (common practice).
 		{"cutoff-linear-stage", lin(func(q *checks.Transistor) { q.IC, q.IB, q.VBE, q.Region = 1e-9, 1e-12, 0.2, "cutoff" }), 1e-9, 1e-6},
 		// -7 V reverse VBE beyond VEBO 6 V (small-signal class, from memory).
-		{"vbe-reverse-overstress", sw(func(q *checks.Transistor) { q.VBE, q.IC, q.IB, q.VCE, q.Region = -7, 0, 0, 12, "cutoff" }), 7, 6},
+		{"vbe-reverse-over-rating", sw(func(q *checks.Transistor) { q.VBE, q.IC, q.IB, q.VCE, q.Region = -7, 0, 0, 12, "cutoff" }), 7, 6},
 		// 45 V beyond VCEO 40 V (class value, from memory).
-		{"vce-overstress", lin(func(q *checks.Transistor) { q.VCE = 45 }), 45, 40},
+		{"vce-over-rating", lin(func(q *checks.Transistor) { q.VCE = 45 }), 45, 40},
 		// VCB 64.35 V beyond VCBO 60 V; VCEO raised so only VCB is over.
-		{"vcb-overstress", lin(func(q *checks.Transistor) { q.VCE, q.Rating.VCEO = 65, 100 }), 64.35, 60},
+		{"vcb-over-rating", lin(func(q *checks.Transistor) { q.VCE, q.Rating.VCEO = 65, 100 }), 64.35, 60},
 		// 250 mA beyond ICmax 200 mA; VCE 1 V keeps P = 0.25 W under 0.625 W.
-		{"ic-overrating", lin(func(q *checks.Transistor) { q.IC, q.IB, q.VCE = 0.25, 1.25e-3, 1 }), 0.25, 0.2},
+		{"ic-over-rating", lin(func(q *checks.Transistor) { q.IC, q.IB, q.VCE = 0.25, 1.25e-3, 1 }), 0.25, 0.2},
 		// P = 10 V * 100 mA = 1 W beyond Pd(25 C) = 625 mW.
-		{"overdissipation", lin(func(q *checks.Transistor) { q.VCE, q.IC, q.IB = 10, 0.1, 0.5e-3 }), 10*0.1 + 0.65*0.5e-3, 0.625},
+		{"power-over-rating", lin(func(q *checks.Transistor) { q.VCE, q.IC, q.IB = 10, 0.1, 0.5e-3 }), 10*0.1 + 0.65*0.5e-3, 0.625},
 		{"no-emitter-degeneration", lin(func(q *checks.Transistor) { q.EmitterR = 0 }), 0, 0},
 		{"floating-base", sw(func(q *checks.Transistor) { q.Bleed = false }), 0, 0},
 		{"unlimited-base-drive", sw(func(q *checks.Transistor) { q.StiffDrive = true }), 0, 0},
@@ -83,7 +83,7 @@ func TestDefaultRules(t *testing.T) {
 		{"weak-switch-drive", sw(func(q *checks.Transistor) { q.IB = 0.25e-3 }), 80, 50},
 		// Out of saturation while conducting.
 		{"weak-switch-drive", sw(func(q *checks.Transistor) { q.VCE, q.Region = 2, "active" }), 10, 50},
-		{"resistor-overpower", func() checks.Case {
+		{"resistor-power-over-rating", func() checks.Case {
 			r := okResistor()
 			r.V, r.I, r.Power = 10, 0.1, 1 // 1 W in a 250 mW part
 			return oneCase(nil, []checks.Resistor{r}, nil)
@@ -142,9 +142,9 @@ func TestDerating(t *testing.T) {
 		q.VCE, q.IC, q.IB, q.Ambient = 5, 0.1, 0.5e-3, tc.ambient // 0.5 W + 0.3 mW
 		q = derive(q)
 		fs, _ := Evaluate(set, analysis(oneCase([]checks.Transistor{q}, nil, nil)), EvalOptions{})
-		got := len(fs) == 1 && fs[0].Rule == "overdissipation"
+		got := len(fs) == 1 && fs[0].Rule == "power-over-rating"
 		if got != tc.fire {
-			t.Errorf("ambient %g C: findings %v, want overdissipation %v", tc.ambient, ids(fs), tc.fire)
+			t.Errorf("ambient %g C: findings %v, want power-over-rating %v", tc.ambient, ids(fs), tc.fire)
 		}
 	}
 }
@@ -158,8 +158,8 @@ func TestUnjudged(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(fs) != 1 || fs[0].Rule != "vce-overstress" || !fs[0].Unjudged || fs[0].Severity != SeverityNote {
-		t.Fatalf("got %+v, want one unjudged vce-overstress note", fs)
+	if len(fs) != 1 || fs[0].Rule != "vce-over-rating" || !fs[0].Unjudged || fs[0].Severity != SeverityNote {
+		t.Fatalf("got %+v, want one unjudged vce-over-rating note", fs)
 	}
 	if !reflect.DeepEqual(fs[0].Missing, []string{"rating.vceo"}) || !strings.Contains(fs[0].Message, "rating.vceo not known") {
 		t.Errorf("message should name the missing fact: %q %v", fs[0].Message, fs[0].Missing)
@@ -181,7 +181,7 @@ func TestUnjudgedDivision(t *testing.T) {
 	src := `name: div
 rules:
   - id: ratio
-    severity: warning
+    level: warning
     subject: transistor
     when: vce / ic > 1000
     message: "ratio {vce / ic}"
@@ -242,7 +242,7 @@ func TestDeterminism(t *testing.T) {
 			t.Fatal("evaluation is not deterministic")
 		}
 	}
-	want := []string{"resistor-overpower@R1", "no-emitter-degeneration@Q1", "vce-overstress@Q1",
+	want := []string{"resistor-power-over-rating@R1", "no-emitter-degeneration@Q1", "vce-over-rating@Q1",
 		"floating-base@Q2", "unlimited-base-drive@Q2"}
 	if !reflect.DeepEqual(ids(first), want) {
 		t.Errorf("order %v, want %v", ids(first), want)
@@ -255,8 +255,8 @@ func TestSelect(t *testing.T) {
 	q := linearQ()
 	q.EmitterR, q.VCE = 0, 45
 	a := analysis(oneCase([]checks.Transistor{derive(q)}, nil, nil))
-	fs, err := Evaluate(set, a, EvalOptions{Only: []string{"vce-overstress"}})
-	if err != nil || !reflect.DeepEqual(ids(fs), []string{"vce-overstress@Q1"}) {
+	fs, err := Evaluate(set, a, EvalOptions{Only: []string{"vce-over-rating"}})
+	if err != nil || !reflect.DeepEqual(ids(fs), []string{"vce-over-rating@Q1"}) {
 		t.Errorf("only: %v %v", ids(fs), err)
 	}
 	fs, err = Evaluate(set, a, EvalOptions{Skip: []string{"VCE-overstress"}})
@@ -267,7 +267,7 @@ func TestSelect(t *testing.T) {
 		t.Errorf("unknown id: %v", err)
 	}
 	sel, _ := set.Select(nil, []string{"floating-base"})
-	if sel.Rule("floating-base") != nil || !sel.RuleIDs()["vce-overstress"] || sel.RuleIDs()["floating-base"] {
+	if sel.Rule("floating-base") != nil || !sel.RuleIDs()["vce-over-rating"] || sel.RuleIDs()["floating-base"] {
 		t.Error("Select should drop the rule but keep it known")
 	}
 }

@@ -30,5 +30,5 @@ func ExampleEvaluate() {
 		fmt.Printf("%s %s: %s\n", f.Severity, f.Rule, f.Message)
 	}
 	// Output:
-	// error vce-overstress: Q1 (small-signal-npn): VCE 45.0 V exceeds 40.0 V (100 % of VCEO 40.0 V)
+	// error vce-over-rating: Q1 (small-signal-npn): VCE 45.0 V exceeds 40.0 V (100 % of VCEO 40.0 V)
 }

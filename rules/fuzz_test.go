@@ -18,7 +18,7 @@ func FuzzLoadRuleSet(f *testing.F) {
 		}
 	}
 	f.Add([]byte("name: t\nrules:\n" + okRule))
-	f.Add([]byte("name: t\nextends: default\nparameters:\n  vceo_share: 50%\nrules:\n  - id: x\n    severity: note\n    subject: node\n    when: peak / v > 1\n    message: \"{peak:V} {{x}}\"\n"))
+	f.Add([]byte("name: t\nextends: default\nparameters:\n  vceo_share: 50%\nrules:\n  - id: x\n    level: note\n    subject: net\n    when: peak / v > 1\n    message: \"{peak:V} {{x}}\"\n"))
 	f.Add([]byte("name: t\nrules:\n  - &a {id: q}\n  - *a\n"))
 	f.Add([]byte("name: t\nextends: ../../etc/passwd.yaml\n"))
 	a := analysis(oneCase([]checks.Transistor{linearQ(), switchQ()}, []checks.Resistor{okResistor()}, []checks.Node{okNode()}))

@@ -12,7 +12,7 @@ import (
 
 // A minimal valid rule, indented as a list item under rules:.
 const okRule = `  - id: ok
-    severity: note
+    level: note
     subject: transistor
     when: vce > 1
     message: fine
@@ -27,37 +27,37 @@ func TestCompileErrorsLocated(t *testing.T) {
 		pos       string // file:line:col
 		msg       string // part of the message
 	}{
-		{"typo'd fact", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    when: vce > vcee\n    message: m\n",
+		{"typo'd fact", "name: t\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    when: vce > vcee\n    message: m\n",
 			// "    when: vce > vcee": the value starts at col 11, vcee at col 17.
 			"t.yaml:6:17", "unknown name vcee"},
-		{"typo'd member", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    when: vce > rating.vceoo\n    message: m\n",
+		{"typo'd member", "name: t\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    when: vce > rating.vceoo\n    message: m\n",
 			// rating.vceoo: rating at col 17, the field name vceoo at col 24.
 			"t.yaml:6:24", "vceoo"},
-		{"non-bool when", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    when: vce + 1\n    message: m\n",
+		{"non-bool when", "name: t\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    when: vce + 1\n    message: m\n",
 			"t.yaml:6:11", "expected bool"},
-		{"unknown param", "name: t\nparameters:\n  lim: 3 V\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    when: vce > param.limm\n    message: m\n",
+		{"unknown param", "name: t\nparameters:\n  lim: 3 V\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    when: vce > param.limm\n    message: m\n",
 			// "    when: vce > param.limm": limm at col 23.
 			"t.yaml:8:23", `unknown parameter "limm"`},
-		{"quoted expression", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    when: \"vce > vcee\"\n    message: m\n",
+		{"quoted expression", "name: t\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    when: \"vce > vcee\"\n    message: m\n",
 			// the quote is at col 11, vcee at col 18.
 			"t.yaml:6:18", "unknown name vcee"},
-		{"block expression", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    when: |\n      vce > 1 &&\n      vcee > 2\n    message: m\n",
+		{"block expression", "name: t\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    when: |\n      vce > 1 &&\n      vcee > 2\n    message: m\n",
 			// second line of the block, indented 6: vcee at col 7 of line 8.
 			"t.yaml:8:7", "unknown name vcee"},
-		{"message placeholder", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    when: vce > 1\n    message: \"VCE {vcee:V}\"\n",
+		{"message placeholder", "name: t\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    when: vce > 1\n    message: \"VCE {vcee:V}\"\n",
 			// quote at col 14, "{" at col 19, vcee at col 20.
 			"t.yaml:7:20", "unknown name vcee"},
-		{"range operator", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    when: all(1..100000000, {# > 0})\n    message: m\n",
+		{"range operator", "name: t\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    when: all(1..100000000, {# > 0})\n    message: m\n",
 			// "1..100000000" starts at col 15, the operator ".." at col 16.
 			"t.yaml:6:16", "range operator"},
-		{"unknown rule key", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: transistor\n    whne: vce > 1\n    message: m\n",
+		{"unknown rule key", "name: t\nrules:\n  - id: a\n    level: error\n    subject: transistor\n    whne: vce > 1\n    message: m\n",
 			"t.yaml:6:5", `unknown key "whne"`},
 		{"unknown top key", "name: t\nrulez: []\n", "t.yaml:2:1", `unknown key "rulez"`},
-		{"bad severity", "name: t\nrules:\n  - id: a\n    severity: fatal\n    subject: transistor\n    when: vce > 1\n    message: m\n",
-			"t.yaml:4:15", "severity"},
-		{"bad id", "name: t\nrules:\n  - id: Bad_Id\n    severity: error\n    subject: transistor\n    when: vce > 1\n    message: m\n",
+		{"bad level", "name: t\nrules:\n  - id: a\n    level: fatal\n    subject: transistor\n    when: vce > 1\n    message: m\n",
+			"t.yaml:4:12", "level"},
+		{"bad id", "name: t\nrules:\n  - id: Bad_Id\n    level: error\n    subject: transistor\n    when: vce > 1\n    message: m\n",
 			"t.yaml:3:9", "kebab-case"},
-		{"wrong subject fact", "name: t\nrules:\n  - id: a\n    severity: error\n    subject: node\n    when: vce > 1\n    message: m\n",
+		{"wrong subject fact", "name: t\nrules:\n  - id: a\n    level: error\n    subject: net\n    when: vce > 1\n    message: m\n",
 			"t.yaml:6:11", "unknown name vce"},
 		{"bad parameter value", "name: t\nparameters:\n  lim: 3 A V\n", "t.yaml:3:8", "bad value"},
 		// yaml.v3 reports the line of a syntax error only; the column is 1.
@@ -100,13 +100,13 @@ parameters:
   extra: {value: 2.5 V, doc: a new one}
 disable: [floating-base]
 rules:
-  - id: vce-overstress
-    severity: warning
+  - id: vce-over-rating
+    level: warning
     subject: transistor
     when: vce > param.vceo_share * rating.vceo
     message: "replaced {vce:V}"
   - id: low-vce
-    severity: note
+    level: note
     subject: transistor
     when: vce < param.extra
     message: "low {vce:V}"
@@ -115,7 +115,7 @@ rules:
 extends: base.yaml
 parameters:
   extra: 1 V
-severities:
+levels:
   low-vce: error
 `,
 		"cycle-a.yaml": "name: a\nextends: cycle-b.yaml\n",
@@ -136,17 +136,17 @@ severities:
 	if p, _ := child.Param("extra"); p.Value != 1 || p.Unit != "V" || p.Doc != "a new one" || p.From != "child" {
 		t.Errorf("extra %+v", p)
 	}
-	r := child.Rule("vce-overstress")
+	r := child.Rule("vce-over-rating")
 	if r == nil || r.Severity != SeverityWarning || r.Set != "base" {
 		t.Errorf("replaced rule %+v", r)
 	}
-	// The replacement keeps the parent's place: vce-overstress stays
-	// between vcb... in default order, after vbe-reverse-overstress.
+	// The replacement keeps the parent's place: vce-over-rating stays
+	// between vcb... in default order, after vbe-reverse-over-rating.
 	var order []string
 	for _, r := range child.Rules {
 		order = append(order, r.ID)
 	}
-	if !strings.Contains(strings.Join(order, " "), "vbe-reverse-overstress vce-overstress vcb-overstress") || order[len(order)-1] != "low-vce" {
+	if !strings.Contains(strings.Join(order, " "), "vbe-reverse-over-rating vce-over-rating vcb-over-rating") || order[len(order)-1] != "low-vce" {
 		t.Errorf("rule order %v", order)
 	}
 	if child.Rule("floating-base") != nil || child.RuleIDs()["floating-base"] {
@@ -171,7 +171,7 @@ severities:
 		}
 		q := linearQ()
 		q.VCE = tc.vce
-		fs, _ := Evaluate(s, analysis(oneCase([]checks.Transistor{derive(q)}, nil, nil)), EvalOptions{Only: []string{"vce-overstress"}})
+		fs, _ := Evaluate(s, analysis(oneCase([]checks.Transistor{derive(q)}, nil, nil)), EvalOptions{Only: []string{"vce-over-rating"}})
 		if (len(fs) == 1) != tc.fire {
 			t.Errorf("VCE %g with %v: %v", tc.vce, tc.set, ids(fs))
 		}
@@ -199,7 +199,7 @@ func TestTeamStrict(t *testing.T) {
 	for _, tc := range []struct {
 		set  string
 		want []string
-	}{{"default", nil}, {"team-strict", []string{"vce-overstress@Q1"}}} {
+	}{{"default", nil}, {"team-strict", []string{"vce-over-rating@Q1"}}} {
 		s, err := Load(tc.set, LoadOptions{})
 		if err != nil {
 			t.Fatal(err)
@@ -210,7 +210,7 @@ func TestTeamStrict(t *testing.T) {
 		}
 	}
 	s, _ := Load("team-strict", LoadOptions{})
-	if s.Rule("floating-base").Severity != SeverityError || s.Rule("hot-junction") == nil {
+	if s.Rule("floating-base").Severity != SeverityError || s.Rule("tj-over-limit") == nil {
 		t.Error("team-strict severities or rules")
 	}
 }
@@ -250,6 +250,44 @@ func TestFacts(t *testing.T) {
 	}
 	if _, ok := have["pos"]; ok {
 		t.Error("pos is not a fact")
+	}
+}
+
+// The older spellings are still read, each with a located note: the rule
+// key "severity" (now "level"), the section "severities" (now "levels"),
+// subject "node" (now "net") and a renamed rule id.
+func TestOldSpellingsRead(t *testing.T) {
+	src := "name: t\nextends: default\nseverities:\n  overdissipation: warning\nrules:\n  - id: a\n    severity: note\n    subject: node\n    when: v > 100\n    message: m\n"
+	rs, err := Parse("t.yaml", []byte(src), LoadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var notes []string
+	for _, n := range rs.Notes {
+		notes = append(notes, n.Error())
+	}
+	for _, want := range []string{
+		`t.yaml:3:1: note: the section "severities" is now called "levels"`,
+		`t.yaml:4:3: note: rule "overdissipation" is now called "power-over-rating"`,
+		`t.yaml:7:5: note: the rule key "severity" is now called "level"`,
+		`t.yaml:8:14: note: subject "node" is now called "net"`,
+	} {
+		found := false
+		for _, n := range notes {
+			found = found || strings.HasPrefix(n, want)
+		}
+		if !found {
+			t.Errorf("no note %q in %q", want, notes)
+		}
+	}
+	if r := rs.Rule("power-over-rating"); r == nil || r.Severity != SeverityWarning {
+		t.Errorf("levels under the old name did not reach power-over-rating: %+v", r)
+	}
+	if r := rs.Rule("overdissipation"); r == nil || r.ID != "power-over-rating" {
+		t.Errorf("the old id does not find the renamed rule")
+	}
+	if r := rs.Rule("a"); r == nil || r.Subject != SubjectNet || r.Severity != SeverityNote {
+		t.Errorf("rule a: %+v", r)
 	}
 }
 

@@ -9,7 +9,7 @@ import (
 // related key on a rule that does not judge transistors are located
 // errors.
 func TestRelatedKey(t *testing.T) {
-	rs, err := Parse("t.yaml", []byte("name: t\nrules:\n  - id: a\n    severity: note\n    subject: transistor\n    when: vce > 1\n    message: m\n    related: [bleed resistor, drive]\n"), LoadOptions{})
+	rs, err := Parse("t.yaml", []byte("name: t\nrules:\n  - id: a\n    level: note\n    subject: transistor\n    when: vce > 1\n    message: m\n    related: [bleed resistor, drive]\n"), LoadOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -17,10 +17,10 @@ func TestRelatedKey(t *testing.T) {
 		t.Errorf("related %q", got)
 	}
 	for _, tc := range []struct{ src, want string }{
-		{"name: t\nrules:\n  - id: a\n    severity: note\n    subject: transistor\n    when: vce > 1\n    message: m\n    related: [bleed resistr]\n",
+		{"name: t\nrules:\n  - id: a\n    level: note\n    subject: transistor\n    when: vce > 1\n    message: m\n    related: [bleed resistr]\n",
 			// "    related: [bleed resistr]": the item starts at col 15.
 			`t.yaml:8:15: error: related: "bleed resistr" is not a role`},
-		{"name: t\nrules:\n  - id: a\n    severity: note\n    subject: node\n    when: v > 1\n    message: m\n    related: [drive]\n",
+		{"name: t\nrules:\n  - id: a\n    level: note\n    subject: net\n    when: v > 1\n    message: m\n    related: [drive]\n",
 			"t.yaml:3:9: error: rule a: related names parts near a transistor"},
 	} {
 		_, err := Parse("t.yaml", []byte(tc.src), LoadOptions{})

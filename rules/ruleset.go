@@ -45,7 +45,10 @@ type Subject string
 const (
 	SubjectTransistor Subject = "transistor"
 	SubjectResistor   Subject = "resistor"
-	SubjectNode       Subject = "node"
+	SubjectNet        Subject = "net"
+	// SubjectNode is the older name of SubjectNet; rule-set files may
+	// still write "subject: node" (with a note).
+	SubjectNode = SubjectNet
 )
 
 // Units are the units a parameter, a rule's unit key or a message
@@ -63,10 +66,14 @@ func knownUnit(u string) bool {
 }
 
 // formatValue prints v in unit u through units.Format; "%" shows a
-// fraction as a percentage.
+// fraction as a percentage, and a figure without a unit is dimensionless
+// (a gain, a forced beta) and prints without an SI prefix (units.Number).
 func formatValue(v float64, u string) string {
-	if u == "%" {
+	switch u {
+	case "%":
 		return units.Format(v*100, "%")
+	case "":
+		return units.Number(v)
 	}
 	return units.Format(v, u)
 }
@@ -140,6 +147,9 @@ type RuleSet struct {
 	// Disabled are ids of rules that are known but switched off (by
 	// disable in a set, or by Select), sorted.
 	Disabled []string
+	// Notes are located notes about the files read: old key names and
+	// renamed rule ids that are still accepted.
+	Notes []*netlist.Error
 }
 
 // Param returns the parameter with the given name.
@@ -154,6 +164,7 @@ func (s *RuleSet) Param(name string) (Param, bool) {
 
 // Rule returns the active rule with the given id (case-insensitive), or nil.
 func (s *RuleSet) Rule(id string) *Rule {
+	id, _ = CanonicalRuleID(id)
 	for _, r := range s.Rules {
 		if strings.EqualFold(r.ID, id) {
 			return r
@@ -184,7 +195,8 @@ func (s *RuleSet) Select(only, skip []string) (*RuleSet, error) {
 	check := func(ids []string) map[string]bool {
 		m := map[string]bool{}
 		for _, id := range ids {
-			k := strings.ToLower(strings.TrimSpace(id))
+			cur, _ := CanonicalRuleID(id)
+			k := strings.ToLower(strings.TrimSpace(cur))
 			if _, ok := known[k]; !ok {
 				bad = append(bad, id)
 			}
@@ -421,7 +433,7 @@ func (l *loader) merge(parent *merged, rs *rawSet) *merged {
 	for _, sv := range rs.severities {
 		i := index(sv.id)
 		if i < 0 {
-			l.errs.Addf(sv.pos, "severities: no active rule %q in this set or the sets it extends", sv.id)
+			l.errs.Addf(sv.pos, "levels: no active rule %q in this set or the sets it extends", sv.id)
 			continue
 		}
 		c := *m.rules[i]
@@ -481,6 +493,7 @@ func (l *loader) finish(m *merged, opts LoadOptions) (*RuleSet, error) {
 	if err := l.errs.Err(); err != nil {
 		return nil, err
 	}
+	set.Notes = l.errs.Notes()
 	return set, nil
 }
 

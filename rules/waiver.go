@@ -39,7 +39,8 @@ const (
 func ApplyWaivers(findings []Finding, waivers []Waiver, knownRuleIDs map[string]bool) []Finding {
 	out := append([]Finding(nil), findings...)
 	for _, w := range waivers {
-		id := strings.ToLower(w.Rule)
+		cur, _ := CanonicalRuleID(w.Rule)
+		id := strings.ToLower(cur)
 		active, known := knownRuleIDs[id]
 		if !known {
 			out = append(out, Finding{Rule: RuleUnknownWaiverRule, Severity: SeverityWarning, Device: w.Device,

@@ -26,7 +26,7 @@ func TestWaivers(t *testing.T) {
 	ws := []Waiver{
 		{Rule: "no-emitter-degeneration", Device: "x1.q1", Reason: "bias set by a servo loop", Pos: wpos(2)},
 		{Rule: "floating-base", Device: "X1.*", Reason: "driver has a pull-down", Pos: wpos(3)},
-		{Rule: "vce-overstress", Device: "Q1", Reason: "stale", Pos: wpos(4)},
+		{Rule: "vce-over-rating", Device: "Q1", Reason: "stale", Pos: wpos(4)},
 		{Rule: "floating-bsae", Device: "Q3", Reason: "typo", Pos: wpos(5)},
 		{Rule: "unlimited-base-drive", Device: "Q3", Reason: "skipped rule", Pos: wpos(6)},
 	}

@@ -99,7 +99,7 @@ func (l *loader) parseFile(file string, src []byte) *rawSet {
 	}
 	doc := root.Content[0]
 	rs := &rawSet{file: file}
-	ok := p.mapping(doc, "rule set", []string{"name", "description", "extends", "parameters", "disable", "severities", "rules"},
+	ok := p.mapping(doc, "rule set", []string{"name", "description", "extends", "parameters", "disable", "levels", "severities", "rules"},
 		func(key string, k, v *yaml.Node) {
 			switch key {
 			case "name":
@@ -116,12 +116,15 @@ func (l *loader) parseFile(file string, src []byte) *rawSet {
 				})
 			case "disable":
 				for _, it := range p.seq(v, key) {
-					rs.disable = append(rs.disable, idRef{p.str(it, "rule id"), p.pos(it)})
+					rs.disable = append(rs.disable, idRef{p.ruleID(it), p.pos(it)})
 				}
-			case "severities":
-				p.mapping(v, "severities", nil, func(id string, k, v *yaml.Node) {
+			case "levels", "severities":
+				if key == "severities" {
+					p.errs.Notef(p.pos(k), "the section \"severities\" is now called \"levels\" (as SARIF names a result's severity); rename it")
+				}
+				p.mapping(v, key, nil, func(id string, k, v *yaml.Node) {
 					if sev, ok := p.severity(v); ok {
-						rs.severities = append(rs.severities, sevRef{id, sev, p.pos(k)})
+						rs.severities = append(rs.severities, sevRef{p.ruleID(k), sev, p.pos(k)})
 					}
 				})
 			case "rules":
@@ -220,9 +223,9 @@ func (p *fileParser) seq(n *yaml.Node, what string) []*yaml.Node {
 }
 
 func (p *fileParser) severity(n *yaml.Node) (Severity, bool) {
-	s := Severity(p.str(n, "severity"))
+	s := Severity(p.str(n, "level"))
 	if s.Rank() > 2 {
-		p.errs.Addf(p.pos(n), "severity %q is not error, warning or note", n.Value)
+		p.errs.Addf(p.pos(n), "level %q is not error, warning or note", n.Value)
 		return "", false
 	}
 	return s, true
@@ -311,7 +314,7 @@ func (p *fileParser) rule(n *yaml.Node) *rawRule {
 	var idSeen, sevSeen, subjSeen bool
 	exprKeys := map[string]**rawExpr{"applies": &r.applies, "when": &r.when, "measure": &r.measure,
 		"value": &r.value, "limit": &r.limit, "message": &r.message}
-	ok := p.mapping(n, "rule", []string{"id", "severity", "subject", "applies", "when", "measure", "value", "limit",
+	ok := p.mapping(n, "rule", []string{"id", "level", "severity", "subject", "applies", "when", "measure", "value", "limit",
 		"unit", "message", "rationale", "fix", "unjudged", "related"},
 		func(key string, k, v *yaml.Node) {
 			expr := func() *rawExpr {
@@ -320,20 +323,27 @@ func (p *fileParser) rule(n *yaml.Node) *rawRule {
 			}
 			switch key {
 			case "id":
-				r.id, r.pos, idSeen = p.str(v, key), p.pos(v), true
+				r.id, r.pos, idSeen = p.ruleID(v), p.pos(v), true
 				if !ruleIDPattern.MatchString(r.id) {
 					p.errs.Addf(p.pos(v), "rule id %q: use kebab-case (lower case words joined by -)", r.id)
 				}
-			case "severity":
+			case "level", "severity":
+				if key == "severity" {
+					p.errs.Notef(p.pos(k), "the rule key \"severity\" is now called \"level\" (as SARIF names it); rename it")
+				}
 				r.severity, sevSeen = p.severityOf(v)
 			case "unjudged":
 				r.unjudged, _ = p.severityOf(v)
 			case "subject":
 				r.subject, subjSeen = Subject(p.str(v, key)), true
+				if r.subject == "node" {
+					p.errs.Notef(p.pos(v), "subject \"node\" is now called \"net\"; rename it")
+					r.subject = SubjectNet
+				}
 				switch r.subject {
-				case SubjectTransistor, SubjectResistor, SubjectNode:
+				case SubjectTransistor, SubjectResistor, SubjectNet:
 				default:
-					p.errs.Addf(p.pos(v), "subject %q is not transistor, resistor or node", v.Value)
+					p.errs.Addf(p.pos(v), "subject %q is not transistor, resistor or net", v.Value)
 					subjSeen = false
 				}
 			case "applies", "when", "measure", "value", "limit", "message":
@@ -367,7 +377,7 @@ func (p *fileParser) rule(n *yaml.Node) *rawRule {
 		return nil
 	}
 	if !sevSeen {
-		missing("severity")
+		missing("level")
 	}
 	if !subjSeen {
 		missing("subject")
@@ -391,6 +401,17 @@ func (p *fileParser) rule(n *yaml.Node) *rawRule {
 }
 
 func (p *fileParser) severityOf(v *yaml.Node) (Severity, bool) { return p.severity(v) }
+
+// ruleID reads a rule id, taking a renamed id as its current one with a
+// note.
+func (p *fileParser) ruleID(n *yaml.Node) string {
+	id := p.str(n, "rule id")
+	if cur, renamed := CanonicalRuleID(id); renamed {
+		p.errs.Notef(p.pos(n), "rule %q is now called %q; rename it", id, cur)
+		return cur
+	}
+	return id
+}
 
 // at locates the 1-based line and column (in runes) of an expression's
 // text within the file, from the YAML node that holds it.

@@ -103,7 +103,17 @@ func NewDevice(name string, pos netlist.Pos) *Device {
 }
 
 // DeviceKeys are the keys a device entry takes.
-var DeviceKeys = []string{"role", "power", "tol", "driver", "amplitude"}
+var DeviceKeys = []string{"role", "power_rating", "tol", "driver", "amplitude"}
+
+// renamedKey returns the current name of a device key that was renamed
+// ("power" is now "power_rating": the fact power is a dissipation) and
+// the note that says so, or key and "" when it was not renamed.
+func renamedKey(key string) (string, string) {
+	if key == "power" {
+		return "power_rating", `"power" is now called "power_rating" (a resistor's power rating, W); rename it`
+	}
+	return key, ""
+}
 
 // Waiver accepts one rule's findings on one device, with a reason. Device
 // "*" waives the rule on every device.
@@ -124,6 +134,8 @@ type Settings struct {
 	Waivers []Waiver
 	// Ambient is the board file's ambient temperature, C (NaN when not set).
 	Ambient float64
+	// Notes are the board file's located notes (old key names still read).
+	Notes []*netlist.Error
 }
 
 // New returns empty Settings.
@@ -188,7 +200,7 @@ func (s *Settings) UnmatchedParts(c *netlist.Circuit) []*Part {
 
 // FromCircuit reads the *@part, *@device and *@waive annotations of a flat
 // circuit. Annotations inside a subcircuit name devices of that subcircuit:
-// "*@device RCOIL power=0.5" in the body of X1 sets X1.RCOIL. Problems are
+// "*@device RCOIL power_rating=0.5" in the body of X1 sets X1.RCOIL. Problems are
 // warnings in the returned list; an annotation of another kind is a note.
 func FromCircuit(c *netlist.Circuit) (*Settings, *netlist.ErrorList) {
 	s := New()
@@ -270,7 +282,11 @@ func (s *Settings) deviceAnnotation(c *netlist.Circuit, a *netlist.Annotation, e
 	}
 	d := NewDevice(el.Name, a.Pos)
 	for _, k := range sortedKeys(a.KV) {
-		if msg := d.set(k, a.KV[k], el.Kind); msg != "" {
+		key, note := renamedKey(k)
+		if note != "" {
+			errs.Notef(a.KVPos[k], "*@device %s: %s", el.Name, note)
+		}
+		if msg := d.set(key, a.KV[k], el.Kind); msg != "" {
 			errs.Warnf(a.KVPos[k], "*@device %s: %s", el.Name, msg)
 		}
 	}
@@ -299,10 +315,10 @@ func (d *Device) set(key, val string, kind netlist.Kind) string {
 			return "role applies to transistors only"
 		}
 		d.Role = r
-	case "power":
+	case "power_rating":
 		v, ok := num()
 		if !ok || v == 0 {
-			return "power=" + val + " is not a positive power rating in W"
+			return "power_rating=" + val + " is not a positive power rating in W"
 		}
 		d.Power = v
 	case "tol":

@@ -21,7 +21,7 @@ const annotated = `pump controller
 .subckt drv in sup gnd
 RB in b 1k
 Q1 sup b gnd N
-*@device RB power=0.125
+*@device RB power_rating=0.125
 *@waive floating-base Q1 the driver IC holds its output low in reset
 .ends
 V1 a 0 PULSE(0 5 0 1u 1u 1m 2m)
@@ -83,7 +83,7 @@ ambient: 40
 parts:
   N: {vceo: 60, pd: 625m}
 devices:
-  X1.RB: {power: 1/4}
+  X1.RB: {power_rating: 1/4}
   VCC: {tol: 1%}
 waivers:
   - {rule: floating-base, device: X2.Q1, reason: "same driver as X1"}
@@ -99,7 +99,7 @@ ambient: 40
 parts:
   N: {vceo: 60, pd: 625m}
 devices:
-  X1.RB: {power: 0.25}
+  X1.RB: {power_rating: 0.25}
   VCC: {tol: 1%}
 waivers:
   - {rule: floating-base, device: X2.Q1, reason: "same driver as X1"}
@@ -144,8 +144,8 @@ func TestWaiverReasonAsWritten(t *testing.T) {
 	s, _ := FromCircuit(circuit(t, `reason text
 V1 a 0 5
 R1 a 0 1k
-*@waive resistor-overpower R1 rated "2 W" part, R=1k  in the BOM
-*@waive resistor-overpower "
+*@waive resistor-power-over-rating R1 rated "2 W" part, R=1k  in the BOM
+*@waive resistor-power-over-rating "
 `))
 	if len(s.Waivers) != 1 || s.Waivers[0].Reason != `rated "2 W" part, R=1k  in the BOM` {
 		t.Errorf("waivers %+v", s.Waivers)

@@ -19,7 +19,7 @@ import (
 //	          tjmax: 150, rthja: 250, hfemin: 100, hfemax: 300}
 //	devices:               # settings by flat element name
 //	  Q4: {role: switch}
-//	  RLOAD: {power: 1, tol: 1%}
+//	  RLOAD: {power_rating: 1, tol: 1%}
 //	  VMCU: {driver: yes}
 //	waivers:
 //	  - {rule: floating-base, device: Q7, reason: "held off by U3's pull-down"}
@@ -131,6 +131,10 @@ func Parse(file string, src []byte, c *netlist.Circuit) (*Settings, error) {
 					if kind == '?' && (key == "role" || key == "driver") {
 						kind = map[string]netlist.Kind{"role": 'Q', "driver": 'V'}[key]
 					}
+					key, note := renamedKey(key)
+					if note != "" {
+						errs.Notef(kpos, "device %s: %s", name, note)
+					}
 					if msg := d.set(key, val.Value, kind); msg != "" {
 						errs.Addf(kpos, "device %s: %s", name, msg)
 					}
@@ -174,6 +178,7 @@ func Parse(file string, src []byte, c *netlist.Circuit) (*Settings, error) {
 	if err := errs.Err(); err != nil {
 		return nil, err
 	}
+	s.Notes = errs.Notes()
 	return s, nil
 }
 

@@ -90,13 +90,13 @@ func checkLocated(t *testing.T, l *netlist.ErrorList, file string) {
 func FuzzAnnotations(f *testing.F) {
 	for _, s := range []string{
 		"*@part QGEN vceo=40 icmax=200m pd=625m\n",
-		"*@device Q1 role=switch\n*@device RC power=0.5 tol=1%\n*@device VIN driver=yes\n",
+		"*@device Q1 role=switch\n*@device RC power_rating=0.5 tol=1%\n*@device VIN driver=yes\n",
 		"*@waive floating-base Q1 the driver has a pull-down\n",
 		"*@part QGEN vceo=1.2.3k hfemin=-5 rthja=NaN tjmax=1e999\n",
-		"*@device X1.RL power=1\n*@device nosuch role=linear\n",
+		"*@device X1.RL power_rating=1\n*@device nosuch role=linear\n",
 		"*@waive\n*@\n*@part\n*@device Q1 role\n*@device Q1 =switch\n",
 		"*@part \"QGEN\" vceo=\"40\n*@waive x * reason with = signs and \"quotes\"\n",
-		".subckt S a\n*@device RX power=2\nRX a 0 1k\n.ends\nX2 vcc S\n",
+		".subckt S a\n*@device RX power_rating=2\nRX a 0 1k\n.ends\nX2 vcc S\n",
 	} {
 		f.Add(s)
 	}
@@ -127,7 +127,7 @@ func FuzzAnnotations(f *testing.F) {
 func FuzzBoardFile(f *testing.F) {
 	for _, s := range []string{
 		"ambient: 40\nparts:\n  QGEN: {vceo: 40, vcbo: 60, vebo: 6, icmax: 200m, pd: 500m, tjmax: 150, rthja: 250, hfemin: 100, hfemax: 300}\n",
-		"devices:\n  Q1: {role: switch}\n  RC: {power: 1, tol: 1%}\n  VIN: {driver: yes}\n  X1.RL: {power: 250m}\n",
+		"devices:\n  Q1: {role: switch}\n  RC: {power_rating: 1, tol: 1%}\n  VIN: {driver: yes}\n  X1.RL: {power_rating: 250m}\n",
 		"waivers:\n  - {rule: floating-base, device: Q1, reason: \"held off by the driver\"}\n",
 		"ambient: .nan\nparts:\n  QGEN: {vceo: .inf, pd: -1}\n",
 		"parts: [1, 2]\ndevices: 3\nwaivers: {a: b}\n",

@@ -13,7 +13,7 @@ import (
 // tolerances): to 0.2 % or 1e-12 W/K, on boards with emitter followers,
 // a stiff-biased power stage, switches and series resistances.
 func TestSolveGainsMatchResolving(t *testing.T) {
-	for _, f := range []string{"../../testdata/check/overdissipation.bad.cir", "../../testdata/check/thermal-runaway.bad.cir", "../../rulesets/demo/bench-logger.cir", "../../testdata/op/field-amp.cir"} {
+	for _, f := range []string{"../../testdata/check/power-over-rating.bad.cir", "../../testdata/check/thermal-runaway.bad.cir", "../../rulesets/demo/bench-logger.cir", "../../testdata/op/field-amp.cir"} {
 		c, err := netlist.Read(f, nil)
 		if err != nil {
 			t.Fatal(err)

@@ -596,7 +596,7 @@ func (w *work) gminStepping(x []float64, cold bool) (bool, string) {
 			continue
 		}
 		if good == 0 {
-			return false, fmt.Sprintf("gmin stepping (no solution even with %.3g S from every node to ground)", g)
+			return false, fmt.Sprintf("gmin stepping (no solution even with %.3g S from every net to ground)", g)
 		}
 		copy(x, prev)
 		factor = math.Sqrt(factor)

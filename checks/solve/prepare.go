@@ -130,7 +130,7 @@ func Prepare(c *netlist.Circuit) (*System, error) {
 	s.number()
 	if s.n > MaxUnknowns {
 		errs.Addf(netlist.Pos{File: c.File, Line: 1, Col: 1},
-			"the circuit has %d unknowns (node voltages and branch currents), more than the %d the linear solver takes; split the netlist into smaller blocks",
+			"the circuit has %d unknowns (net voltages and branch currents), more than the %d the linear solver takes; split the netlist into smaller blocks",
 			s.n, MaxUnknowns)
 		return nil, errs.Err()
 	}
@@ -166,9 +166,9 @@ func (s *System) collect(errs *netlist.ErrorList) {
 			if hi != lo {
 				want = fmt.Sprintf("%d or %d", lo, hi)
 			}
-			noun := "nodes"
+			noun := "nets"
 			if n == 1 {
-				noun = "node"
+				noun = "net"
 			}
 			errs.Addf(e.Pos, "%s: has %d %s, want %s", e.Name, n, noun, want)
 			continue
@@ -176,7 +176,7 @@ func (s *System) collect(errs *netlist.ErrorList) {
 		bad := false
 		for i, nd := range e.Nodes {
 			if nd == "" {
-				errs.Addf(e.Pos, "%s: node %d has no name", e.Name, i+1)
+				errs.Addf(e.Pos, "%s: net %d has no name", e.Name, i+1)
 				bad = true
 			}
 		}

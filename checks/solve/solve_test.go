@@ -456,12 +456,12 @@ func TestStructuralErrors(t *testing.T) {
 			b.R("R1", "a", "b", 1e3)
 			b.I("I1", "b", "c", 1e-3)
 			b.C("C1", "c", "0")
-		}, []string{"t.cir:4:1: error: node c has no DC path to ground", "current source I1 and capacitor C1", "no DC return path"}},
+		}, []string{"t.cir:4:1: error: net c has no DC path to ground", "current source I1 and capacitor C1", "no DC return path"}},
 		{"I in series with I", func(b *builder) {
 			b.V("V1", "a", "0", 1)
 			b.I("I1", "a", "b", 1e-3)
 			b.I("I2", "b", "0", 1e-3)
-		}, []string{"t.cir:3:1: error: node b has no DC path", "current source I1 and current source I2"}},
+		}, []string{"t.cir:3:1: error: net b has no DC path", "current source I1 and current source I2"}},
 		{"zero ohm across source", func(b *builder) {
 			b.V("V1", "a", "0", 5)
 			b.R("R1", "a", "0", 0)
@@ -469,16 +469,16 @@ func TestStructuralErrors(t *testing.T) {
 		{"self loop", func(b *builder) {
 			b.R("R1", "a", "0", 1)
 			b.V("V1", "a", "A", 5)
-		}, []string{"t.cir:3:1: error: V1 (voltage source) has both terminals on node a"}},
+		}, []string{"t.cir:3:1: error: V1 (voltage source) has both terminals on net a"}},
 		{"island", func(b *builder) {
 			b.V("V1", "a", "0", 1)
 			b.R("R1", "x", "y", 1e3)
-		}, []string{"t.cir:3:1: error: nodes x and y have no DC path to ground: R1 connects them to nothing else"}},
+		}, []string{"t.cir:3:1: error: nets x and y have no DC path to ground: R1 connects them to nothing else"}},
 		{"control input only", func(b *builder) {
 			b.V("V1", "a", "0", 1)
 			b.add('E', "E1", 2, "a2", "0", "s", "0")
 			b.R("R1", "a2", "0", 1)
-		}, []string{"t.cir:3:1: error: node s has no DC path", "the control input of voltage-controlled voltage source E1"}},
+		}, []string{"t.cir:3:1: error: net s has no DC path", "the control input of voltage-controlled voltage source E1"}},
 		{"no ground", func(b *builder) {
 			b.V("V1", "a", "b", 1)
 			b.R("R1", "a", "b", 1)
@@ -492,7 +492,7 @@ func TestStructuralErrors(t *testing.T) {
 			f := b.add('F', "F1", 1, "a", "0")
 			f.Control = "VZ"
 		}, []string{"t.cir:2:1: error: V1: DC value +Inf is not a finite number", "t.cir:3:1: error: R1: value NaN",
-			"t.cir:4:1: error: R2: has 1 node, want 2", `t.cir:5:1: error: M1: element kind "M" is not solved`,
+			"t.cir:4:1: error: R2: has 1 net, want 2", `t.cir:5:1: error: M1: element kind "M" is not solved`,
 			`t.cir:6:1: error: Q1: model "nomodel" is not defined`, "t.cir:7:1: error: F1: controlling voltage source VZ is not in the circuit"}},
 		{"bad control", func(b *builder) {
 			b.V("V1", "a", "0", 1)
@@ -647,7 +647,7 @@ func TestCapacitorOnlyNodesLeak(t *testing.T) {
 		t.Fatalf("Prepare: %v", err)
 	}
 	notes := s.Notes()
-	if len(notes) != 1 || !strings.Contains(notes[0].Msg, "nodes b and c have no DC path to ground") ||
+	if len(notes) != 1 || !strings.Contains(notes[0].Msg, "nets b and c have no DC path to ground") ||
 		!strings.Contains(notes[0].Msg, "C1 and C2") || !strings.Contains(notes[0].Msg, "GMIN") {
 		t.Fatalf("notes %v; want one naming b, c, C1, C2 and the GMIN leak", notes)
 	}

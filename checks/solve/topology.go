@@ -137,7 +137,7 @@ func (s *System) checkDCPaths(errs *netlist.ErrorList) {
 		if len(s.elems) > 0 {
 			pos = s.elems[0].e.Pos
 		}
-		errs.Add(pos, "no element connects to ground (node 0 or gnd): every node voltage is undetermined")
+		errs.Add(pos, "no element connects to ground (net 0 or gnd): every net voltage is undetermined")
 		return
 	}
 	g := uf.find(s.nExt)
@@ -192,9 +192,9 @@ func (s *System) checkDCPaths(errs *netlist.ErrorList) {
 	}
 	for _, r := range order {
 		gr := groups[r]
-		subject, it := "node "+gr.nodes[0]+" has", "it is"
+		subject, it := "net "+gr.nodes[0]+" has", "it is"
 		if len(gr.nodes) > 1 {
-			subject, it = "nodes "+nameList(gr.nodes)+" have", "they are"
+			subject, it = "nets "+nameList(gr.nodes)+" have", "they are"
 		}
 		if onlyCapacitors(gr.others) {
 			// Reached only through capacitors (an open coupling
@@ -316,7 +316,7 @@ func (s *System) checkVoltageLoops(errs *netlist.ErrorList) {
 		}
 		a, b := s.vertex(el.nodes[0]), s.vertex(el.nodes[1])
 		if a == b {
-			errs.Addf(el.e.Pos, "%s (%s) has both terminals on node %s: its branch current is not determined",
+			errs.Addf(el.e.Pos, "%s (%s) has both terminals on net %s: its branch current is not determined",
 				el.e.Name, role(el), el.e.Nodes[0])
 			continue
 		}

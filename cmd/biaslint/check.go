@@ -62,7 +62,7 @@ func checkCommand() *cli.Command {
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
 			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag, fileTimeoutFlag, fileElementsFlag, fileMiBFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
-			colorFlag, outputFlag, demoFlag,
+			colorFlag, outputFlag, demoFlag, demoRevFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
 			&cli.BoolFlag{Name: "thermal", Value: true, Usage: "solve each transistor at its junction temperature Ta + P*RthJA (--thermal=false: at the ambient)"},
 			&cli.BoolFlag{Name: "corners", Value: true, Usage: "also judge the hFE, ambient, supply and resistor corners (--corners=false: scenarios at nominal values only)"},
@@ -125,7 +125,17 @@ func loadRuleSets(c *cli.Context) (*rules.RuleSet, error) {
 			return nil, badInput(fmt.Errorf("biaslint: --set %s: no such parameter in the rule set (see 'biaslint rules')", k))
 		}
 	}
-	return rules.Combine(out...), nil
+	rs := rules.Combine(out...)
+	// Notes about the rule-set files (old key names, renamed rule ids)
+	// go to standard error, each once, so that reports stay as they were.
+	seen := map[string]bool{}
+	for _, n := range rs.Notes {
+		if msg := n.Error(); !seen[msg] {
+			seen[msg] = true
+			fmt.Fprintln(c.App.ErrWriter, msg)
+		}
+	}
+	return rs, nil
 }
 
 // idList splits repeated and comma-separated rule ids.
@@ -298,6 +308,9 @@ func (run *checkRun) one(c *cli.Context, circ *netlist.Circuit, opt checks.Optio
 	}
 	findings = rules.ApplyWaivers(findings, waivers, run.set.RuleIDs())
 	notes := append(append([]*netlist.Error(nil), circ.Notes...), an.Notes...)
+	if opt.Board != nil {
+		notes = append(notes, opt.Board.Notes...)
+	}
 	if run.fixes {
 		var st fix.Stats
 		findings, st = fix.SearchStats(circ, findings, run.judge(opt), fix.Options{MaxWork: checkFixWork(len(an.Cases))})

@@ -100,15 +100,91 @@ func contains(list []string, s string) bool {
 	return false
 }
 
-// The demo board is designed to be clean: the default rule set finds no
-// warning or error on it.
-func TestDemoBoardClean(t *testing.T) {
+// The demo's first revision carries five mistakes of different kinds,
+// each explained with a hand estimate in rulesets/demo/bench-logger-rev-a.cir;
+// check --demo finds each on its device, once, and nothing on the stages
+// that are right. The corrected revision B has no findings at all.
+func TestDemoRevisions(t *testing.T) {
 	r, code := checkJSONOf(t, "--demo")
-	if code != exitOK {
-		t.Errorf("exit status %d, want 0", code)
+	if code != exitFindings {
+		t.Errorf("check --demo: exit %d, want 1 (findings)", code)
 	}
-	if r.Summary["error"] != 0 || r.Summary["warning"] != 0 {
-		t.Errorf("demo board: %d errors, %d warnings; want none: %+v", r.Summary["error"], r.Summary["warning"], r.Results)
+	want := map[string]string{
+		"weak-switch-drive":       "X1.Q1",
+		"floating-base":           "Q4",
+		"signal-clipping":         "Q1",
+		"power-over-rating":       "Q6",
+		"vbe-reverse-over-rating": "X2.Q1",
+	}
+	got := map[string]string{}
+	for _, x := range r.Results[0].Findings {
+		if _, dup := got[x.Rule]; dup {
+			t.Errorf("%s found twice", x.Rule)
+		}
+		got[x.Rule] = x.Device
+		if want[x.Rule] != x.Device {
+			t.Errorf("unexpected finding %s on %s (%s)", x.Rule, x.Device, x.Message)
+		}
+	}
+	for rule, dev := range want {
+		if got[rule] != dev {
+			t.Errorf("rev A: %s not found on %s", rule, dev)
+		}
+	}
+	// The power-over-rating of Q6 is a hot-corner problem only: every case
+	// it is found in is at the 70 C ambient.
+	out, _, _ := runCLI(t, "check", "--format", "json", "--demo")
+	var full struct {
+		Results []struct {
+			Findings []struct {
+				Rule  string   `json:"rule"`
+				Cases []string `json:"cases"`
+			} `json:"findings"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal([]byte(out), &full); err != nil {
+		t.Fatal(err)
+	}
+	for _, x := range full.Results[0].Findings {
+		if x.Rule != "power-over-rating" {
+			continue
+		}
+		for _, c := range x.Cases {
+			if !strings.Contains(c, "ambient 70 C") {
+				t.Errorf("power-over-rating in case %q, want only 70 C corners", c)
+			}
+		}
+	}
+
+	r, code = checkJSONOf(t, "--demo-rev", "B")
+	if code != exitOK || r.Summary["error"]+r.Summary["warning"]+r.Summary["note"] != 0 {
+		t.Errorf("rev B: exit %d, %+v; want no findings", code, r.Summary)
+	}
+}
+
+// "biaslint demo" writes each revision to a file that checks the same as
+// the built-in one.
+func TestDemoWrite(t *testing.T) {
+	dir := t.TempDir()
+	for _, rev := range []string{"A", "B"} {
+		path := filepath.Join(dir, "board-"+rev+".cir")
+		out, errs, code := runCLI(t, "demo", "--rev", rev, "--output", path)
+		if code != exitOK || !strings.Contains(out, "check it with") {
+			t.Fatalf("demo --rev %s: exit %d %q %q", rev, code, out, errs)
+		}
+		builtin, _, c1 := runCLI(t, "check", "--format", "json", "--demo-rev", rev)
+		copied, _, c2 := runCLI(t, "check", "--format", "json", path)
+		name := map[string]string{"A": "bench-logger-rev-a.cir", "B": "bench-logger.cir"}[rev]
+		if c1 != c2 || strings.ReplaceAll(builtin, name, path) != copied {
+			t.Errorf("rev %s: the written copy checks differently from the built-in one", rev)
+		}
+	}
+	printed, _, _ := runCLI(t, "demo")
+	if !strings.HasPrefix(printed, "Bench logger interface board, rev A") {
+		t.Errorf("demo prints %q first, want revision A", firstLine(printed))
+	}
+	if _, errs, code := runCLI(t, "demo", "--rev", "C"); code != exitBadInput || !strings.Contains(errs, "revisions A and B") {
+		t.Errorf("demo --rev C: exit %d %q", code, errs)
 	}
 }
 
@@ -133,9 +209,10 @@ func TestGoldenReports(t *testing.T) {
 		args   []string
 	}{
 		{"check-weak-switch.txt", []string{"check", "testdata/check/weak-switch-drive.bad.cir"}},
-		{"check-overdissipation.json", []string{"check", "--format", "json", "testdata/check/overdissipation.bad.cir"}},
-		{"check-vbe-reverse.sarif", []string{"check", "--format", "sarif", "testdata/check/vbe-reverse-overstress.bad.cir"}},
+		{"check-power-over-rating.json", []string{"check", "--format", "json", "testdata/check/power-over-rating.bad.cir"}},
+		{"check-vbe-reverse.sarif", []string{"check", "--format", "sarif", "testdata/check/vbe-reverse-over-rating.bad.cir"}},
 		{"check-demo.txt", []string{"check", "--demo", "--notes"}},
+		{"check-demo-rev-b.txt", []string{"check", "--demo-rev", "B", "--notes"}},
 		{"op-demo.txt", []string{"op", "--demo"}},
 		{"op-demo.json", []string{"op", "--demo", "--format", "json"}},
 		{"rules-default.txt", []string{"rules"}},
@@ -182,9 +259,11 @@ func TestWaivers(t *testing.T) {
 // The JSON report lists each transistor's junction temperature: at the
 // nominal case Tj = Ta + P*RthJA (common practice), with the demo's
 // *@part RthJA of 250 K/W and the 25 C default ambient, and the hottest
-// junction at the 70 C ambient corner (0:70 C by default).
+// junction at the 70 C ambient corner (0:70 C by default). The corrected
+// revision B of the demo is used, where every junction has a stable
+// temperature.
 func TestJunctionTemperatureReported(t *testing.T) {
-	out, _, _ := runCLI(t, "check", "--format", "json", "--demo")
+	out, _, _ := runCLI(t, "check", "--format", "json", "--demo-rev", "B")
 	var r struct {
 		Results []struct {
 			BJTs []struct {
@@ -199,8 +278,8 @@ func TestJunctionTemperatureReported(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
 	}
-	if len(r.Results) != 1 || len(r.Results[0].BJTs) != 6 {
-		t.Fatalf("want 6 transistors of the demo board, got %+v", r.Results)
+	if len(r.Results) != 1 || len(r.Results[0].BJTs) != 7 {
+		t.Fatalf("want 7 transistors of the demo board, got %+v", r.Results)
 	}
 	for _, q := range r.Results[0].BJTs {
 		// The electro-thermal fixed point settles to 1 mK steps, so Tj

@@ -55,9 +55,11 @@ func TestHelpCommand(t *testing.T) {
 	if !strings.Contains(flagHelp, "--fail-on") {
 		t.Errorf("check --help does not list --fail-on")
 	}
-	out, _, code = runCLI(t, "help")
-	if code != exitOK || !strings.Contains(out, "completion") || !strings.Contains(out, "version") {
-		t.Errorf("help: exit %d, %q", code, out)
+	for _, args := range [][]string{{"help"}, {"--help"}, {"-h"}, {}} {
+		out, errs, code := runCLI(t, args...)
+		if code != exitOK || !strings.Contains(out, "completion") || !strings.Contains(out, "--version") {
+			t.Errorf("biaslint %v: exit %d, %q %q", args, code, out, errs)
+		}
 	}
 	out, errs, code = runCLI(t, "help", "chekc")
 	if code != exitBadInput || out != "" || !strings.Contains(errs, `did you mean "check"?`) {
@@ -245,3 +247,38 @@ func TestColourTablesAlign(t *testing.T) {
 }
 
 var ansiStrip = regexp.MustCompile("\x1b\\[[0-9;]*m")
+
+// Older names keep working with a note: the annotation key power= (now
+// power_rating=), a renamed rule id in --only and in a waiver, and the
+// rule-set keys severity/severities (notes on standard error).
+func TestOldNamesStillRead(t *testing.T) {
+	defer func(r io.Reader) { stdin = r }(stdin)
+	src := "Lamp driver with old annotation keys\nV1 vcc 0 12\nRL vcc c 10\n*@device RL power=5\nVB b 0 PULSE(0 5 0 1u 1u 1m 2m)\nRB b bq 470\nQ1 c bq 0 QL\n.model QL NPN (BF=100)\n*@waive overdissipation Q1 lamp driver on a heat sink\n.end\n"
+	stdin = strings.NewReader(src)
+	out, errs, code := runCLI(t, "check", "--notes", "-")
+	if code == exitBadInput {
+		t.Fatalf("exit 2: %s", errs)
+	}
+	if !strings.Contains(out, `"power" is now called "power_rating"`) {
+		t.Errorf("no note about power=:\n%s", out)
+	}
+	if strings.Contains(out, "waiver-unknown-rule") {
+		t.Errorf("the waiver of the old id overdissipation is not matched to power-over-rating:\n%s", out)
+	}
+	if _, errs, code := runCLI(t, "check", "--only", "vce-overstress,overdissipation", "--demo"); code == exitBadInput {
+		t.Errorf("--only with old ids: exit 2: %s", errs)
+	}
+	dir := t.TempDir()
+	set := filepath.Join(dir, "old.yaml")
+	os.WriteFile(set, []byte("name: old\nextends: default\nseverities:\n  floating-base: error\nrules:\n  - id: hot-junction\n    severity: warning\n    subject: transistor\n    when: tj > 100\n    message: hot\n"), 0o644)
+	_, errs, code = runCLI(t, "check", "--ruleset", set, "--demo")
+	if code == exitBadInput {
+		t.Fatalf("old rule set: exit 2: %s", errs)
+	}
+	for _, want := range []string{`note: the section "severities" is now called "levels"`, `note: the rule key "severity" is now called "level"`,
+		`note: rule "hot-junction" is now called "tj-over-limit"`} {
+		if !strings.Contains(errs, want) {
+			t.Errorf("stderr lacks %q:\n%s", want, errs)
+		}
+	}
+}

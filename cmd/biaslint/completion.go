@@ -84,6 +84,8 @@ func flagChoices(cmd, flag string) []string {
 		return []string{"uniform", "normal"}
 	case "ruleset":
 		return rulesets.Names() // or a file: both are offered
+	case "rev", "demo-rev":
+		return []string{"A", "B"}
 	}
 	return nil
 }
@@ -103,7 +105,7 @@ func completionModel(app *cli.App) []compCommand {
 		}
 		cc := compCommand{Name: cmd.Name, Usage: cmd.Usage}
 		switch cmd.Name {
-		case "check", "op", "report", "plot", "demo":
+		case "check", "op", "report", "plot":
 			cc.Files = true
 		case "completion":
 			cc.Words = []string{"bash", "zsh", "fish"}
@@ -259,7 +261,7 @@ func zshCompletion(cmds []compCommand) string {
 			if f.Value {
 				switch {
 				case len(f.Choices) > 0 && f.File:
-					action = fmt.Sprintf(":value:{_values value %s; _files}", strings.Join(f.Choices, " "))
+					action = fmt.Sprintf(`:value:_alternative "names:built-in:(%s)" "files:file:_files"`, strings.Join(f.Choices, " "))
 				case len(f.Choices) > 0:
 					action = fmt.Sprintf(":value:(%s)", strings.Join(f.Choices, " "))
 				case f.File:

@@ -19,7 +19,7 @@ func TestDialects(t *testing.T) {
 		want []string
 	}{
 		{"export", []string{"check", "--notes", "testdata/dialect/export.cir"},
-			[]string{`option search="models" is not used`, `"lib\Stage.inc" is read as "lib/stage.inc"`, `each '\' is taken as '/'`, "GMIN leak", "1 transistor, 0 errors"}},
+			[]string{`option search="models" is not used`, `"lib\Stage.inc" is read as "lib/stage.inc"`, `each '\' is taken as '/'`, "GMIN leak", "1 transistor, ", " cases judged, 0 errors"}},
 		{"spice2", []string{"check", "--notes", "testdata/dialect/spice2.cir"},
 			[]string{"circuit at 27.0 C (from the netlist's .temp)", "(temp 70 C)", "option ITL1=300 is not used"}},
 		{"handtyped", []string{"check", "testdata/dialect/handtyped.cir"},

@@ -127,7 +127,7 @@ X2 bb vcc drv
 RB ctl b 47k
 RBE b 0 100k
 RLAMP sup c 120
-*@device RLAMP power=2
+*@device RLAMP power_rating=2
 Q1 c b 0 BC337-25
 .model BC337-25 NPN (IS=1e-14 BF=250)
 .ends
@@ -215,7 +215,7 @@ func twentyDrivers() string {
 	var b strings.Builder
 	b.WriteString("twenty relay drivers, base resistors too large\nVCC vcc 0 12\n")
 	for i := range 20 {
-		fmt.Fprintf(&b, "VP%d p%d 0 PULSE(0 3.3 0 1u 1u 5m 10m)\nRB%d p%d b%d 47k\nRBE%d b%d 0 100k\nRC%d vcc c%d 120\n*@device RC%d power=2\nQ%d c%d b%d 0 BC337-25\n",
+		fmt.Fprintf(&b, "VP%d p%d 0 PULSE(0 3.3 0 1u 1u 5m 10m)\nRB%d p%d b%d 47k\nRBE%d b%d 0 100k\nRC%d vcc c%d 120\n*@device RC%d power_rating=2\nQ%d c%d b%d 0 BC337-25\n",
 			i, i, i, i, i, i, i, i, i, i, i, i, i)
 	}
 	b.WriteString(".model BC337-25 NPN (IS=1e-14 BF=250)\n.end\n")
@@ -254,7 +254,7 @@ func TestFixIncludedFile(t *testing.T) {
 	if err := os.WriteFile(main, []byte("panel lamp driver\nVCC vcc 0 12\nVA a 0 PULSE(0 3.3 0 1u 1u 5m 10m)\n.include driver.inc\nX1 a vcc drv\n.end\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	lib := ".subckt drv ctl sup\nRB ctl b 47k\nRBE b 0 100k\nRLAMP sup c 120\n*@device RLAMP power=2\nQ1 c b 0 BC337-25\n.model BC337-25 NPN (IS=1e-14 BF=250)\n.ends\n"
+	lib := ".subckt drv ctl sup\nRB ctl b 47k\nRBE b 0 100k\nRLAMP sup c 120\n*@device RLAMP power_rating=2\nQ1 c b 0 BC337-25\n.model BC337-25 NPN (IS=1e-14 BF=250)\n.ends\n"
 	if err := os.WriteFile(inc, []byte(lib), 0o644); err != nil {
 		t.Fatal(err)
 	}

@@ -32,7 +32,7 @@ const initRuleSet = `# A team rule set for biaslint, written by 'biaslint init'.
 #               or be a percentage ("80%"). A parameter of the default set
 #               keeps its unit; only its value changes here.
 #   disable     ids of default rules to switch off
-#   severities  a default rule's severity: error, warning or note
+#   levels      a default rule's level: error, warning or note
 #   rules       new rules (or a default rule's id, to replace that rule)
 
 name: team
@@ -46,30 +46,30 @@ parameters:
   vceo_share: {value: 80%, doc: "VCE at most 80 % of VCEO (team derating)."}
   pd_share: {value: 60%, doc: "Power at most 60 % of Pd(Ta) (team derating)."}
   # A new parameter for the rule below.
-  team_tj_max:
+  tj_limit:
     value: 100
     unit: C
     doc: Highest junction temperature our boards allow in any case (team guideline).
 
 # disable: [unlimited-base-drive]
-# severities:
+# levels:
 #   floating-base: error
 
 rules:
   # An example rule. 'when' is true for a violation; 'value' and 'limit'
   # give the report its "value against limit"; {EXPR:UNIT} placeholders in
   # the message print through biaslint's engineering notation.
-  - id: team-junction-temperature
-    severity: warning
+  - id: tj-over-limit
+    level: warning
     subject: transistor
-    when: tj > param.team_tj_max
-    measure: tj - param.team_tj_max
+    when: tj > param.tj_limit
+    measure: tj - param.tj_limit
     value: tj
-    limit: param.team_tj_max
+    limit: param.tj_limit
     unit: C
     message: >-
-      {name} runs its junction at about {tj:C}, above our limit of
-      {param.team_tj_max:C} ({power:W} at {ambient:C} ambient)
+      {name} runs its junction at about {tj:C}, {tj - param.tj_limit:K}
+      above our limit of {param.tj_limit:C} ({power:W} at {ambient:C} ambient)
     rationale: >-
       Our guideline keeps junctions well below their rating so that parts
       last; failure rates rise steeply with temperature (common practice).
@@ -104,7 +104,7 @@ ambient: 25
 ## resistor's power rating and tolerance, a source that drives (driver).
 # devices:
 #   Q1: {role: linear}
-#   RLOAD: {power: 1, tol: 1%}
+#   RLOAD: {power_rating: 1, tol: 1%}
 #   VMCU: {driver: yes}
 
 ## Waivers: a finding accepted on purpose, with the reason a reviewer reads.

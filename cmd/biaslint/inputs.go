@@ -15,9 +15,28 @@ import (
 	"github.com/biaslint/biaslint/rulesets/demo"
 )
 
-var demoFlag = &cli.BoolFlag{
-	Name:  "demo",
-	Usage: "run on the demo board built into the binary instead of FILE arguments",
+var (
+	demoFlag = &cli.BoolFlag{
+		Name:  "demo",
+		Usage: "run on the demo board built into the binary instead of FILE arguments (revision A, with five mistakes; see 'biaslint demo')",
+	}
+	demoRevFlag = &cli.StringFlag{
+		Name:  "demo-rev",
+		Usage: "run on this `REVISION` of the demo board: A (five mistakes) or B (corrected); implies --demo",
+	}
+)
+
+// demoRevision is the demo revision a command asked for, and whether it
+// asked for the demo at all.
+func demoRevision(c *cli.Context) (demo.Revision, bool, error) {
+	if c.IsSet("demo-rev") {
+		r, err := demo.Lookup(c.String("demo-rev"))
+		if err != nil {
+			return r, true, badInput(fmt.Errorf("biaslint: --demo-rev: %v", err))
+		}
+		return r, true, nil
+	}
+	return demo.First(), c.Bool("demo"), nil
 }
 
 // input is one netlist to read: a file on disk, the embedded demo, or
@@ -78,14 +97,21 @@ func fileArgs(c *cli.Context) []string {
 // arguments may be files, directories or globs (see expandArgs).
 func inputsOf(c *cli.Context) ([]input, error) {
 	args := fileArgs(c)
-	if c.Bool("demo") {
+	rev, useDemo, err := demoRevision(c)
+	if err != nil {
+		return nil, err
+	}
+	if useDemo {
 		if len(args) > 0 {
 			return nil, badInput(errors.New("biaslint: --demo takes no FILE arguments"))
 		}
-		return []input{{name: demo.Name, opts: &netlist.LoadOptions{ReadFile: demoFile}}}, nil
+		return []input{{name: rev.Name, opts: &netlist.LoadOptions{ReadFile: demoFile}}}, nil
+	}
+	if len(args) == 0 && c.Command.Name != "plot" {
+		args = projectFiles(c) // the project file's "files", if any
 	}
 	if len(args) == 0 {
-		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, or use --demo)", c.Command.Name))
+		return nil, badInput(fmt.Errorf("biaslint %s: no netlist given (name one or more FILEs, use --demo, or list files: in %s)", c.Command.Name, ProjectFile))
 	}
 	dirs, err := includeDirs(c)
 	if err != nil {
@@ -153,10 +179,12 @@ func includeHint(dir string) string {
 	return "pass --include-dir " + dir
 }
 
-// demoFile serves the embedded demo netlist and nothing else.
+// demoFile serves the embedded demo netlists and nothing else.
 func demoFile(name string) ([]byte, error) {
-	if name == demo.Name {
-		return demo.Netlist, nil
+	for _, r := range demo.Revisions {
+		if name == r.Name {
+			return r.Netlist, nil
+		}
 	}
 	return nil, &fs.PathError{Op: "open", Path: name, Err: fs.ErrNotExist}
 }

@@ -123,7 +123,10 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		Writer:          stdout,
 		ErrWriter:       stderr,
 		HideHelpCommand: true, // ours is helpCommand
-		Action:          noCommand,
+		// With a command named help of our own the library adds no
+		// --help flag to the app: add it.
+		Flags:  []cli.Flag{cli.HelpFlag},
+		Action: noCommand,
 		Commands: []*cli.Command{
 			checkCommand(),
 			opCommand(),
@@ -132,6 +135,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			reportCommand(),
 			plotCommand(),
 			initCommand(),
+			demoCommand(),
 			fixCommand(),
 			mergeCommand(),
 			versionCommand(),

@@ -27,6 +27,7 @@ func opCommand() *cli.Command {
 			colorFlag,
 			outputFlag,
 			demoFlag,
+			demoRevFlag,
 		},
 		Action: runOp,
 	}
@@ -42,7 +43,7 @@ type opFile struct {
 	TemperatureFrom string             `json:"temperature_from"`
 	Method          string             `json:"method"`
 	Iterations      int                `json:"iterations"`
-	Nodes           map[string]float64 `json:"nodes"`
+	Nodes           map[string]float64 `json:"nets"`
 	Sources         map[string]float64 `json:"sources"`
 	BJTs            []opBJT            `json:"bjts"`
 	// Physical is false when the solution satisfies the solver's
@@ -266,7 +267,7 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		}
 		w.WriteString("\n")
 		tw := report.NewTabWriter(w)
-		fmt.Fprintln(tw, "  node\tvoltage")
+		fmt.Fprintln(tw, "  net\tvoltage")
 		for _, n := range r.nodeOrder {
 			fmt.Fprintf(tw, "  %s\t%s\n", report.Printable(n), units.Format(r.Nodes[n], "V"))
 		}

@@ -29,12 +29,16 @@ func plotCommand() *cli.Command {
 // (none with --demo).
 func plotArgs(c *cli.Context) (string, error) {
 	want := 2
-	if c.Bool("demo") {
+	_, useDemo, err := demoRevision(c)
+	if err != nil {
+		return "", err
+	}
+	if useDemo {
 		want = 1
 	}
 	if c.NArg() != want {
 		return "", badInput(fmt.Errorf("biaslint plot: name a DEVICE and %s (see 'biaslint plot --help')",
-			map[bool]string{true: "no FILE with --demo", false: "one netlist FILE"}[c.Bool("demo")]))
+			map[bool]string{true: "no FILE with --demo", false: "one netlist FILE"}[useDemo]))
 	}
 	return c.Args().First(), nil
 }
@@ -63,10 +67,11 @@ func runPlot(c *cli.Context) error {
 		return badInput(fmt.Errorf("biaslint plot: %v", err))
 	}
 	var out bytes.Buffer
+	marks := report.MarksOf(run.report.Files[0].Findings, pl.Device)
 	if ext == ".png" {
-		err = report.PlanePNG(&out, pl)
+		err = report.PlanePNG(&out, pl, marks...)
 	} else {
-		err = report.PlaneSVG(&out, pl)
+		err = report.PlaneSVG(&out, pl, marks...)
 	}
 	if err != nil {
 		return badInput(fmt.Errorf("biaslint plot: %v", err))

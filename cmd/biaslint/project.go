@@ -29,6 +29,16 @@ const ProjectFile = "biaslint.yaml"
 // maxProjectFile bounds the project file's size in bytes.
 const maxProjectFile = 1 << 20
 
+// projectFilesKey holds, in the app's metadata, the project file's
+// "files": the netlists, folders or globs to check when no FILE is given.
+const projectFilesKey = "project-files"
+
+// projectFiles returns the project file's "files", if any.
+func projectFiles(c *cli.Context) []string {
+	v, _ := c.App.Metadata[projectFilesKey].([]string)
+	return v
+}
+
 // maxProjectLevels bounds the folders searched upward from the current one.
 const maxProjectLevels = 64
 
@@ -47,10 +57,10 @@ var (
 // describe the project rather than one run. pathKeys hold file names,
 // resolved against the project file's folder.
 var (
-	projectKeys = []string{"ruleset", "set", "only", "skip", "parts", "board", "fail-on", "ambient",
+	projectKeys = []string{"files", "ruleset", "set", "only", "skip", "parts", "board", "fail-on", "ambient",
 		"ambient-range", "corners", "thermal", "monte-carlo", "seed", "distribution",
 		"include-dir", "file-timeout", "file-elements", "file-mib"}
-	pathKeys = map[string]bool{"parts": true, "board": true, "include-dir": true}
+	pathKeys = map[string]bool{"files": true, "parts": true, "board": true, "include-dir": true}
 )
 
 // findProjectFile looks for ProjectFile in dir and its parents, stopping
@@ -160,7 +170,7 @@ func readProjectFile(path, shown string) ([]projectSetting, error) {
 					s.values = append(s.values, v.Content[j].Value+"="+val)
 				}
 			}
-		case v.Kind == yaml.SequenceNode && (key == "ruleset" || key == "only" || key == "skip" || key == "include-dir"):
+		case v.Kind == yaml.SequenceNode && (key == "files" || key == "ruleset" || key == "only" || key == "skip" || key == "include-dir"):
 			for _, item := range v.Content {
 				if val, ok := scalar(item); ok {
 					s.values = append(s.values, val)
@@ -249,6 +259,14 @@ func applyProjectFile(c *cli.Context) error {
 		given[strings.TrimSpace(k)] = true
 	}
 	for _, s := range settings {
+		if s.key == "files" {
+			// The netlists to check when the command line names none.
+			if c.App.Metadata == nil {
+				c.App.Metadata = map[string]any{}
+			}
+			c.App.Metadata[projectFilesKey] = s.values
+			continue
+		}
 		if !has[s.key] || (s.key != "set" && c.IsSet(s.key)) {
 			continue
 		}
@@ -276,13 +294,14 @@ func projectFileTemplate() string {
 # 'biaslint check', 'report', 'plot', 'rules' and 'explain' read it when
 # they run in this folder or any folder below it (up to the repository
 # root, the folder holding .git), so a team commits it once and CI runs
-# plain 'biaslint check boards/'. --config FILE reads another one,
+# plain 'biaslint check' (on the files named below, or on those given). --config FILE reads another one,
 # --no-config none. A flag on the command line wins over this file.
 #
 # Every key is a flag of 'biaslint check' (see 'biaslint help check');
 # file names are relative to this file's folder. Known keys:
 #   ` + strings.Join(keys, ", ") + `
 
+# files: [boards/]           # what plain 'biaslint check' checks
 ruleset: [` + initRuleSetFile + `]
 board: ` + initBoardFile + `
 fail-on: error

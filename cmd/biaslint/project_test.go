@@ -165,3 +165,22 @@ func TestInitProjectPickedUp(t *testing.T) {
 		t.Errorf("second init: exit %d, %q", code, errs)
 	}
 }
+
+// With files: in the project file, plain "biaslint check" (no FILE) checks
+// them, relative to the project file, from any folder below it; FILE
+// arguments win.
+func TestProjectFileFiles(t *testing.T) {
+	top := projectTree(t, map[string]string{
+		"biaslint.yaml": "files: [boards]\nfail-on: warning\n",
+		"other/x.cir":   "Divider only\nV1 a 0 5\nR1 a b 1k\nR2 b 0 1k\n.end\n",
+	})
+	t.Chdir(filepath.Join(top, "other"))
+	r, code := checkJSONOf(t)
+	if code != exitFindings || len(r.Results) != 1 || !strings.HasSuffix(r.Results[0].File, filepath.Join("boards", "bench", "pin.cir")) {
+		t.Errorf("plain check: exit %d, %+v; want boards/bench/pin.cir checked, exit 1", code, r.Results)
+	}
+	r, code = checkJSONOf(t, "x.cir")
+	if code != exitOK || len(r.Results) != 1 || r.Results[0].File != "x.cir" {
+		t.Errorf("check x.cir: exit %d, %+v; want only x.cir", code, r.Results)
+	}
+}

@@ -61,7 +61,7 @@ func TestReportCommand(t *testing.T) {
 	}
 	// The demo report goes to stdout without --output.
 	stdout, _, code = runCLI(t, "report", "--demo")
-	if code != exitOK || !strings.HasPrefix(stdout, "<!DOCTYPE html>") || strings.Count(stdout, `<svg class="plane"`) != 6 {
+	if code != exitOK || !strings.HasPrefix(stdout, "<!DOCTYPE html>") || strings.Count(stdout, `<svg class="plane"`) != 7 {
 		t.Errorf("report --demo: exit %d, %d plots", code, strings.Count(stdout, `<svg class="plane"`))
 	}
 }
@@ -130,10 +130,10 @@ func TestInit(t *testing.T) {
 	if p, ok := rs.Param("vceo_share"); !ok || p.Value != 0.8 {
 		t.Errorf("vceo_share = %+v, want 0.8", p)
 	}
-	if rs.Rule("team-junction-temperature") == nil {
+	if rs.Rule("tj-over-limit") == nil {
 		t.Error("the example rule is missing")
 	}
-	if rs.Rule("vce-overstress") == nil || len(rs.Extends) == 0 || rs.Extends[0] != "default" {
+	if rs.Rule("vce-over-rating") == nil || len(rs.Extends) == 0 || rs.Extends[0] != "default" {
 		t.Errorf("the default rules are not inherited (extends %v)", rs.Extends)
 	}
 	// The board template parses, and so does every example in it once

@@ -9,6 +9,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"github.com/biaslint/biaslint/rules"
+	"github.com/biaslint/biaslint/rules/report"
 )
 
 func rulesCommand() *cli.Command {
@@ -44,7 +45,7 @@ func writeRuleSet(w *bytes.Buffer, rs *rules.RuleSet) {
 	}
 	w.WriteString("\nrules\n")
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "  id\tseverity\tsubject\tparameters\tfrom")
+	fmt.Fprintln(tw, "  id\tlevel\tsubject\tparameters\tfrom")
 	for _, r := range rs.Rules {
 		ps := "-"
 		if len(r.Params) > 0 {
@@ -69,16 +70,12 @@ func writeRuleSet(w *bytes.Buffer, rs *rules.RuleSet) {
 	tw.Flush()
 }
 
-func firstLine(s string) string {
-	s = strings.Join(strings.Fields(s), " ")
-	if i := strings.Index(s, ". "); i >= 0 {
-		return s[:i+1]
-	}
-	return s
-}
+// firstLine is a parameter's doc cut to its first sentence, for the
+// one-line tables.
+func firstLine(s string) string { return report.FirstSentence(s) }
 
 func writeFacts(w *bytes.Buffer) {
-	for _, s := range []rules.Subject{rules.SubjectTransistor, rules.SubjectResistor, rules.SubjectNode} {
+	for _, s := range []rules.Subject{rules.SubjectTransistor, rules.SubjectResistor, rules.SubjectNet} {
 		fmt.Fprintf(w, "%s facts\n", s)
 		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 		for _, f := range rules.Facts(s) {
@@ -144,7 +141,10 @@ func writeExplain(w *bytes.Buffer, rs *rules.RuleSet, r *rules.Rule) {
 		fmt.Fprintf(w, "parameters\n")
 		for _, name := range r.Params {
 			if p, ok := rs.Param(name); ok {
-				fmt.Fprintf(w, "  %s = %s  %s\n", p.Name, p.String(), firstLine(p.Doc))
+				fmt.Fprintf(w, "  %s = %s\n", p.Name, p.String())
+				for _, line := range wrap(strings.Join(strings.Fields(p.Doc), " "), 74) {
+					fmt.Fprintf(w, "    %s\n", line)
+				}
 			}
 		}
 	}

@@ -320,8 +320,13 @@ var prefixes = [...]string{"f", "p", "n", "u", "m", "", "k", "M", "G", "T"}
 func Format(v float64, unit string) string { return FormatDigits(v, unit, 3) }
 
 // FormatDigits is Format with digits significant digits (clamped to 1..15).
+// Temperatures and shares take no prefix: units C, K, K/W and % print
+// the number as Number does ("70.2 C", "12.5 K", "0.500 %").
 func FormatDigits(v float64, unit string, digits int) string {
 	digits = max(1, min(digits, 15))
+	if noPrefix[unit] {
+		return NumberDigits(v, digits) + " " + unit
+	}
 	join := func(num, prefix string) string {
 		if unit == "" {
 			return num + prefix
@@ -374,4 +379,41 @@ func FormatDigits(v float64, unit string, digits int) string {
 	}
 	dec := max(0, digits-intDigits)
 	return join(sign+strconv.FormatFloat(m, 'f', dec, 64), prefixes[idx])
+}
+
+// noPrefix are the units whose values Format prints without an SI prefix:
+// a "millidegree" or a "kilo-percent" reads as a misprint.
+var noPrefix = map[string]bool{"C": true, "K": true, "K/W": true, "%": true}
+
+// Number prints a dimensionless figure (a gain, a ratio, a forced beta)
+// with three significant digits and no SI prefix: Number(0.0164) =
+// "0.0164", Number(50) = "50.0", Number(212.6) = "213", Number(1500) =
+// "1500". Magnitudes from 1e6 up or below 1e-4 get an exponent
+// ("1.23e+06").
+func Number(v float64) string { return NumberDigits(v, 3) }
+
+// NumberDigits is Number with digits significant digits (clamped to 1..15).
+func NumberDigits(v float64, digits int) string {
+	digits = max(1, min(digits, 15))
+	switch {
+	case math.IsNaN(v):
+		return "NaN"
+	case math.IsInf(v, 1):
+		return "+Inf"
+	case math.IsInf(v, -1):
+		return "-Inf"
+	case v == 0:
+		return "0"
+	}
+	// Round to the significant digits first, so 999.96 is 1000 and its
+	// exponent is that of the rounded value.
+	r, err := strconv.ParseFloat(strconv.FormatFloat(v, 'e', digits-1, 64), 64)
+	if err != nil {
+		r = v
+	}
+	e := int(math.Floor(math.Log10(math.Abs(r))))
+	if e < -4 || e >= 6 {
+		return strconv.FormatFloat(r, 'e', digits-1, 64)
+	}
+	return strconv.FormatFloat(r, 'f', max(0, digits-1-e), 64)
 }

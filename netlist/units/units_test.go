@@ -202,6 +202,27 @@ func TestRoundTrip(t *testing.T) {
 	}
 }
 
+// Dimensionless figures print with three significant digits and no SI
+// prefix; temperatures and shares never take a prefix. (Rounding to
+// significant digits as in any numerical-methods text; the cases are
+// ours.)
+func TestNumberAndNoPrefixUnits(t *testing.T) {
+	for _, tc := range []struct {
+		got, want string
+	}{
+		{Number(0.0164), "0.0164"}, {Number(16.4e-3), "0.0164"}, {Number(50), "50.0"}, {Number(212.6), "213"},
+		{Number(1500), "1500"}, {Number(999.96), "1000"}, {Number(-0.5), "-0.500"}, {Number(1.234e6), "1.23e+06"},
+		{Number(3e-5), "3.00e-05"}, {Number(0), "0"}, {Number(1), "1.00"},
+		{Format(70.24, "C"), "70.2 C"}, {Format(0.05, "C"), "0.0500 C"}, {Format(12.5, "K"), "12.5 K"},
+		{Format(0.5, "%"), "0.500 %"}, {Format(1500, "C"), "1500 C"}, {Format(250, "K/W"), "250 K/W"},
+		{Format(4700, ""), "4.70k"}, {Format(1.02e-3, "A"), "1.02 mA"},
+	} {
+		if tc.got != tc.want {
+			t.Errorf("got %q, want %q", tc.got, tc.want)
+		}
+	}
+}
+
 // Read says which letters it took as the scale suffix and which it
 // ignored as a unit, so callers can tell the user (SPICE suffix rules:
 // M milli, MEG mega, F femto; letters after the suffix ignored).

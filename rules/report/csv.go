@@ -17,7 +17,7 @@ var CSVHeader = []string{"file", "line", "column", "severity", "rule", "device",
 // SummaryHeader names the columns of SummaryCSV, one row per file.
 // status is the file's Status and problem its first input error (or why
 // it was left out), empty for a checked file.
-var SummaryHeader = []string{"file", "title", "transistors", "errors", "warnings", "notes", "waived", "top_rule", "status", "problem"}
+var SummaryHeader = []string{"file", "title", "transistors", "errors", "warnings", "notes", "waived", "most_frequent_rule", "status", "problem"}
 
 // csvNumber writes an SI value in full precision (shortest form that reads
 // back exactly), so a spreadsheet gets the number, not a rounded display.
@@ -90,7 +90,7 @@ func SummaryCSV(w io.Writer, r *Report) error {
 // transistors, errors, warnings, notes and the rule that fired most, then
 // a totals row.
 func SummaryTable(w io.Writer, r *Report) error {
-	head := []string{"file", "transistors", "errors", "warnings", "notes", "fired most"}
+	head := []string{"file", "transistors", "errors", "warnings", "notes", "most frequent rule"}
 	// A status column only when some file was not checked.
 	status := false
 	for i := range r.Files {
@@ -135,7 +135,7 @@ func SummaryTable(w io.Writer, r *Report) error {
 		for j, cell := range row {
 			pad := width[j] - len([]rune(cell))
 			switch {
-			case j == 0 || j >= 5: // file, fired most, status: text
+			case j == 0 || j >= 5: // file, most frequent rule, status: text
 				b.WriteString(cell)
 				if j < len(row)-1 {
 					b.WriteString(strings.Repeat(" ", pad))

@@ -71,7 +71,7 @@ func TestSummaryCSV(t *testing.T) {
 	if err := SummaryCSV(&b, batchSample()); err != nil {
 		t.Fatal(err)
 	}
-	want := "file,title,transistors,errors,warnings,notes,waived,top_rule,status,problem\n" +
+	want := "file,title,transistors,errors,warnings,notes,waived,most_frequent_rule,status,problem\n" +
 		"a b/board.cir,,0,1,2,0,1,floating-base,checked,\n" +
 		"'=cmd.cir,\"'-lab 4, group 7\",0,0,1,0,0,cutoff-linear-stage,checked,\n"
 	if b.String() != want {
@@ -93,7 +93,7 @@ func TestSummaryUnchecked(t *testing.T) {
 	if err := SummaryCSV(&b, r); err != nil {
 		t.Fatal(err)
 	}
-	want := "file,title,transistors,errors,warnings,notes,waived,top_rule,status,problem\n" +
+	want := "file,title,transistors,errors,warnings,notes,waived,most_frequent_rule,status,problem\n" +
 		"bad.cir,,0,0,0,0,0,,input-errors,\"bad.cir:3:8: error: bad value \"\"4.7.7k\"\" (and 1 more)\"\n" +
 		"lib.spi,,0,0,0,0,0,,library,\"library (only .subckt, .model, .param or .lib definitions, no circuit): listed, not checked on its own\"\n" +
 		"good.cir,,0,0,0,0,0,,checked,\n"
@@ -104,13 +104,13 @@ func TestSummaryUnchecked(t *testing.T) {
 	if err := SummaryTable(&b, r); err != nil {
 		t.Fatal(err)
 	}
-	wantTable := `file             transistors  errors  warnings  notes  fired most  status
--------------------------------------------------------------------------------
-bad.cir                    0       0         0      0  -           input-errors
-lib.spi                    0       0         0      0  -           library
-good.cir                   0       0         0      0  -           checked
--------------------------------------------------------------------------------
-total (3 files)            0       0         0      0              1 checked
+	wantTable := `file             transistors  errors  warnings  notes  most frequent rule  status
+---------------------------------------------------------------------------------------
+bad.cir                    0       0         0      0  -                   input-errors
+lib.spi                    0       0         0      0  -                   library
+good.cir                   0       0         0      0  -                   checked
+---------------------------------------------------------------------------------------
+total (3 files)            0       0         0      0                      1 checked
 `
 	if b.String() != wantTable {
 		t.Errorf("summary table:\n%s\nwant:\n%s", b.String(), wantTable)
@@ -125,7 +125,7 @@ func TestSummaryTable(t *testing.T) {
 	if err := SummaryTable(&b, batchSample()); err != nil {
 		t.Fatal(err)
 	}
-	want := `file             transistors  errors  warnings  notes  fired most
+	want := `file             transistors  errors  warnings  notes  most frequent rule
 --------------------------------------------------------------------------
 a b/board.cir              0       1         2      0  floating-base
 =cmd.cir                   0       0         1      0  cutoff-linear-stage

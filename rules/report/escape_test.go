@@ -54,7 +54,7 @@ func hostile() *Report {
 				{Rule: "floating-base", Severity: rules.SeverityWarning, Device: "@SUM(1+1)*cmd|' /C calc'!A0", Pos: pos,
 					Scenario: "nominal", Nets: []string{"+cmd", "-2+3", "0"},
 					Message: "-2+3 <b>bold</b> & \x1b]0;title\x07", Fix: "+call the <i>instructor</i>"},
-				{Rule: "vce-overstress", Severity: rules.SeverityError, Device: "<img src=x onerror=alert(1)>", Pos: pos,
+				{Rule: "vce-over-rating", Severity: rules.SeverityError, Device: "<img src=x onerror=alert(1)>", Pos: pos,
 					Scenario: "nominal", HasLimit: true, Value: 48, Limit: 40, Unit: "V", Message: "\tVCE\r too high"},
 				{Rule: "weak-switch-drive", Severity: rules.SeverityWarning, Device: "Q3", Pos: pos, Waived: true,
 					WaiverReason: "\"><svg onload=alert(1)>\r\tfake.cir:1:1: error: forged", WaiverPos: wpos},

@@ -125,7 +125,7 @@ func htmlFindingOf(x rules.Finding) htmlFinding {
 		h.Fix = x.Change.String() + ". " + x.Fix
 	}
 	if x.HasLimit {
-		h.Value = units.Format(x.Value, x.Unit) + " against " + units.Format(x.Limit, x.Unit)
+		h.Value = Figure(x.Value, x.Unit) + " against " + Figure(x.Limit, x.Unit)
 	}
 	if x.Scenario != "" {
 		h.Case = rules.CaseName(x.Scenario, x.Corner)
@@ -212,7 +212,7 @@ func htmlDevices(fileID string, f *File, planes []plane.Plane) []htmlDevice {
 	for j, pl := range planes {
 		d := htmlDevice{ID: fmt.Sprintf("%s-q%d", fileID, j+1), Name: pl.Device, LoadNote: pl.LoadNote}
 		label := fmt.Sprintf("Output plane of %s: IC against VCE with the load line, operating points and safe operating area", pl.Device)
-		svg, err := inlineSVG(pl, label)
+		svg, err := inlineSVG(pl, label, MarksOf(f.Findings, pl.Device)...)
 		if err != nil {
 			d.PlotError = err.Error()
 		} else {
@@ -296,9 +296,36 @@ func htmlMargins(pl plane.Plane, t checks.Transistor, haveFacts bool) []htmlMarg
 	v, at = worst(func(p plane.OpPoint) float64 { return p.Power })
 	out = append(out, row("power against Pd("+units.Format(pl.Ambient, "C")+")", v, at, pl.SOA.Pd, "W"))
 	if haveFacts && !math.IsNaN(t.Tj) {
-		out = append(out, row("Tj against Tj,max", t.Tj, "", t.Rating.TjMax, "C"))
+		out = append(out, tjMargin(t.Tj, t.Ambient, t.Rating.TjMax))
 	}
 	return out
+}
+
+// tjMargin compares the junction temperature with Tj,max. Celsius values
+// do not divide (0 C is no zero of heat), so the share is of the rise
+// the rating allows above the ambient, (Tj - Ta)/(Tj,max - Ta), and the
+// margin Tj,max - Tj is a temperature difference, in kelvin.
+func tjMargin(tj, ta, tjMax float64) htmlMargin {
+	m := htmlMargin{Label: "Tj against Tj,max", Value: units.Format(tj, "C"), Limit: "not rated", Class: "unknown"}
+	if math.IsNaN(tjMax) || math.IsInf(tjMax, 0) {
+		return m
+	}
+	m.Limit = units.Format(tjMax, "C")
+	margin := tjMax - tj
+	m.Share = units.Format(margin, "K") + " below"
+	m.Class = "ok"
+	if margin < 0 {
+		m.Share = units.Format(-margin, "K") + " above"
+		m.Class = "over"
+	}
+	if allowed := tjMax - ta; allowed > 0 && !math.IsNaN(ta) {
+		share := (tj - ta) / allowed
+		m.Share = fmt.Sprintf("%.0f %% of the %s rise; %s", 100*share, units.Format(allowed, "K"), m.Share)
+		if share > 0.8 && share <= 1 {
+			m.Class = "near"
+		}
+	}
+	return m
 }
 
 // htmlGridOf counts each file's unwaived findings per rule, for the rules
@@ -443,7 +470,7 @@ footer { padding: 1rem 2rem 2rem; color: var(--muted); font-size: .8rem; border-
 <dl class="summary">
 <dt>transistors</dt><dd>{{.Transistors}}</dd>
 <dt>findings</dt><dd><span{{if .Counts.Error}} class="count-error"{{end}}>{{plural .Counts.Error "error"}}</span>, <span{{if .Counts.Warning}} class="count-warning"{{end}}>{{plural .Counts.Warning "warning"}}</span>, {{plural .Counts.Note "note"}}, {{.Counts.Waived}} waived</dd>
-{{if .TopRule}}<dt>fired most</dt><dd><code>{{.TopRule}}</code></dd>{{end}}
+{{if .TopRule}}<dt>most frequent rule</dt><dd><code>{{.TopRule}}</code></dd>{{end}}
 <dt>rule set</dt><dd>{{.RuleSet}}</dd>
 {{if .Temp}}<dt>temperature</dt><dd>{{.Temp}} (circuit, nominal case)</dd>{{end}}
 {{if .Amb}}<dt>ambient</dt><dd>{{.Amb}}</dd>{{end}}

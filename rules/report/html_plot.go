@@ -7,6 +7,7 @@ import (
 	"image/color"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -19,11 +20,12 @@ import (
 
 	"github.com/biaslint/biaslint/checks/plane"
 	"github.com/biaslint/biaslint/netlist/units"
+	"github.com/biaslint/biaslint/rules"
 )
 
 // Plot size and the resolution of PNG output.
 const (
-	plotWidth  = 5.2 * vg.Inch
+	plotWidth  = 6.6 * vg.Inch
 	plotHeight = 3.6 * vg.Inch
 	pngDPI     = 144
 )
@@ -89,11 +91,61 @@ func currentScale(ymax float64) (string, float64) {
 	return "A", 1
 }
 
+// Mark is a finding to mark on a plot, at the operating point of its case.
+type Mark struct {
+	// Case is the finding's worst case, "scenario" or "scenario/corner"
+	// (rules.CaseName); Rule its rule id; Severity its severity.
+	Case, Rule, Severity string
+}
+
+// MarksOf lists the unwaived findings on device as plot marks.
+func MarksOf(findings []rules.Finding, device string) []Mark {
+	var out []Mark
+	for _, x := range findings {
+		if x.Waived || x.Device != device || x.Scenario == "" {
+			continue
+		}
+		out = append(out, Mark{Case: rules.CaseName(x.Scenario, x.Corner), Rule: x.Rule, Severity: string(x.Severity)})
+	}
+	return out
+}
+
+// PlanePlot is an output-plane plot with its legend, which is drawn beside
+// the data area rather than over it.
+type PlanePlot struct {
+	Plot   *plot.Plot
+	Legend plot.Legend
+}
+
+// legendGap separates the data area from the legend column.
+const legendGap = 10
+
+// layout splits c into the plot's area and the legend's column at its
+// right, below the title.
+func (f *PlanePlot) layout(c draw.Canvas) (plotArea, legendArea draw.Canvas) {
+	r := f.Legend.Rectangle(c)
+	w := r.Max.X - r.Min.X + 4
+	plotArea = draw.Crop(c, 0, -(w + legendGap), 0, 0)
+	top := f.Plot.Title.Padding + f.Plot.Title.TextStyle.Height(f.Plot.Title.Text) + 6
+	legendArea = draw.Crop(c, c.Max.X-c.Min.X-w, -4, 0, -top)
+	return plotArea, legendArea
+}
+
+// Draw draws the plot in c with the legend in a column at its right,
+// outside the data area.
+func (f *PlanePlot) Draw(c draw.Canvas) {
+	plotArea, legendArea := f.layout(c)
+	f.Plot.Draw(plotArea)
+	f.Legend.Draw(legendArea)
+}
+
 // PlaneFigure builds the output-plane plot of one transistor: the safe
 // area shaded and outlined, the saturation edge, the load line, the swing
-// trajectory and one marker per case, with a legend and labelled axes (VCE
-// in V, IC in A, mA or uA).
-func PlaneFigure(pl plane.Plane) (*plot.Plot, error) {
+// trajectory, one marker per case and a ring with the rule id at the
+// case of each mark, with a legend beside the data and labelled axes (VCE
+// in V, IC in A, mA or uA) with six to ten labelled ticks each. The data
+// area keeps a margin inside its axes, so points on its edges show whole.
+func PlaneFigure(pl plane.Plane, marks ...Mark) (*PlanePlot, error) {
 	if !(pl.XMax > 0) || !(pl.YMax > 0) || math.IsInf(pl.XMax, 0) || math.IsInf(pl.YMax, 0) {
 		return nil, fmt.Errorf("%s: no plotted area", pl.Device)
 	}
@@ -133,14 +185,19 @@ func PlaneFigure(pl plane.Plane) (*plot.Plot, error) {
 		ax.Tick.Label.Color = inkColor
 		ax.Color = inkColor
 		ax.Tick.Color = inkColor
-		ax.Padding = 0
+		ax.Tick.Marker = niceTicks{}
+		// A gap between each axis and the data, a little more than the
+		// largest marker, so points at VCE = 0 or IC = 0 show whole.
+		ax.Padding = 7
 	}
-	p.Legend.TextStyle.Font = sans(8)
-	p.Legend.TextStyle.Color = inkColor
-	p.Legend.Top = true
-	p.Legend.XOffs = -30
-	p.Legend.YOffs = -4
-	p.Legend.ThumbnailWidth = 14
+	fig := &PlanePlot{Plot: p, Legend: plot.NewLegend()}
+	leg := &fig.Legend
+	leg.TextStyle.Font = sans(8)
+	leg.TextStyle.Color = inkColor
+	leg.Top = true
+	leg.Left = true
+	leg.ThumbnailWidth = 14
+	leg.Padding = 3
 
 	// The safe area, shaded under its outline.
 	var outline []plane.Point
@@ -168,7 +225,7 @@ func PlaneFigure(pl plane.Plane) (*plot.Plot, error) {
 			}
 			p.Add(l)
 			if first {
-				p.Legend.Add(soaLegend(pl), l)
+				leg.Add(soaLegend(pl), l)
 				first = false
 			}
 		}
@@ -183,7 +240,7 @@ func PlaneFigure(pl plane.Plane) (*plot.Plot, error) {
 		if l, err := plotter.NewLine(xy(pl.Saturation)); err == nil {
 			l.Color, l.Width, l.Dashes = satColor, 1.1, []vg.Length{1.5, 2}
 			p.Add(l)
-			p.Legend.Add("saturation edge", l)
+			leg.Add("saturation edge", l)
 		}
 	}
 
@@ -195,7 +252,7 @@ func PlaneFigure(pl plane.Plane) (*plot.Plot, error) {
 		if l, err := plotter.NewLine(xy(pts)); err == nil {
 			l.Color, l.Width = loadColor, 1.8
 			p.Add(l)
-			p.Legend.Add("DC load line", l)
+			leg.Add("DC load line", l)
 		}
 	}
 
@@ -240,12 +297,145 @@ func PlaneFigure(pl plane.Plane) (*plot.Plot, error) {
 		if kind == plane.Swing && len(pl.Swings) > 0 {
 			label = kindLabel[kind] + " (" + strings.Join(swingSources(pl), ", ") + ")"
 		}
-		p.Legend.Add(label, s)
+		leg.Add(label, s)
 	}
+
+	addMarks(p, leg, pl, marks, xy)
 
 	p.X.Min, p.X.Max = 0, pl.XMax
 	p.Y.Min, p.Y.Max = 0, pl.YMax*k
-	return p, nil
+	return fig, nil
+}
+
+// Colours of the finding rings, by severity.
+var markColor = map[string]color.Color{
+	"error":   color.RGBA{0xa9, 0x3f, 0x2a, 0xff},
+	"warning": color.RGBA{0xb8, 0x6f, 0x0c, 0xff},
+	"note":    color.RGBA{0x35, 0x58, 0x8f, 0xff},
+}
+
+// addMarks rings the operating point of each mark's case and writes the
+// rule id beside it; several findings at one point share the ring and
+// list their ids. A mark whose case has no plotted point is left out.
+func addMarks(p *plot.Plot, leg *plot.Legend, pl plane.Plane, marks []Mark, xy func([]plane.Point) plotter.XYs) {
+	type spot struct {
+		pt       plane.Point
+		ids      []string
+		severity string
+	}
+	var spots []*spot
+	at := map[string]*spot{}
+	rank := map[string]int{"error": 0, "warning": 1, "note": 2}
+	for _, m := range marks {
+		s := at[m.Case]
+		if s == nil {
+			for _, op := range pl.Points {
+				if op.Case == m.Case {
+					s = &spot{pt: op.Point, severity: m.Severity}
+					break
+				}
+			}
+			if s == nil {
+				continue
+			}
+			at[m.Case] = s
+			spots = append(spots, s)
+		}
+		s.ids = append(s.ids, m.Rule)
+		if rank[m.Severity] < rank[s.severity] {
+			s.severity = m.Severity
+		}
+	}
+	legended := map[string]bool{}
+	// Labels of nearby spots are stacked, one text line apart, so that
+	// two findings at neighbouring cases stay readable.
+	var placed [][2]float64
+	for _, s := range spots {
+		d := xy([]plane.Point{s.pt})
+		if len(d) == 0 {
+			continue
+		}
+		ring, err := plotter.NewScatter(d)
+		if err != nil {
+			continue
+		}
+		col := markColor[s.severity]
+		ring.GlyphStyle = draw.GlyphStyle{Color: col, Radius: 7, Shape: draw.RingGlyph{}}
+		p.Add(ring)
+		fx, fy := s.pt.VCE/pl.XMax, s.pt.IC/pl.YMax
+		line := 0
+		for _, q := range placed {
+			if math.Abs(q[0]-fx) < 0.25 && math.Abs(q[1]-fy) < 0.08 {
+				line++
+			}
+		}
+		placed = append(placed, [2]float64{fx, fy})
+		labels, err := plotter.NewLabels(plotter.XYLabels{XYs: d, Labels: []string{strings.Join(s.ids, ", ")}})
+		if err == nil {
+			for i := range labels.TextStyle {
+				labels.TextStyle[i].Color = col
+				labels.TextStyle[i].Font = font.From(font.Font{Typeface: "Liberation", Variant: "Sans"}, 7.5)
+			}
+			labels.Offset = vg.Point{X: 9, Y: 3 - vg.Length(10*line)}
+			p.Add(labels)
+		}
+		if !legended[s.severity] {
+			legended[s.severity] = true
+			leg.Add(s.severity+" found here", ring)
+		}
+	}
+}
+
+// niceTicks places labelled ticks at 1, 2 or 5 times a power of ten, six
+// to ten of them across the axis, with an unlabelled tick between each
+// pair.
+type niceTicks struct{}
+
+// Ticks implements plot.Ticker.
+func (niceTicks) Ticks(lo, hi float64) []plot.Tick {
+	if !(hi > lo) || math.IsInf(hi-lo, 0) {
+		return nil
+	}
+	step := niceStep(hi - lo)
+	var out []plot.Tick
+	first := math.Ceil(lo/step-1e-9) * step
+	for i := 0; i < 40; i++ {
+		v := first + float64(i)*step
+		if v > hi+step*1e-9 {
+			break
+		}
+		if math.Abs(v) < step*1e-9 {
+			v = 0
+		}
+		out = append(out, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'f', -1, 64)})
+		if half := v + step/2; half <= hi {
+			out = append(out, plot.Tick{Value: half})
+		}
+	}
+	return out
+}
+
+// niceStep is the tick step for a span: the smallest of 1, 2, 2.5 and 5
+// times a power of ten that gives at most ten steps, so that five to ten
+// steps (six to eleven labelled ticks) cross the axis.
+func niceStep(span float64) float64 {
+	mag := math.Pow(10, math.Floor(math.Log10(span/10)))
+	for _, m := range []float64{1, 2, 2.5, 5, 10} {
+		if span/(m*mag) <= 10 {
+			return roundStep(m * mag)
+		}
+	}
+	return roundStep(10 * mag)
+}
+
+// roundStep removes the binary noise of a power of ten (0.1*3 and the
+// like), so labels print as written.
+func roundStep(v float64) float64 {
+	r, err := strconv.ParseFloat(strconv.FormatFloat(v, 'g', 3, 64), 64)
+	if err != nil {
+		return v
+	}
+	return r
 }
 
 // swingSources lists the sources of a plane's swing trajectories.
@@ -266,22 +456,22 @@ func soaLegend(pl plane.Plane) string {
 	return fmt.Sprintf("safe area (Pd %s at %s)", units.Format(pl.SOA.Pd, "W"), units.Format(pl.Ambient, "C"))
 }
 
-// render draws a plot onto a canvas, turning a panic of the drawing
+// render draws a figure onto a canvas, turning a panic of the drawing
 // library (which it uses for impossible sizes) into an error.
-func render(p *plot.Plot, c vg.CanvasSizer) (err error) {
+func render(f *PlanePlot, c vg.CanvasSizer) (err error) {
 	defer func() {
 		if r := recover(); r != nil {
 			err = fmt.Errorf("drawing the plot: %v", r)
 		}
 	}()
-	p.Draw(draw.New(c))
+	f.Draw(draw.New(c))
 	return nil
 }
 
 // PlaneSVG writes the output-plane plot of one transistor as a standalone
-// SVG document.
-func PlaneSVG(w io.Writer, pl plane.Plane) error {
-	p, err := PlaneFigure(pl)
+// SVG document, with marks for its findings.
+func PlaneSVG(w io.Writer, pl plane.Plane, marks ...Mark) error {
+	p, err := PlaneFigure(pl, marks...)
 	if err != nil {
 		return err
 	}
@@ -297,9 +487,10 @@ func PlaneSVG(w io.Writer, pl plane.Plane) error {
 	return err
 }
 
-// PlanePNG writes the output-plane plot of one transistor as a PNG image.
-func PlanePNG(w io.Writer, pl plane.Plane) error {
-	p, err := PlaneFigure(pl)
+// PlanePNG writes the output-plane plot of one transistor as a PNG image,
+// with marks for its findings.
+func PlanePNG(w io.Writer, pl plane.Plane, marks ...Mark) error {
+	p, err := PlaneFigure(pl, marks...)
 	if err != nil {
 		return err
 	}
@@ -320,9 +511,9 @@ func sansFallback(svg []byte) []byte {
 
 // inlineSVG returns the plot as an <svg> element for an HTML page: the XML
 // prolog dropped, a class and an accessible label added.
-func inlineSVG(pl plane.Plane, label string) (string, error) {
+func inlineSVG(pl plane.Plane, label string, marks ...Mark) (string, error) {
 	var b bytes.Buffer
-	if err := PlaneSVG(&b, pl); err != nil {
+	if err := PlaneSVG(&b, pl, marks...); err != nil {
 		return "", err
 	}
 	s := b.String()

@@ -8,6 +8,9 @@ import (
 	"strings"
 	"testing"
 
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+
 	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/checks/plane"
 	"github.com/biaslint/biaslint/netlist"
@@ -61,7 +64,7 @@ func TestHTMLReport(t *testing.T) {
 	f1, p1 := analysed(t, "good.cir", goodStage)
 	f2, p2 := analysed(t, "bad.cir", badStage)
 	// A waived finding, to see its reason on the page.
-	f2.Findings = append(f2.Findings, rules.Finding{Rule: "vce-overstress", Severity: rules.SeverityError, Device: "Q2",
+	f2.Findings = append(f2.Findings, rules.Finding{Rule: "vce-over-rating", Severity: rules.SeverityError, Device: "Q2",
 		Pos: netlist.Pos{File: "bad.cir", Line: 8, Col: 1}, Waived: true, WaiverReason: "bench unit <only>"})
 	r := &Report{Files: []File{f1, f2}, Version: "test"}
 	page := htmlOf(t, r, HTMLOptions{Planes: [][]plane.Plane{p1, p2}})
@@ -130,10 +133,10 @@ func TestHTMLGridCounts(t *testing.T) {
 	r := batchSample()
 	files := htmlPageOf(r, HTMLOptions{}).Files
 	g := htmlGridOf(r, files)
-	if strings.Join(g.Rules, " ") != "cutoff-linear-stage floating-base vce-overstress" {
+	if strings.Join(g.Rules, " ") != "cutoff-linear-stage floating-base vce-over-rating" {
 		t.Fatalf("rules %v", g.Rules)
 	}
-	// sample(): floating-base twice (warning), vce-overstress once (error,
+	// sample(): floating-base twice (warning), vce-over-rating once (error,
 	// the waived one not counted).
 	want := [][]htmlGridCell{
 		{{}, {2, "sev-warning"}, {1, "sev-error"}},
@@ -214,9 +217,9 @@ func TestPlaneSVGAndPNG(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// 5.2 in x 3.6 in at 144 dpi.
-	if sz := img.Bounds().Size(); sz.X < 745 || sz.X > 751 || sz.Y < 515 || sz.Y > 520 {
-		t.Errorf("PNG size %v, want about 749 x 518", sz)
+	// 6.6 in x 3.6 in at 144 dpi.
+	if sz := img.Bounds().Size(); sz.X < 947 || sz.X > 953 || sz.Y < 515 || sz.Y > 520 {
+		t.Errorf("PNG size %v, want about 950 x 518", sz)
 	}
 	colours := map[uint32]bool{}
 	for y := 0; y < img.Bounds().Dy(); y += 3 {
@@ -253,5 +256,74 @@ func TestKindStyles(t *testing.T) {
 		if kindColor[k] == nil || kindGlyph[k] == nil || kindRadius[k] == 0 || kindLabel[k] == "" {
 			t.Errorf("kind %s has no complete style", k)
 		}
+	}
+}
+
+// Axes get six to eleven labelled ticks at 1, 2, 2.5 or 5 times a power
+// of ten (the usual "nice numbers" choice of plotting texts; from memory).
+func TestNiceTicks(t *testing.T) {
+	for _, tc := range []struct {
+		lo, hi float64
+		step   float64
+	}{
+		{0, 13.2, 2}, {0, 44, 5}, {0, 220, 25}, {0, 1.1, 0.2}, {0, 0.033, 0.005}, {0, 10, 1}, {-2, 7, 1},
+	} {
+		var labelled []float64
+		for _, tk := range (niceTicks{}).Ticks(tc.lo, tc.hi) {
+			if tk.Label != "" {
+				labelled = append(labelled, tk.Value)
+			}
+		}
+		if n := len(labelled); n < 6 || n > 11 {
+			t.Errorf("[%g, %g]: %d labelled ticks %v, want 6 to 11", tc.lo, tc.hi, n, labelled)
+		}
+		if len(labelled) > 1 && math.Abs(labelled[1]-labelled[0]-tc.step) > 1e-12 {
+			t.Errorf("[%g, %g]: step %g, want %g", tc.lo, tc.hi, labelled[1]-labelled[0], tc.step)
+		}
+	}
+}
+
+// The legend sits beside the data area, not on it; each finding is ringed
+// at its case's point with its rule id; and the data area keeps a margin
+// inside its axes.
+func TestPlaneMarksAndLegend(t *testing.T) {
+	f, pls := analysed(t, "bad.cir", badStage)
+	if len(pls) == 0 || len(f.Findings) == 0 {
+		t.Fatalf("planes %d, findings %d", len(pls), len(f.Findings))
+	}
+	pl := pls[0]
+	for _, p := range pls {
+		if len(MarksOf(f.Findings, p.Device)) > 0 {
+			pl = p
+		}
+	}
+	marks := MarksOf(f.Findings, pl.Device)
+	if len(marks) == 0 {
+		t.Fatal("no marks for the bad stage's findings")
+	}
+	fig, err := PlaneFigure(pl, marks...)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := draw.New(vgimg.New(plotWidth, plotHeight))
+	plotArea, legendArea := fig.layout(c)
+	data := fig.Plot.DataCanvas(plotArea)
+	if legendArea.Min.X < data.Max.X {
+		t.Errorf("legend starts at x=%v, inside the data area ending at %v", legendArea.Min.X, data.Max.X)
+	}
+	if fig.Plot.X.Padding <= 0 || fig.Plot.Y.Padding <= 0 {
+		t.Errorf("no margin between the axes and the data")
+	}
+	var b bytes.Buffer
+	if err := PlaneSVG(&b, pl, marks...); err != nil {
+		t.Fatal(err)
+	}
+	for _, m := range marks {
+		if !strings.Contains(b.String(), m.Rule) {
+			t.Errorf("the plot does not name finding %s", m.Rule)
+		}
+	}
+	if !strings.Contains(b.String(), "found here") {
+		t.Error("the legend does not explain the finding rings")
 	}
 }

@@ -85,6 +85,15 @@ func (f *File) Transistors() int {
 	return len(f.Analysis.Cases[0].Transistors)
 }
 
+// Cases counts the cases the file was judged in: nominal, drive levels,
+// opened drives, swing points, corners and Monte Carlo runs.
+func (f *File) Cases() int {
+	if f.Analysis == nil {
+		return 0
+	}
+	return len(f.Analysis.Cases)
+}
+
 // Report is one check run over one or more netlists.
 type Report struct {
 	Files []File
@@ -180,7 +189,7 @@ func (r *Report) AtOrAbove(s rules.Severity) bool {
 	return false
 }
 
-// TopRule returns the rule that fired most often in the file (unwaived),
+// TopRule returns the most frequent rule, the one that fired most often in the file (unwaived),
 // ties broken by id; "" when nothing fired.
 func (f *File) TopRule() string {
 	n := map[string]int{}
@@ -213,8 +222,12 @@ var Cautions = []string{
 // Hazardous reports whether any finding of the file concerns a hazardous
 // voltage or heat, so the cautions can say so plainly.
 func Hazardous(f rules.Finding) bool {
-	id := strings.ToLower(f.Rule)
-	return strings.Contains(id, "hazard") || strings.Contains(id, "dissipation") || strings.Contains(id, "thermal")
+	id, _ := rules.CanonicalRuleID(strings.ToLower(f.Rule))
+	switch id {
+	case "power-over-rating", "tj-over-rating", "tj-over-limit":
+		return true
+	}
+	return strings.Contains(id, "hazard") || strings.Contains(id, "thermal")
 }
 
 // nets describes a finding's nets for the text report, naming a

@@ -17,8 +17,8 @@ func sample() *Report {
 		Findings: []rules.Finding{
 			{Rule: "floating-base", Severity: rules.SeverityWarning, Subject: rules.SubjectTransistor, Device: "Q1", Pos: pos, Scenario: "nominal", Nets: []string{"c", "b", "0"}},
 			{Rule: "floating-base", Severity: rules.SeverityWarning, Subject: rules.SubjectTransistor, Device: "Q2", Pos: pos, Scenario: "nominal"},
-			{Rule: "vce-overstress", Severity: rules.SeverityError, Device: "Q3", Pos: pos, Scenario: "nominal", HasLimit: true, Value: 48, Limit: 40, Unit: "V"},
-			{Rule: "vce-overstress", Severity: rules.SeverityError, Device: "Q4", Pos: pos, Waived: true, WaiverReason: "rev B"},
+			{Rule: "vce-over-rating", Severity: rules.SeverityError, Device: "Q3", Pos: pos, Scenario: "nominal", HasLimit: true, Value: 48, Limit: 40, Unit: "V"},
+			{Rule: "vce-over-rating", Severity: rules.SeverityError, Device: "Q4", Pos: pos, Waived: true, WaiverReason: "rev B"},
 		},
 	}}}
 }
@@ -48,7 +48,7 @@ func TestTextAndSARIF(t *testing.T) {
 	}
 	out := b.String()
 	for _, want := range []string{
-		"a b/board.cir:7:1: error:", "[vce-overstress]", "value    48.0 V against limit 40.0 V",
+		"a b/board.cir:7:1: error:", "[vce-over-rating]", "value    48.0 V against limit 40.0 V",
 		"nets     C=c B=b E=0", "reason  rev B", "1 error, 2 warnings, 0 notes, 1 waived", "caution: ",
 	} {
 		if !strings.Contains(out, want) {

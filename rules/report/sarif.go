@@ -188,14 +188,6 @@ func fileURI(p string) string {
 	return strings.Join(segs, "/")
 }
 
-func firstSentence(s string) string {
-	s = strings.Join(strings.Fields(s), " ")
-	if i := strings.Index(s, ". "); i >= 0 {
-		return s[:i+1]
-	}
-	return s
-}
-
 // SARIF writes the findings as one SARIF 2.1.0 run: the active rules'
 // metadata in the driver's rules array (rationale, help with the fix and
 // condition, default level), one result per finding located at the
@@ -222,7 +214,7 @@ func SARIF(w io.Writer, r *Report) error {
 	}
 	if r.RuleSet != nil {
 		for _, ru := range r.RuleSet.Rules {
-			sr := sarifRule{ID: ru.ID, ShortDescription: sarifText{firstSentence(ru.Rationale)},
+			sr := sarifRule{ID: ru.ID, ShortDescription: sarifText{FirstSentence(ru.Rationale)},
 				DefaultConfiguration: sarifConfig{Level: level(ru.Severity)},
 				Properties:           map[string]any{"subject": string(ru.Subject), "condition": ru.When}}
 			if sr.ShortDescription.Text == "" {

@@ -98,7 +98,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 				ew.printf("    related  %s\n", relatedText(x.Related))
 			}
 			if x.HasLimit {
-				ew.printf("    value    %s against limit %s\n", units.Format(x.Value, x.Unit), units.Format(x.Limit, x.Unit))
+				ew.printf("    value    %s against limit %s\n", Figure(x.Value, x.Unit), Figure(x.Limit, x.Unit))
 			}
 			if x.Scenario != "" {
 				ew.printf("    case     %s", rules.CaseName(x.Scenario, x.Corner))
@@ -138,7 +138,7 @@ func Text(w io.Writer, r *Report, opt TextOptions) error {
 			writeTransistors(ew, f)
 		}
 		c := f.Counts()
-		ew.printf("\n  %s: %s, %s\n", f.Path, plural(f.Transistors(), "transistor"), countText(c))
+		ew.printf("\n  %s: %s, %s judged, %s\n", f.Path, plural(f.Transistors(), "transistor"), plural(f.Cases(), "case"), countText(c))
 	}
 	if len(r.Files) > 1 {
 		ew.printf("\n%s: %s\n", filesText(r), countText(r.Counts()))
