@@ -319,6 +319,12 @@ func (run *checkRun) one(c *cli.Context, circ *netlist.Circuit, opt checks.Optio
 				Msg: fmt.Sprintf("computed fixes: %d of %d findings searched before the search's budget (%d cases solved) ran out; 'biaslint fix' searches further",
 					st.Searched, st.Searched+st.Unsearched, st.Work)})
 		}
+		// A search cut short by the file's time budget keeps the report
+		// (every change shown was verified before the budget ran out).
+		if ctx := opt.Context; ctx != nil && ctx.Err() != nil {
+			notes = append(notes, &netlist.Error{Pos: netlist.Pos{File: circ.File, Line: 1, Col: 1}, Severity: netlist.SevNote,
+				Msg: "computed fixes: the search stopped at the file's time budget (--file-timeout); the findings are all reported, some without a computed fix"})
+		}
 	}
 	return report.File{Path: circ.File, Title: circ.Title, Analysis: an, Findings: findings, Notes: notes}, nil
 }
