@@ -11,6 +11,8 @@ import (
 // elem is one element of a System, with its unknowns numbered.
 type elem struct {
 	e *netlist.Element
+	// key is netlist.Key(e.Name).
+	key string
 	// idx is the element's index in System.elems.
 	idx  int
 	kind netlist.Kind
@@ -49,6 +51,9 @@ type System struct {
 	// first written; nodeIdx maps netlist.Key to the index.
 	nodeNames []string
 	nodeIdx   map[string]int
+	// nodeKeys are the netlist.Key of each of nodeNames, for the Result's
+	// lookup maps (computed once, not per solve).
+	nodeKeys []string
 	// names names every unknown: V(node), V(Q1:b'), I(V1).
 	names  []string
 	nExt   int // circuit nodes
@@ -188,7 +193,7 @@ func (s *System) collect(errs *netlist.ErrorList) {
 			errs.Addf(e.Pos, "%s: element name used twice (first at %s)", e.Name, prev.e.Pos)
 			continue
 		}
-		el := &elem{e: e, kind: e.Kind, br: -1, ctl: -1}
+		el := &elem{e: e, key: k, kind: e.Kind, br: -1, ctl: -1}
 		if !s.value(el, errs, badModel) {
 			continue
 		}
@@ -303,6 +308,7 @@ func (s *System) node(name string) int {
 	i := len(s.nodeNames)
 	s.nodeIdx[k] = i
 	s.nodeNames = append(s.nodeNames, name)
+	s.nodeKeys = append(s.nodeKeys, k)
 	return i
 }
 

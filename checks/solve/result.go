@@ -93,16 +93,21 @@ type DiodeOp struct {
 // result builds the Result from the converged x, with the devices as last
 // evaluated (at x).
 func (s *System) result(w *work, x []float64, m Method) *Result {
+	nb := s.n - s.nNodes // branch unknowns
 	r := &Result{
-		Voltage:    map[string]float64{netlist.Ground: 0, "gnd": 0, "gnd!": 0},
-		Current:    map[string]float64{},
+		Voltage:    make(map[string]float64, len(s.nodeNames)+3),
+		Current:    make(map[string]float64, nb),
 		Method:     m,
 		Iterations: w.iters,
 		Temp:       w.st.temp,
+		Nodes:      make([]NodeVoltage, 0, len(s.nodeNames)),
+		Branches:   make([]BranchCurrent, 0, nb),
+		BJTs:       make([]BJTOp, 0, len(s.bjts)),
 	}
+	r.Voltage[netlist.Ground], r.Voltage["gnd"], r.Voltage["gnd!"] = 0, 0, 0
 	for i, nm := range s.nodeNames {
 		r.Nodes = append(r.Nodes, NodeVoltage{Name: nm, V: x[i]})
-		r.Voltage[netlist.Key(nm)] = x[i]
+		r.Voltage[s.nodeKeys[i]] = x[i]
 	}
 	for _, el := range s.elems {
 		if el.br < 0 {
@@ -110,7 +115,7 @@ func (s *System) result(w *work, x []float64, m Method) *Result {
 		}
 		i := x[el.br]
 		r.Branches = append(r.Branches, BranchCurrent{Name: el.e.Name, Kind: el.kind, I: i, Pos: el.e.Pos})
-		r.Current[netlist.Key(el.e.Name)] = i
+		r.Current[el.key] = i
 	}
 	for j, el := range s.bjts {
 		b, ev := w.bjt[j], w.evB[j]
