@@ -103,3 +103,49 @@ func TestFileSizeBudgets(t *testing.T) {
 		}
 	}
 }
+
+// TestOpPlotTimeout: op and plot have check's time budget: a tiny one
+// stops the solve, says why with the flag to raise it, and exits 2; in an
+// op batch the other files are still solved and printed.
+func TestOpPlotTimeout(t *testing.T) {
+	demo := "rulesets/demo/bench-logger.cir"
+	const why = "not checked: checking took longer than the limit of 1ns per file (raise it with --file-timeout)"
+	out, errs, code := runCLI(t, "op", "--file-timeout", "1ns", demo)
+	if code != exitBadInput || out != "" || strings.TrimSpace(errs) != demo+":1:1: error: "+why {
+		t.Errorf("op: exit %d, stdout %q, stderr %q; want 2, nothing and %q", code, out, errs, why)
+	}
+	out, errs, code = runCLI(t, "plot", "--file-timeout", "1ns", "Q1", demo)
+	if code != exitBadInput || out != "" || !strings.Contains(errs, "--file-timeout") || !strings.Contains(errs, demo) {
+		t.Errorf("plot: exit %d, stdout %q, stderr %q; want 2, nothing and the budget named", code, out, errs)
+	}
+
+	// An op batch with one file out of time from the start.
+	dir := t.TempDir()
+	for name, from := range map[string]string{"slow.cir": demo, "quick.cir": good} {
+		src, err := os.ReadFile(from)
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(dir, name), src)
+	}
+	saved := budgetContext
+	defer func() { budgetContext = saved }()
+	budgetContext = func(path string, d time.Duration) (context.Context, context.CancelFunc) {
+		if filepath.Base(path) == "slow.cir" {
+			return context.WithDeadline(context.Background(), time.Now().Add(-time.Second))
+		}
+		return context.WithTimeout(context.Background(), d)
+	}
+	out, errs, code = runCLI(t, "op", "--format", "json", filepath.Join(dir, "slow.cir"), filepath.Join(dir, "quick.cir"))
+	if code != exitBadInput || !strings.Contains(errs, "slow.cir:1:1: error: not checked") || strings.Contains(errs, "quick.cir") {
+		t.Errorf("op batch: exit %d, stderr %q; want 2 and only slow.cir out of budget", code, errs)
+	}
+	var got struct {
+		Results []struct {
+			File string `json:"file"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil || len(got.Results) != 1 || filepath.Base(got.Results[0].File) != "quick.cir" {
+		t.Errorf("op batch: results %+v (%v); want quick.cir alone", got.Results, err)
+	}
+}

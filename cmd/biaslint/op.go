@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -28,6 +29,7 @@ func opCommand() *cli.Command {
 			outputFlag,
 			demoFlag,
 			demoRevFlag,
+			fileTimeoutFlag,
 		},
 		Action: runOp,
 	}
@@ -90,6 +92,10 @@ func runOp(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	timeout, err := fileTimeout(c)
+	if err != nil {
+		return err
+	}
 	var results []opFile
 	var problems []string
 	for _, in := range inputs {
@@ -107,7 +113,16 @@ func runOp(c *cli.Context) error {
 			problems = append(problems, err.Error())
 			continue
 		}
-		r, err := solveOp(c, circ)
+		var r opFile
+		err, over := withBudget(in.name, timeout, func(ctx context.Context) error {
+			var err error
+			r, err = solveOp(ctx, c, circ)
+			return err
+		})
+		if over {
+			// Out of time: the file is not solved, the batch goes on.
+			_, err = overBudget(in.name, circ.Title, timeout)
+		}
 		if err != nil {
 			problems = append(problems, err.Error())
 			continue
@@ -148,7 +163,7 @@ func runOp(c *cli.Context) error {
 }
 
 // solveOp solves one circuit and converts the result to the report shape.
-func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
+func solveOp(ctx context.Context, c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	t, err := tempOf(c, "temp")
 	if err != nil {
 		return opFile{}, err
@@ -161,7 +176,7 @@ func solveOp(c *cli.Context, circ *netlist.Circuit) (opFile, error) {
 	}
 	// Only the nominal solution and the junction temperatures: op prints
 	// no roles, topology or other cases, so it computes none.
-	op, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal")})
+	op, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal"), Context: ctx})
 	if err != nil {
 		return opFile{}, err
 	}
