@@ -66,12 +66,13 @@ type includePolicy struct {
 	osFS  bool     // the base reader is the file system
 	hint  func(dir string) string
 	base  func(path string) ([]byte, error)
+	what  string // who may read from the folders, for messages ("includes may be read from")
 }
 
 // newPolicy returns the policy for a netlist whose top file is top, with
 // o's folders, reading through o.ReadFile.
 func newPolicy(top string, o *LoadOptions) *includePolicy {
-	p := &includePolicy{osFS: o.osFiles, hint: o.IncludeHint, base: o.ReadFile}
+	p := &includePolicy{osFS: o.osFiles, hint: o.IncludeHint, base: o.ReadFile, what: "includes may be read from"}
 	if p.hint == nil {
 		p.hint = func(dir string) string {
 			if dir == "" {
@@ -143,7 +144,7 @@ func (p *includePolicy) check(path string) (string, error) {
 		return "", err
 	}
 	if !withinAny(a, p.abs) {
-		return "", &refusedError{msg: fmt.Sprintf("is outside the folders includes may be read from (%s)", p.allowed()),
+		return "", &refusedError{msg: fmt.Sprintf("is outside the folders %s (%s)", p.what, p.allowed()),
 			hint: p.hint, dir: filepath.Dir(filepath.Clean(path))}
 	}
 	if !p.osFS {
@@ -154,7 +155,7 @@ func (p *includePolicy) check(path string) (string, error) {
 		return "", err
 	}
 	if !withinAny(r, p.real) {
-		return "", &refusedError{msg: fmt.Sprintf("is a symbolic link to a file outside the folders includes may be read from (%s)", p.allowed()),
+		return "", &refusedError{msg: fmt.Sprintf("is a symbolic link to a file outside the folders %s (%s)", p.what, p.allowed()),
 			hint: p.hint, dir: ""}
 	}
 	return r, nil
@@ -261,4 +262,30 @@ func ReadRegular(path string, limit int) ([]byte, error) {
 		return nil, errors.New(msg)
 	}
 	return src, err
+}
+
+// ConfinedRead reads the file at path for a caller outside the netlist
+// reader that follows a reference written inside a file (a rule set's
+// extends) by the include policy: path, after joining and cleaning and
+// again with its links resolved, must lie inside one of dirs (the first is
+// the one named in messages); then only a regular file is read, as
+// ReadRegular does. A refusal completes a sentence that starts with the
+// path as written ("rule set \"x\" " + msg): what names who reads from
+// the folders ("rule sets may extend"), and hint tells how to allow a
+// folder (as LoadOptions.IncludeHint).
+func ConfinedRead(path string, dirs []string, what string, hint func(dir string) string, limit int) ([]byte, error) {
+	if len(dirs) == 0 {
+		return nil, errors.New("no folders to read from")
+	}
+	o := &LoadOptions{IncludeDirs: dirs[1:], IncludeHint: hint, osFiles: true}
+	p := newPolicy(filepath.Join(dirs[0], "x"), o)
+	p.what = what
+	r, err := p.check(path)
+	if err == nil {
+		return ReadRegular(r, limit)
+	}
+	if msg, ok := refused(err, false); ok {
+		return nil, errors.New(msg)
+	}
+	return nil, err
 }

@@ -241,6 +241,14 @@ type LoadOptions struct {
 	// Set overrides parameters: name to value text, as a rule-set file
 	// writes a value ("0.8", "80%", "2.5 V"). An unknown name is an error.
 	Set map[string]string
+	// Confine holds the extends paths of a rule-set file to the include
+	// policy of netlists: a set extends only files inside the top set's own
+	// folder or one of AllowDirs, links resolved, regular files only (a
+	// rule file that travels with netlists cannot read the checking
+	// machine's files). AllowHint tells how to allow a refused folder.
+	Confine   bool
+	AllowDirs []string
+	AllowHint func(dir string) string
 }
 
 // Load reads the rule set ref: the name of a built-in set (rulesets.Names)
@@ -248,6 +256,7 @@ type LoadOptions struct {
 // error.
 func Load(ref string, opts LoadOptions) (*RuleSet, error) {
 	l := newLoader()
+	l.setConfine(ref, opts)
 	raw := l.resolve(ref, "", false, netlist.Pos{File: ref}, nil)
 	return l.finish(raw, opts)
 }
@@ -259,6 +268,7 @@ func LoadDefault(opts LoadOptions) (*RuleSet, error) { return Load("default", op
 // a relative extends path. A built-in parent is named as in Load.
 func Parse(file string, src []byte, opts LoadOptions) (*RuleSet, error) {
 	l := newLoader()
+	l.setConfine(file, opts)
 	raw := l.parseChain(file, src, false, nil)
 	return l.finish(raw, opts)
 }
@@ -266,6 +276,19 @@ func Parse(file string, src []byte, opts LoadOptions) (*RuleSet, error) {
 // loader reads sets and their parents, collecting located errors.
 type loader struct {
 	errs netlist.ErrorList
+	// dirs are the folders extends may read from (nil: anywhere), hint how
+	// to allow another.
+	dirs []string
+	hint func(dir string) string
+}
+
+// setConfine sets the folders extends may read from, for the top set top.
+func (l *loader) setConfine(top string, opts LoadOptions) {
+	if !opts.Confine {
+		return
+	}
+	l.dirs = append([]string{filepath.Dir(top)}, opts.AllowDirs...)
+	l.hint = opts.AllowHint
 }
 
 func newLoader() *loader { return &loader{} }
@@ -308,7 +331,12 @@ func (l *loader) resolve(ref, from string, fromBuiltin bool, at netlist.Pos, sta
 		}
 		// Only a regular file, never blocking, and no more than the limit
 		// (an extends chain can be written by whoever wrote a rule file).
-		if src, err = netlist.ReadRegular(path, maxRuleSetFile); err == nil && len(src) > maxRuleSetFile {
+		if l.dirs != nil && from != "" {
+			src, err = netlist.ConfinedRead(path, l.dirs, "rule sets may extend", l.hint, maxRuleSetFile)
+		} else {
+			src, err = netlist.ReadRegular(path, maxRuleSetFile)
+		}
+		if err == nil && len(src) > maxRuleSetFile {
 			err = fmt.Errorf("larger than the limit of %d bytes", maxRuleSetFile)
 		}
 	}

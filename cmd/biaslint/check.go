@@ -93,11 +93,18 @@ func loadRuleSets(c *cli.Context) (*rules.RuleSet, error) {
 	if len(refs) == 0 {
 		refs = []string{"default"}
 	}
+	// extends is held to the include policy: the set's own folder, the
+	// project file's folder and the --include-dir folders.
+	lo := rules.LoadOptions{Confine: true, AllowHint: includeHint}
+	if d, ok := c.App.Metadata[projectDirKey].(string); ok {
+		lo.AllowDirs = append(lo.AllowDirs, d)
+	}
+	lo.AllowDirs = append(lo.AllowDirs, c.StringSlice("include-dir")...)
 	var out []*rules.RuleSet
 	for _, ref := range refs {
 		// --set names a parameter of any of the sets; each set takes the
 		// overrides it knows.
-		rs, err := rules.Load(ref, rules.LoadOptions{})
+		rs, err := rules.Load(ref, lo)
 		if err != nil {
 			return nil, badInput(err)
 		}
@@ -108,7 +115,10 @@ func loadRuleSets(c *cli.Context) (*rules.RuleSet, error) {
 			}
 		}
 		if len(mine) > 0 {
-			if rs, err = rules.Load(ref, rules.LoadOptions{Set: mine}); err != nil {
+			lo.Set = mine
+			rs, err = rules.Load(ref, lo)
+			lo.Set = nil
+			if err != nil {
 				return nil, badInput(err)
 			}
 		}

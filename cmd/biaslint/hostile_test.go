@@ -335,7 +335,8 @@ func TestHostileSideFiles(t *testing.T) {
 	}{
 		{[]string{"--ruleset", "/dev/zero"}, "a device, not a regular file"},
 		{[]string{"--ruleset", fifo}, "named pipe (FIFO)"},
-		{[]string{"--ruleset", filepath.Join(dir, "extends-zero.yaml")}, "extends-zero.yaml:2:10: error: rule set \"/dev/zero\": is a device"},
+		{[]string{"--ruleset", filepath.Join(dir, "extends-zero.yaml")}, "extends-zero.yaml:2:10: error: rule set \"/dev/zero\": is outside the folders rule sets may extend"},
+		{[]string{"--ruleset", filepath.Join(dir, "extends-zero.yaml"), "--include-dir", "/dev"}, "extends-zero.yaml:2:10: error: rule set \"/dev/zero\": is a device"},
 		{[]string{"--ruleset", filepath.Join(dir, "extends-fifo.yaml")}, "named pipe (FIFO)"},
 		{[]string{"--board", "/dev/zero"}, "a device, not a regular file"},
 		{[]string{"--board", fifo}, "named pipe (FIFO)"},
@@ -347,5 +348,30 @@ func TestHostileSideFiles(t *testing.T) {
 		if code != exitBadInput || out != "" || !strings.Contains(errs, tc.want) {
 			t.Errorf("%v: exit %d, stdout %q, stderr %q; want 2 and %q", tc.args, code, out, errs, tc.want)
 		}
+	}
+}
+
+// TestRuleSetExtendsConfined: a rule set given with --ruleset that
+// extends a file outside its folder, the project folder and the
+// --include-dir folders is a located error naming the path as written and
+// the flag that allows it; exit 2. With the folder allowed it loads.
+func TestRuleSetExtendsConfined(t *testing.T) {
+	root := t.TempDir()
+	top, out := filepath.Join(root, "top"), filepath.Join(root, "out")
+	for _, d := range []string{top, out} {
+		if err := os.Mkdir(d, 0o755); err != nil {
+			t.Fatal(err)
+		}
+	}
+	writeFile(t, filepath.Join(out, "base.yaml"), []byte("name: base\nextends: default\n"))
+	writeFile(t, filepath.Join(top, "mine.yaml"), []byte("name: mine\nextends: ../out/base.yaml\n"))
+	set := filepath.Join(top, "mine.yaml")
+	_, errs, code := runCLI(t, "check", "--ruleset", set, good)
+	want := set + `:2:10: error: rule set "../out/base.yaml": is outside the folders rule sets may extend`
+	if code != exitBadInput || !strings.Contains(errs, want) || !strings.Contains(errs, "to allow it, pass --include-dir "+out) {
+		t.Errorf("exit %d, stderr %q; want 2 and %q with the --include-dir hint", code, errs, want)
+	}
+	if _, errs, code := runCLI(t, "check", "--ruleset", set, "--include-dir", out, good); code == exitBadInput {
+		t.Errorf("with --include-dir %s: exit %d, stderr %q", out, code, errs)
 	}
 }

@@ -227,6 +227,10 @@ func displayPath(abs string) string {
 // settings: it finds the project file (or reads --config FILE), and sets
 // each flag the command has and the command line did not set. For --set,
 // a parameter named on the command line keeps its command-line value.
+// projectDirKey is the App.Metadata key of the project file's folder (rule
+// sets may extend files inside it).
+const projectDirKey = "project-dir"
+
 func applyProjectFile(c *cli.Context) error {
 	if c.Bool("no-config") {
 		if c.IsSet("config") {
@@ -247,6 +251,10 @@ func applyProjectFile(c *cli.Context) error {
 	if err != nil {
 		return badInput(err)
 	}
+	if c.App.Metadata == nil {
+		c.App.Metadata = map[string]any{}
+	}
+	c.App.Metadata[projectDirKey] = filepath.Dir(shown)
 	has := map[string]bool{}
 	for _, f := range c.Command.Flags {
 		for _, n := range f.Names() {
