@@ -287,5 +287,9 @@ func ConfinedRead(path string, dirs []string, what string, hint func(dir string)
 	if msg, ok := refused(err, false); ok {
 		return nil, errors.New(msg)
 	}
-	return nil, err
+	// The links could not be resolved (a missing file, a dangling link):
+	// the error of reading the path as joined says so without naming the
+	// resolved path on this machine, and reads nothing (os.Stat fails on
+	// the same path).
+	return ReadRegular(path, limit)
 }
