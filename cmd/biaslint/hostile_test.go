@@ -375,3 +375,32 @@ func TestRuleSetExtendsConfined(t *testing.T) {
 		t.Errorf("with --include-dir %s: exit %d, stderr %q", out, code, errs)
 	}
 }
+
+// TestProjectRuleSetExtends: a rule set named in the project file may
+// extend a set elsewhere in the project file's folder, not one outside it.
+func TestProjectRuleSetExtends(t *testing.T) {
+	root := t.TempDir()
+	proj := filepath.Join(root, "proj")
+	for _, d := range []string{filepath.Join(proj, "rules"), filepath.Join(proj, "shared"), filepath.Join(root, "out")} {
+		if err := os.MkdirAll(d, 0o755); err != nil {
+			t.Fatal(err)
+		}
+	}
+	src, err := os.ReadFile(good)
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, filepath.Join(proj, "stage.cir"), src)
+	writeFile(t, filepath.Join(proj, "shared", "base.yaml"), []byte("name: base\nextends: default\n"))
+	writeFile(t, filepath.Join(root, "out", "base.yaml"), []byte("name: base\nextends: default\n"))
+	writeFile(t, filepath.Join(proj, "biaslint.yaml"), []byte("ruleset: rules/mine.yaml\n"))
+	t.Chdir(proj)
+	writeFile(t, filepath.Join(proj, "rules", "mine.yaml"), []byte("name: mine\nextends: ../shared/base.yaml\n"))
+	if _, errs, code := runCLI(t, "check", "stage.cir"); code == exitBadInput {
+		t.Errorf("extends inside the project folder: exit 2: %s", errs)
+	}
+	writeFile(t, filepath.Join(proj, "rules", "mine.yaml"), []byte("name: mine\nextends: ../../out/base.yaml\n"))
+	if _, errs, code := runCLI(t, "check", "stage.cir"); code != exitBadInput || !strings.Contains(errs, `rule set "../../out/base.yaml": is outside the folders rule sets may extend`) {
+		t.Errorf("extends outside the project folder: exit %d, %s", code, errs)
+	}
+}
