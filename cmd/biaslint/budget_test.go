@@ -26,22 +26,7 @@ func TestFileTimeout(t *testing.T) {
 
 	// A batch in which one file runs out of time (its context is done from
 	// the start: the same as a budget that ran out, without waiting).
-	dir := t.TempDir()
-	for name, from := range map[string]string{"slow.cir": demo, "quick.cir": good} {
-		src, err := os.ReadFile(from)
-		if err != nil {
-			t.Fatal(err)
-		}
-		writeFile(t, filepath.Join(dir, name), src)
-	}
-	saved := budgetContext
-	defer func() { budgetContext = saved }()
-	budgetContext = func(path string, d time.Duration) (context.Context, context.CancelFunc) {
-		if filepath.Base(path) == "slow.cir" {
-			return context.WithDeadline(context.Background(), time.Now().Add(-time.Second))
-		}
-		return saved(path, d)
-	}
+	dir := slowBatch(t, demo, good)
 	out, errs, code = runCLI(t, "check", "--format", "json", dir)
 	if code != exitBadInput {
 		t.Errorf("exit %d, want 2 (a file could not be checked): %s", code, errs)
@@ -120,22 +105,7 @@ func TestOpPlotTimeout(t *testing.T) {
 	}
 
 	// An op batch with one file out of time from the start.
-	dir := t.TempDir()
-	for name, from := range map[string]string{"slow.cir": demo, "quick.cir": good} {
-		src, err := os.ReadFile(from)
-		if err != nil {
-			t.Fatal(err)
-		}
-		writeFile(t, filepath.Join(dir, name), src)
-	}
-	saved := budgetContext
-	defer func() { budgetContext = saved }()
-	budgetContext = func(path string, d time.Duration) (context.Context, context.CancelFunc) {
-		if filepath.Base(path) == "slow.cir" {
-			return context.WithDeadline(context.Background(), time.Now().Add(-time.Second))
-		}
-		return context.WithTimeout(context.Background(), d)
-	}
+	dir := slowBatch(t, demo, good)
 	out, errs, code = runCLI(t, "op", "--format", "json", filepath.Join(dir, "slow.cir"), filepath.Join(dir, "quick.cir"))
 	if code != exitBadInput || !strings.Contains(errs, "slow.cir:1:1: error: not checked") || strings.Contains(errs, "quick.cir") {
 		t.Errorf("op batch: exit %d, stderr %q; want 2 and only slow.cir out of budget", code, errs)
@@ -148,4 +118,29 @@ func TestOpPlotTimeout(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &got); err != nil || len(got.Results) != 1 || filepath.Base(got.Results[0].File) != "quick.cir" {
 		t.Errorf("op batch: results %+v (%v); want quick.cir alone", got.Results, err)
 	}
+}
+
+// slowBatch writes a batch folder of slow.cir (a copy of slow) and
+// quick.cir (a copy of quick), and makes slow.cir's time budget run out
+// from the start (the same as a budget that ran out, without waiting)
+// until the test ends.
+func slowBatch(t *testing.T, slow, quick string) string {
+	t.Helper()
+	dir := t.TempDir()
+	for name, from := range map[string]string{"slow.cir": slow, "quick.cir": quick} {
+		src, err := os.ReadFile(from)
+		if err != nil {
+			t.Fatal(err)
+		}
+		writeFile(t, filepath.Join(dir, name), src)
+	}
+	saved := budgetContext
+	t.Cleanup(func() { budgetContext = saved })
+	budgetContext = func(path string, d time.Duration) (context.Context, context.CancelFunc) {
+		if filepath.Base(path) == "slow.cir" {
+			return context.WithDeadline(context.Background(), time.Now().Add(-time.Second))
+		}
+		return saved(path, d)
+	}
+	return dir
 }
