@@ -120,6 +120,12 @@ type analyzer struct {
 	// facts that do not depend on the case (computed once).
 	bjts []*netlist.Element
 	tmpl []Transistor
+	// resFixed holds the case-independent facts of each two-node resistor
+	// by element index (nil for other elements), and nodeFixed those of
+	// each net by key; both are built before the cases fan out.
+	resFixed  []*ResistorFixed
+	nres      int
+	nodeFixed map[string]*NodeFixed
 	// bjtIdx maps netlist.Key of a transistor's name to its index.
 	bjtIdx map[string]int
 	// nominal holds the nominal value of every R, V and I element by key.
@@ -265,7 +271,7 @@ func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 	}
 	a.tmpl = make([]Transistor, len(a.bjts))
 	for i, el := range a.bjts {
-		a.tmpl[i] = Transistor{Name: el.Name, Polarity: a.polarity(el)}
+		a.tmpl[i] = Transistor{TransistorFixed: &TransistorFixed{Name: el.Name, Polarity: a.polarity(el)}}
 		a.tmpl[i].Rating = a.ratings(el, a.model(el), a.tmpl[i].Polarity)
 	}
 	sp := caseSpec{scenario: "nominal", kind: KindNominal, ambient: a.ambient, temp: a.temp, thermal: opt.Thermal, guess: -1}
@@ -364,6 +370,19 @@ func (a *analyzer) templates() error {
 	for i, el := range a.bjts {
 		a.tmpl[i] = a.template(el)
 	}
+	a.resFixed = make([]*ResistorFixed, len(a.c.Elements))
+	a.nodeFixed = map[string]*NodeFixed{}
+	for i, el := range a.c.Elements {
+		if el.Kind == 'R' && len(el.Nodes) == 2 {
+			a.resFixed[i] = a.resistorFixed(el)
+			a.nres++
+		}
+		for _, n := range el.Nodes {
+			if k := nodeKey(n); a.nodeFixed[k] == nil {
+				a.nodeFixed[k] = &NodeFixed{Name: n, Pos: a.firstPos[k]}
+			}
+		}
+	}
 	return nil
 }
 
@@ -371,11 +390,11 @@ func (a *analyzer) templates() error {
 func (a *analyzer) template(el *netlist.Element) Transistor {
 	pol := a.polarity(el)
 	m := a.model(el)
-	t := Transistor{
+	t := Transistor{TransistorFixed: &TransistorFixed{
 		Name: el.Name, Polarity: pol,
 		Collector: el.Nodes[0], Base: el.Nodes[1], Emitter: el.Nodes[2],
 		Pos: el.Pos, Chain: el.Chain,
-	}
+	}}
 	if m != nil {
 		t.Model = m.Name
 		if p, err := device.BJTParamsOf(m, a.c.Options.TNom); err == nil {
@@ -504,16 +523,23 @@ func (a *analyzer) partEntry(el *netlist.Element, m *netlist.Model, polarity str
 }
 
 // resistor computes one resistor's facts with resistance r, Ohm.
-func (a *analyzer) resistor(el *netlist.Element, r float64, res *solve.Result) Resistor {
-	va, vb := res.Voltage[nodeKey(el.Nodes[0])], res.Voltage[nodeKey(el.Nodes[1])]
-	f := Resistor{Name: el.Name, NodeA: el.Nodes[0], NodeB: el.Nodes[1], R: r, V: va - vb,
-		Rating: DefaultResistorPower, RatingFrom: "default", Pos: el.Pos, Chain: el.Chain}
+func (a *analyzer) resistor(fx *ResistorFixed, r float64, res *solve.Result) Resistor {
+	va, vb := res.V(nodeKey(fx.NodeA)), res.V(nodeKey(fx.NodeB))
+	f := Resistor{ResistorFixed: fx, R: r, V: va - vb}
 	if r != 0 {
 		f.I = f.V / r
-	} else if i, ok := res.Current[netlist.Key(el.Name)]; ok {
+	} else if i, ok := res.I(fx.Name); ok {
 		f.I = i
 	}
 	f.Power = f.V * f.I
+	return f
+}
+
+// resistorFixed computes one resistor's case-independent facts: names,
+// nets, position and power rating.
+func (a *analyzer) resistorFixed(el *netlist.Element) *ResistorFixed {
+	f := &ResistorFixed{Name: el.Name, NodeA: el.Nodes[0], NodeB: el.Nodes[1],
+		Rating: DefaultResistorPower, RatingFrom: "default", Pos: el.Pos, Chain: el.Chain}
 	if d := a.board.Device(el.Name); d != nil && !math.IsNaN(d.Power) {
 		f.Rating, f.RatingFrom = d.Power, "annotation at "+d.Pos.String()
 	}

@@ -440,7 +440,7 @@ func (a *analyzer) sensitivities(specs []caseSpec, outs []caseOut, groups []int)
 		ic[k], beta[k], pw[k] = make([]float64, n), make([]float64, n), make([]float64, len(rs))
 		vr := make([]float64, len(rs)) // each resistor's voltage
 		for m, el := range rs {
-			vr[m] = r.Voltage[nodeKey(el.Nodes[0])] - r.Voltage[nodeKey(el.Nodes[1])]
+			vr[m] = r.V(nodeKey(el.Nodes[0])) - r.V(nodeKey(el.Nodes[1]))
 			pw[k][m] = vr[m] * vr[m] / valueOf(&sp, netlist.Key(el.Name), el.Value)
 		}
 		for _, op := range r.BJTs {

@@ -14,10 +14,16 @@ import (
 // crossCase writes the cross-case facts into the cases.
 func (a *analyzer) crossCase(an *Analysis, specs []caseSpec, swings []*swingSource) {
 	n := len(a.bjts)
+	// at finds transistor j's facts in case ci: a case lists its
+	// transistors in the solver's order, which is the circuit's, so the
+	// slot j is tried first and the list searched only when it differs.
 	at := func(ci, j int) *Transistor {
 		cs := &an.Cases[ci]
+		if j < len(cs.Transistors) && cs.Transistors[j].TransistorFixed == a.tmpl[j].TransistorFixed {
+			return &cs.Transistors[j]
+		}
 		for k := range cs.Transistors {
-			if a.bjtIdx[netlist.Key(cs.Transistors[k].Name)] == j {
+			if cs.Transistors[k].TransistorFixed == a.tmpl[j].TransistorFixed {
 				return &cs.Transistors[k]
 			}
 		}
@@ -54,13 +60,8 @@ func (a *analyzer) crossCase(an *Analysis, specs []caseSpec, swings []*swingSour
 			p.hi = i
 		}
 	}
-	for ci := range an.Cases {
-		cs := &an.Cases[ci]
-		for k := range cs.Transistors {
-			t := &cs.Transistors[k]
-			j := a.bjtIdx[netlist.Key(t.Name)]
-			t.OpenJudged = opened[j]
-		}
+	for j := range a.tmpl {
+		a.tmpl[j].OpenJudged = opened[j] // shared by every case
 	}
 	for g, p := range hfe {
 		if p.lo < 0 || p.hi < 0 {
@@ -90,19 +91,35 @@ func (a *analyzer) crossCase(an *Analysis, specs []caseSpec, swings []*swingSour
 			}
 		}
 	}
+	// One Clipping per transistor and source, shared by the cases that
+	// show it; the rest share one record of no clipping.
+	none := &Clipping{}
+	clips := map[*swingSource][]*Clipping{}
+	clipping := func(s *swingSource, j int) *Clipping {
+		if clips[s] == nil {
+			clips[s] = make([]*Clipping, n)
+		}
+		if c := clips[s][j]; c != nil {
+			return c
+		}
+		c := &Clipping{Clips: true, ClipSource: s.el.Name, ClipLevel: s.clip[j], ClipRegion: s.region[j],
+			SwingPeak: s.peak, SwingGain: s.gain[j], HeadroomMissing: s.missing(j)}
+		clips[s][j] = c
+		return c
+	}
 	for ci := range an.Cases {
 		cs := &an.Cases[ci]
 		src := specs[ci].swing
 		for k := range cs.Transistors {
 			t := &cs.Transistors[k]
+			t.Clipping = none
 			j := a.bjtIdx[netlist.Key(t.Name)]
 			s := worst[j]
 			if src != nil {
 				s = src
 			}
 			if s != nil && s.clip != nil && !math.IsNaN(s.clip[j]) {
-				t.Clips, t.ClipSource, t.ClipLevel, t.ClipRegion = true, s.el.Name, s.clip[j], s.region[j]
-				t.SwingPeak, t.SwingGain, t.HeadroomMissing = s.peak, s.gain[j], s.missing(j)
+				t.Clipping = clipping(s, j)
 			}
 		}
 		if src != nil {

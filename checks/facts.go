@@ -76,8 +76,13 @@ type ModelFacts struct {
 	XTB float64 `expr:"xtb"`
 }
 
-// Transistor holds every fact about one BJT in one case (scenario x corner).
-type Transistor struct {
+// TransistorFixed holds the facts of one BJT that are the same in every
+// case: names, nets, role, model parameters, ratings and the topology
+// facts of the nominal circuit. Every case's Transistor of the device
+// shares one TransistorFixed (so a board of many devices and cases stores
+// them once); it is written only while the analysis builds it and is read
+// only after.
+type TransistorFixed struct {
 	// Name is the flat hierarchical name as written (X1.Q2).
 	Name string `expr:"name"`
 	// Model is the model name as written.
@@ -107,6 +112,41 @@ type Transistor struct {
 	// driver.
 	Darlington bool `expr:"darlington"`
 
+	// Model parameters and ratings.
+	GP     ModelFacts `expr:"gp"`
+	Rating Ratings    `expr:"rating"`
+
+	// Topology, computed from the circuit graph and by solving.
+	// EmitterR is the DC resistance from the emitter to its rail or ground,
+	// Ohm (0 when the emitter is tied straight to a rail).
+	EmitterR float64 `expr:"emitter_r"`
+	// Bleed is true when the base has a DC path to its emitter or rail that
+	// does not pass through the drive.
+	Bleed bool `expr:"bleed"`
+	// StiffDrive is true when a voltage source (or other stiff output)
+	// drives the base with no series resistance.
+	StiffDrive bool `expr:"stiff_drive"`
+	// Drives are the names of the source(s) that drive the base.
+	Drives []string `expr:"drives"`
+	// OpenJudged is true when some scenario opens a drive of this base,
+	// so floating is judged there by solving rather than from Bleed alone.
+	OpenJudged bool `expr:"open_judged"`
+
+	// Nearby are the parts around the transistor that set its bias, by
+	// role (see nearby.go); findings name them as their cause.
+	Nearby []Nearby `expr:"-"`
+
+	// Pos is where the device's line is; Chain the instances that placed it.
+	Pos   netlist.Pos        `expr:"-"`
+	Chain []netlist.Instance `expr:"-"`
+}
+
+// Transistor holds every fact about one BJT in one case (scenario x
+// corner): the device's case-independent facts, promoted from the shared
+// TransistorFixed (t.Name, t.Rating, ...), and this case's own.
+type Transistor struct {
+	*TransistorFixed
+
 	// Operating point, forward-referenced (see the file comment).
 	VBE float64 `expr:"vbe"`
 	VCE float64 `expr:"vce"`
@@ -122,10 +162,6 @@ type Transistor struct {
 	// RegionNotPhysical in a case whose operating point is not physical.
 	Region string `expr:"region"`
 
-	// Model parameters and ratings.
-	GP     ModelFacts `expr:"gp"`
-	Rating Ratings    `expr:"rating"`
-
 	// Ambient is the ambient temperature of this case, C.
 	Ambient float64 `expr:"ambient"`
 	// PdDerated is the derated dissipation limit at Ambient,
@@ -135,40 +171,23 @@ type Transistor struct {
 	// Tj is the junction temperature Ta + Power*RthJA, C.
 	Tj float64 `expr:"tj"`
 
-	// Topology, computed from the circuit graph and by solving.
-	// EmitterR is the DC resistance from the emitter to its rail or ground,
-	// Ohm (0 when the emitter is tied straight to a rail).
-	EmitterR float64 `expr:"emitter_r"`
 	// BaseRth and BaseVth are the Thevenin resistance (Ohm) and open-circuit
 	// voltage (V, forward-referenced to the emitter rail) the base sees with
 	// the transistor removed.
 	BaseRth float64 `expr:"base_rth"`
 	BaseVth float64 `expr:"base_vth"`
-	// Bleed is true when the base has a DC path to its emitter or rail that
-	// does not pass through the drive.
-	Bleed bool `expr:"bleed"`
-	// StiffDrive is true when a voltage source (or other stiff output)
-	// drives the base with no series resistance.
-	StiffDrive bool `expr:"stiff_drive"`
-	// Drives are the names of the source(s) that drive the base.
-	Drives []string `expr:"drives"`
 
 	// The case this fact set belongs to, for rules that judge only some
 	// kinds of case. Swing is true at a point of a signal swing (capacitors
 	// held at their operating-point voltages, see scenarios.go) and
 	// SwingLevel is the swing source's deviation from its centre there, V
 	// (0 outside a swing). DriveOpen is true when the case opens a drive of
-	// this base.
-	Swing      bool    `expr:"swing"`
+	// this base. BaseFloats is true when, in a case that opens a drive of
+	// this base, solving shows that nothing else holds it: the Thevenin
+	// resistance the base sees exceeds 10 GOhm (see
+	// TransistorFixed.OpenJudged). (The flags are kept together at the end
+	// of the struct, where they pack into one word.)
 	SwingLevel float64 `expr:"swing_level"`
-	DriveOpen  bool    `expr:"drive_open"`
-	// BaseFloats is true when, in a case that opens a drive of this base,
-	// solving shows that nothing else holds it: the Thevenin resistance the
-	// base sees exceeds 10 GOhm. OpenJudged (in every case) is true when
-	// some scenario opens a drive of this base, so floating is judged
-	// there by solving rather than from Bleed alone.
-	BaseFloats bool `expr:"base_floats"`
-	OpenJudged bool `expr:"open_judged"`
 
 	// hFE spread (cross-case, per drive-level scenario): IC in the "hfe min"
 	// and "hfe max" corners of this case's scenario, A (forward-referenced),
@@ -176,7 +195,6 @@ type Transistor struct {
 	// (a share, 0.2 for 20 %). BetaJudged is true only in the nominal-corner
 	// case of a scenario whose hFE corners were solved; the other fields
 	// are 0 where it is false.
-	BetaJudged   bool    `expr:"beta_judged"`
 	ICHFEMin     float64 `expr:"ic_at_hfemin"`
 	ICHFEMax     float64 `expr:"ic_at_hfemax"`
 	ICBetaSpread float64 `expr:"ic_beta_spread"`
@@ -192,23 +210,37 @@ type Transistor struct {
 	// temperature from which it ran away, C (the operating Tj when it did
 	// not). OverTemperature is true when the junction settles at a stable
 	// point (loop gain below 1) above Tj max; Tj is then that point.
-	Thermal         bool    `expr:"thermal"`
-	DeviceTemp      float64 `expr:"device_temp"`
-	ThermalGain     float64 `expr:"thermal_gain"`
-	ThermalRunaway  bool    `expr:"thermal_runaway"`
-	RunawayTj       float64 `expr:"runaway_tj"`
-	OverTemperature bool    `expr:"over_temperature"`
+	DeviceTemp  float64 `expr:"device_temp"`
+	ThermalGain float64 `expr:"thermal_gain"`
+	RunawayTj   float64 `expr:"runaway_tj"`
 
-	// Signal clipping (cross-case, over the quasi-static swing of one
-	// source; in a swing case the facts of that case's source, elsewhere
-	// the worst source). Clips is true when the stage, forward-active at the
-	// centre of the swing, leaves forward-active inside it; ClipSource is
-	// the source, ClipLevel the signed deviation of the source from its
-	// centre at which it leaves (V), ClipRegion where it goes ("saturation"
-	// or "cutoff"), SwingPeak the source's peak deviation (V), SwingGain the
-	// small-signal gain dV(collector)/dV(source) at the centre, and
-	// HeadroomMissing = (SwingPeak - |ClipLevel|) * |SwingGain|, the
-	// collector swing the stage lacks, V. Numbers are 0 where Clips is false.
+	// Signal clipping, promoted (t.Clips, ...): see Clipping. The analysis
+	// never leaves it nil; rules read a nil one as no clipping.
+	*Clipping
+
+	// The flags of the groups above.
+	Swing           bool `expr:"swing"`
+	DriveOpen       bool `expr:"drive_open"`
+	BaseFloats      bool `expr:"base_floats"`
+	BetaJudged      bool `expr:"beta_judged"`
+	Thermal         bool `expr:"thermal"`
+	ThermalRunaway  bool `expr:"thermal_runaway"`
+	OverTemperature bool `expr:"over_temperature"`
+}
+
+// Clipping holds the signal-clipping facts of one transistor over the
+// quasi-static swing of one source (cross-case: in a swing case the facts
+// of that case's source, elsewhere the worst source). Clips is true when
+// the stage, forward-active at the centre of the swing, leaves
+// forward-active inside it; ClipSource is the source, ClipLevel the signed
+// deviation of the source from its centre at which it leaves (V),
+// ClipRegion where it goes ("saturation" or "cutoff"), SwingPeak the
+// source's peak deviation (V), SwingGain the small-signal gain
+// dV(collector)/dV(source) at the centre, and HeadroomMissing =
+// (SwingPeak - |ClipLevel|) * |SwingGain|, the collector swing the stage
+// lacks, V. Numbers are 0 where Clips is false. The cases of a transistor
+// share one Clipping per source.
+type Clipping struct {
 	Clips           bool    `expr:"clips"`
 	ClipSource      string  `expr:"clip_source"`
 	ClipLevel       float64 `expr:"clip_level"`
@@ -216,28 +248,15 @@ type Transistor struct {
 	SwingPeak       float64 `expr:"swing_peak"`
 	SwingGain       float64 `expr:"swing_gain"`
 	HeadroomMissing float64 `expr:"headroom_missing"`
-
-	// Nearby are the parts around the transistor that set its bias, by
-	// role (see nearby.go); findings name them as their cause.
-	Nearby []Nearby `expr:"-"`
-
-	// Pos is where the device's line is; Chain the instances that placed it.
-	Pos   netlist.Pos        `expr:"-"`
-	Chain []netlist.Instance `expr:"-"`
 }
 
-// Resistor holds the facts about one resistor in one case.
-type Resistor struct {
+// ResistorFixed holds the facts of one resistor that are the same in
+// every case, shared by its Resistor facts of every case.
+type ResistorFixed struct {
 	Name string `expr:"name"`
 	// NodeA and NodeB are the flat net names.
 	NodeA string `expr:"net_a"`
 	NodeB string `expr:"net_b"`
-	// R is the resistance, Ohm; V the voltage across it, V; I the current
-	// through it, A; Power = V*I, W.
-	R     float64 `expr:"r"`
-	V     float64 `expr:"v"`
-	I     float64 `expr:"i"`
-	Power float64 `expr:"power"`
 	// Rating is the power rating in W (annotation, board file or the
 	// default), and RatingFrom where it came from.
 	Rating     float64 `expr:"power_rating"`
@@ -247,16 +266,34 @@ type Resistor struct {
 	Chain []netlist.Instance `expr:"-"`
 }
 
-// Node holds the facts about one net in one case.
-type Node struct {
+// Resistor holds the facts about one resistor in one case: the shared
+// ResistorFixed, promoted, and this case's values.
+type Resistor struct {
+	*ResistorFixed
+	// R is the resistance, Ohm; V the voltage across it, V; I the current
+	// through it, A; Power = V*I, W.
+	R     float64 `expr:"r"`
+	V     float64 `expr:"v"`
+	I     float64 `expr:"i"`
+	Power float64 `expr:"power"`
+}
+
+// NodeFixed holds the facts of one net that are the same in every case.
+type NodeFixed struct {
 	Name string `expr:"name"`
+	// Pos is the first element line that names the net.
+	Pos netlist.Pos `expr:"-"`
+}
+
+// Node holds the facts about one net in one case: the shared NodeFixed,
+// promoted, and this case's values.
+type Node struct {
+	*NodeFixed
 	// V is the DC voltage to ground, V.
 	V float64 `expr:"v"`
 	// Peak is the largest magnitude of the node voltage over the case's
 	// signal swing (equal to |V| when there is none), V.
 	Peak float64 `expr:"peak"`
-	// Pos is the first element line that names the net.
-	Pos netlist.Pos `expr:"-"`
 }
 
 // Case is one solved operating point of a circuit: a scenario (nominal,
@@ -271,7 +308,11 @@ type Case struct {
 	Transistors []Transistor
 	Resistors   []Resistor
 	Nodes       []Node
-	// Solution is the solved operating point the facts were taken from.
+	// Solution is the solved operating point the facts were taken from,
+	// kept for the nominal case and the stable states of a circuit with
+	// several (Kind "nominal" and "stable state"); nil in the others, whose
+	// facts hold what rules judge (a board of many devices and cases
+	// would otherwise hold every case's node voltages twice).
 	Solution *solve.Result
 	// Kind says how the case was made: "nominal", "drive level", "drive
 	// open", "swing", "corner" or "monte carlo".

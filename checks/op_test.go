@@ -31,9 +31,9 @@ func TestOperatingPointMatchesAnalyze(t *testing.T) {
 			t.Errorf("temperature %g (%s), Analyze %g (%s)", op.Temp, op.TempFrom, an.Temp, an.TempFrom)
 		}
 		want := an.Cases[0].Solution
-		for k, v := range want.Voltage {
-			if res.Voltage[k] != v {
-				t.Errorf("thermal %v: V(%s) = %v, Analyze %v", thermal, k, res.Voltage[k], v)
+		for k, v := range want.Voltages() {
+			if res.V(k) != v {
+				t.Errorf("thermal %v: V(%s) = %v, Analyze %v", thermal, k, res.V(k), v)
 			}
 		}
 		for _, q := range an.Cases[0].Transistors {

@@ -491,7 +491,18 @@ func (a *analyzer) run() (*Analysis, error) {
 	// The facts of each case depend on that case alone: computed on the
 	// workers, into their slots.
 	an.Cases = make([]Case, len(specs))
-	a.pool.each(len(specs), func(_ *worker, i int) { an.Cases[i] = a.caseFacts(&specs[i], &outs[i]) })
+	// A case keeps its whole solution only when it is a nominal one (the
+	// nominal case and the stable states, which the plots and op read);
+	// the others keep their facts, and their solutions go as soon as the
+	// facts are taken, so a board of many devices and cases holds the
+	// solutions of a few.
+	a.pool.each(len(specs), func(_ *worker, i int) {
+		an.Cases[i] = a.caseFacts(&specs[i], &outs[i])
+		if k := specs[i].kind; k != KindNominal && k != KindState {
+			an.Cases[i].Solution = nil
+			outs[i].res = nil
+		}
+	})
 	for i := range specs {
 		for _, u := range an.Cases[i].Unphysical {
 			k := netlist.Key(u.Device)
@@ -647,6 +658,7 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 		}
 		return cs
 	}
+	cs.Transistors = make([]Transistor, 0, len(res.BJTs))
 	for _, op := range res.BJTs {
 		j, ok := a.bjtIdx[netlist.Key(op.Name)]
 		if !ok {
@@ -706,14 +718,20 @@ func (a *analyzer) caseFacts(sp *caseSpec, o *caseOut) Case {
 			return cs
 		}
 	}
-	for _, el := range a.c.Elements {
-		if el.Kind == 'R' && len(el.Nodes) == 2 {
-			k := netlist.Key(el.Name)
-			cs.Resistors = append(cs.Resistors, a.resistor(el, valueOf(sp, k, el.Value), res))
+	cs.Resistors = make([]Resistor, 0, a.nres)
+	for i, el := range a.c.Elements {
+		if fx := a.resFixed[i]; fx != nil {
+			cs.Resistors = append(cs.Resistors, a.resistor(fx, valueOf(sp, netlist.Key(el.Name), el.Value), res))
 		}
 	}
+	cs.Nodes = make([]Node, 0, len(res.Nodes))
 	for _, n := range res.Nodes {
-		cs.Nodes = append(cs.Nodes, Node{Name: n.Name, V: n.V, Peak: math.Abs(n.V), Pos: a.firstPos[nodeKey(n.Name)]})
+		fx := a.nodeFixed[nodeKey(n.Name)]
+		if fx == nil {
+			// A net only the solver names (none today): its own facts.
+			fx = &NodeFixed{Name: n.Name, Pos: a.firstPos[nodeKey(n.Name)]}
+		}
+		cs.Nodes = append(cs.Nodes, Node{NodeFixed: fx, V: n.V, Peak: math.Abs(n.V)})
 	}
 	return cs
 }

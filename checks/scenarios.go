@@ -288,7 +288,7 @@ func swingCircuit(c *netlist.Circuit, res *solve.Result) *netlist.Circuit {
 	sc.Elements = make([]*netlist.Element, 0, len(c.Elements))
 	for _, e := range c.Elements {
 		if e.Kind == 'C' && len(e.Nodes) == 2 && join(gnd(e.Nodes[0]), gnd(e.Nodes[1])) {
-			v := res.Voltage[nodeKey(e.Nodes[0])] - res.Voltage[nodeKey(e.Nodes[1])]
+			v := res.V(nodeKey(e.Nodes[0])) - res.V(nodeKey(e.Nodes[1]))
 			e = &netlist.Element{Kind: 'V', Name: e.Name, Nodes: e.Nodes, Pos: e.Pos, Chain: e.Chain,
 				Source: &netlist.Source{DC: v, HasDC: true}}
 		}
@@ -385,7 +385,7 @@ func (w *worker) sweep(s *swingSource, specs []caseSpec, outs []caseOut, nominal
 		s.clip[j] = math.NaN()
 		if err1 == nil && err2 == nil {
 			c := nodeKey(el.Nodes[0])
-			s.gain[j] = (up.Voltage[c] - dn.Voltage[c]) / (2 * d)
+			s.gain[j] = (up.V(c) - dn.V(c)) / (2 * d)
 		}
 	}
 	// The sweep, outward from the centre on each side.

@@ -49,7 +49,7 @@ Q2 c2 b2 0 N
 	if st.BJTs[0].Region == device.Active || st.BJTs[0].Region == st.BJTs[1].Region {
 		t.Errorf("start state: %s %s, want one saturated and one cut off", st.BJTs[0].Region, st.BJTs[1].Region)
 	}
-	if v := st.Voltage["vcc"]; v != 4.75 {
+	if v := st.V("vcc"); v != 4.75 {
 		t.Errorf("start state solved at VCC %g, want the case's 4.75 V", v)
 	}
 }

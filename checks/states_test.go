@@ -37,8 +37,8 @@ func TestBistableLatch(t *testing.T) {
 	if a.States == nil || len(a.States.Cases) != 2 {
 		t.Fatalf("states %+v; want the latch's two stable states", a.States)
 	}
-	if u := a.States.Unstable; math.Abs(u.Voltage["c1"]-1.04) > 0.05 {
-		t.Errorf("unstable point V(c1) = %g, want about 1.04 V", u.Voltage["c1"])
+	if u := a.States.Unstable; math.Abs(u.V("c1")-1.04) > 0.05 {
+		t.Errorf("unstable point V(c1) = %g, want about 1.04 V", u.V("c1"))
 	}
 	var on []string
 	for _, ci := range a.States.Cases {

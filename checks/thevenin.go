@@ -82,7 +82,7 @@ func (a *analyzer) emitterResistance(q *netlist.Element) float64 {
 	if err != nil {
 		return math.NaN()
 	}
-	return res.Voltage[netlist.Key(name(emit))]
+	return res.V(netlist.Key(name(emit)))
 }
 
 // emitterNetwork is the resistor network of emitterResistance: nets
@@ -163,7 +163,7 @@ func theveninOn(ctx context.Context, sys *solve.System, q *netlist.Element, pol 
 	}
 	o := tightOptions(solve.Options{Temp: solve.Temp(temp), Remove: []string{q.Name}, Open: open, Guess: guess, Context: ctx})
 	vbe := func(r *solve.Result) float64 {
-		return r.Voltage[nodeKey(q.Nodes[1])] - r.Voltage[nodeKey(q.Nodes[2])]
+		return r.V(nodeKey(q.Nodes[1])) - r.V(nodeKey(q.Nodes[2]))
 	}
 	r0, dv, err := sys.SolveResponse(o, map[string]float64{q.Nodes[1]: 1})
 	if err != nil {
@@ -332,7 +332,7 @@ func (r *Localizer) Part(q *netlist.Element, nominal *solve.Result) *netlist.Cir
 			if r.isRail(k) && !isGroundKey(k) && !held[k] {
 				held[k] = true
 				tc.Elements = append(tc.Elements, &netlist.Element{Kind: 'V', Name: "V#rail:" + k, Nodes: []string{n, netlist.Ground},
-					Source: &netlist.Source{DC: nominal.Voltage[k], HasDC: true}, Pos: e.Pos})
+					Source: &netlist.Source{DC: nominal.V(k), HasDC: true}, Pos: e.Pos})
 			}
 		}
 	}

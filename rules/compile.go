@@ -86,7 +86,8 @@ func Facts(s Subject) []Fact {
 
 // walkFacts visits every field of t that expressions see, with its dotted
 // name and field index path. Embedded structs are promoted; named struct
-// fields (rating, gp) become prefixes. The recursion follows the fixed Go
+// fields (rating, gp) become prefixes; an embedded pointer to a struct
+// is followed like an embedded struct. The recursion follows the fixed Go
 // types only, so it is bounded.
 func walkFacts(t reflect.Type, prefix string, idx []int, fn func(name string, idx []int, t reflect.Type)) {
 	for i := 0; i < t.NumField(); i++ {
@@ -101,6 +102,14 @@ func walkFacts(t reflect.Type, prefix string, idx []int, fn func(name string, id
 		path := append(append([]int(nil), idx...), i)
 		if f.Anonymous && f.Type.Kind() == reflect.Struct {
 			walkFacts(f.Type, prefix, path, fn)
+			continue
+		}
+		if f.Anonymous && f.Type.Kind() == reflect.Pointer && f.Type.Elem().Kind() == reflect.Struct {
+			// The case-independent facts a subject shares (checks.
+			// TransistorFixed, ...): promoted as if embedded by value;
+			// reflect.Value.FieldByIndex follows the pointer, which the
+			// analysis never leaves nil.
+			walkFacts(f.Type.Elem(), prefix, path, fn)
 			continue
 		}
 		name := tag

@@ -300,12 +300,19 @@ func sortFindings(fs []Finding) {
 	})
 }
 
+// noClipping is the clipping facts of a transistor whose Clipping was
+// left nil: none. Expressions only read it.
+var noClipping checks.Clipping
+
 // subjects lists the subjects of one case with their environments.
 func subjects(c *checks.Case, params map[string]float64) []subjectRef {
 	var out []subjectRef
 	for i := range c.Transistors {
 		t := &c.Transistors[i]
 		env := transistorEnv{Transistor: *t, Scenario: c.Scenario, Corner: c.Corner, Param: params}
+		if env.Clipping == nil {
+			env.Clipping = &noClipping // facts made by hand
+		}
 		out = append(out, subjectRef{SubjectTransistor, t.Name, t.Pos, t.Chain,
 			[]string{t.Collector, t.Base, t.Emitter}, env, reflect.ValueOf(env)})
 	}

@@ -90,11 +90,11 @@ func TestDefaultRules(t *testing.T) {
 		}, 1, 0.25},
 		// 120 V DC beyond 60 V DC (IEC 62368-1 ES1, from memory).
 		{"hazardous-voltage", func() checks.Case {
-			return oneCase(nil, nil, []checks.Node{{Name: "hv", V: 120, Peak: 120}})
+			return oneCase(nil, nil, []checks.Node{{NodeFixed: &checks.NodeFixed{Name: "hv"}, V: 120, Peak: 120}})
 		}, 120, 60},
 		// A 50 V peak swing beyond 42.4 V peak (IEC 62368-1 ES1, from memory).
 		{"hazardous-voltage", func() checks.Case {
-			return oneCase(nil, nil, []checks.Node{{Name: "sig", V: 0, Peak: 50}})
+			return oneCase(nil, nil, []checks.Node{{NodeFixed: &checks.NodeFixed{Name: "sig"}, V: 0, Peak: 50}})
 		}, 50, 42.4},
 	}
 	for _, tc := range tests {
@@ -120,11 +120,11 @@ func TestDefaultRules(t *testing.T) {
 // TestHazardDCBelowLimit: 50 V DC without swing is below the 60 V DC ES1
 // limit (IEC 62368-1, from memory), though above the 42.4 V AC peak limit.
 func TestHazardDCBelowLimit(t *testing.T) {
-	fs, err := Evaluate(mustDefault(t, nil), analysis(oneCase(nil, nil, []checks.Node{{Name: "rail", V: 50, Peak: 50}})), EvalOptions{})
+	fs, err := Evaluate(mustDefault(t, nil), analysis(oneCase(nil, nil, []checks.Node{{NodeFixed: &checks.NodeFixed{Name: "rail"}, V: 50, Peak: 50}})), EvalOptions{})
 	if err != nil || len(fs) != 0 {
 		t.Fatalf("got %v, %v; want no finding", ids(fs), err)
 	}
-	fs, _ = Evaluate(mustDefault(t, nil), analysis(oneCase(nil, nil, []checks.Node{{Name: "rail", V: 120, Peak: 120}})), EvalOptions{})
+	fs, _ = Evaluate(mustDefault(t, nil), analysis(oneCase(nil, nil, []checks.Node{{NodeFixed: &checks.NodeFixed{Name: "rail"}, V: 120, Peak: 120}})), EvalOptions{})
 	if len(fs) != 1 || !strings.Contains(fs[0].Message, "hazardous voltage") || !strings.Contains(fs[0].Message, "qualified person") {
 		t.Fatalf("hazard message must say it plainly: %v", fs)
 	}

@@ -15,11 +15,13 @@ func ExampleEvaluate() {
 		fmt.Println(err)
 		return
 	}
-	q := checks.Transistor{Name: "Q1", Role: checks.RoleCommonEmitter, Linear: true, Region: "active",
-		VBE: 0.65, VCE: 45, VCB: 44.35, IC: 1e-3, IB: 5e-6, Beta: 200, Power: 45e-3,
+	fixed := &checks.TransistorFixed{Name: "Q1", Role: checks.RoleCommonEmitter, Linear: true,
 		Rating: checks.Ratings{Part: "small-signal-npn", VCEO: 40, VCBO: 60, VEBO: 6, ICMax: 0.2,
 			Pd: 0.625, TjMax: 150, RthJA: 200, HFEMin: 100, HFEMax: 300},
-		Ambient: 25, PdDerated: 0.625, Tj: 34, EmitterR: 1000, Bleed: true}
+		EmitterR: 1000, Bleed: true}
+	q := checks.Transistor{TransistorFixed: fixed, Region: "active",
+		VBE: 0.65, VCE: 45, VCB: 44.35, IC: 1e-3, IB: 5e-6, Beta: 200, Power: 45e-3,
+		Ambient: 25, PdDerated: 0.625, Tj: 34}
 	a := &checks.Analysis{Cases: []checks.Case{{Scenario: "nominal", Transistors: []checks.Transistor{q}}}}
 	fs, err := rules.Evaluate(set, a, rules.EvalOptions{})
 	if err != nil {

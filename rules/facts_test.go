@@ -37,33 +37,24 @@ func derive(t checks.Transistor) checks.Transistor {
 // VCE = 5 V, VBE = 0.65 V (about 0.6-0.7 V at ~1 mA in a small silicon BJT,
 // common practice), hFE 200, RE = 1 kOhm.
 func linearQ() checks.Transistor {
-	return derive(checks.Transistor{Name: "Q1", Model: "GEN_NPN_SS", Polarity: "npn",
-		Collector: "c1", Base: "b1", Emitter: "e1", Role: checks.RoleCommonEmitter, RoleFrom: "topology", Linear: true,
-		VBE: 0.65, VCE: 5, IC: 1e-3, IB: 5e-6, Region: "active", Rating: smallSignalRating(),
-		Ambient: 25, EmitterR: 1000, BaseRth: 10e3, BaseVth: 1.7, Bleed: true,
-		Pos: netlist.Pos{File: "amp.cir", Line: 10, Col: 1}})
+	return derive(checks.Transistor{TransistorFixed: &checks.TransistorFixed{Name: "Q1", Model: "GEN_NPN_SS", Polarity: "npn", Collector: "c1", Base: "b1", Emitter: "e1", Role: checks.RoleCommonEmitter, RoleFrom: "topology", Linear: true, Rating: smallSignalRating(), EmitterR: 1000, Bleed: true, Pos: netlist.Pos{File: "amp.cir", Line: 10, Col: 1}}, VBE: 0.65, VCE: 5, IC: 1e-3, IB: 5e-6, Region: "active", Ambient: 25, BaseRth: 10e3, BaseVth: 1.7})
 }
 
 // switchQ is a hard-saturated switch: IC = 20 mA with IB = 2 mA, forced
 // beta 10 (the common-practice target), VCE(sat) 0.1 V, a bleed resistor.
 func switchQ() checks.Transistor {
-	return derive(checks.Transistor{Name: "Q2", Model: "GEN_NPN_SS", Polarity: "npn",
-		Collector: "c2", Base: "b2", Emitter: "0", Role: checks.RoleSwitch, RoleFrom: "pulse drive",
-		VBE: 0.8, VCE: 0.1, IC: 20e-3, IB: 2e-3, Region: "saturation", Rating: smallSignalRating(),
-		Ambient: 25, EmitterR: 0, BaseRth: 2.2e3, BaseVth: 4.2, Bleed: true, Drives: []string{"Vdrv"},
-		Pos: netlist.Pos{File: "amp.cir", Line: 20, Col: 1}})
+	return derive(checks.Transistor{TransistorFixed: &checks.TransistorFixed{Name: "Q2", Model: "GEN_NPN_SS", Polarity: "npn", Collector: "c2", Base: "b2", Emitter: "0", Role: checks.RoleSwitch, RoleFrom: "pulse drive", Rating: smallSignalRating(), EmitterR: 0, Bleed: true, Drives: []string{"Vdrv"}, Pos: netlist.Pos{File: "amp.cir", Line: 20, Col: 1}}, VBE: 0.8, VCE: 0.1, IC: 20e-3, IB: 2e-3, Region: "saturation", Ambient: 25, BaseRth: 2.2e3, BaseVth: 4.2})
 }
 
 // okResistor carries 25 mW against a 250 mW rating.
 func okResistor() checks.Resistor {
-	return checks.Resistor{Name: "R1", NodeA: "vcc", NodeB: "c1", R: 1000, V: 5, I: 5e-3, Power: 25e-3,
-		Rating: 0.25, RatingFrom: "default", Pos: netlist.Pos{File: "amp.cir", Line: 5, Col: 1}}
+	return checks.Resistor{ResistorFixed: &checks.ResistorFixed{Name: "R1", NodeA: "vcc", NodeB: "c1", Rating: 0.25, RatingFrom: "default", Pos: netlist.Pos{File: "amp.cir", Line: 5, Col: 1}}, R: 1000, V: 5, I: 5e-3, Power: 25e-3}
 }
 
 // okNode is a 12 V DC rail, within the ES1 limits of IEC 62368-1 (60 V DC,
 // from memory).
 func okNode() checks.Node {
-	return checks.Node{Name: "vcc", V: 12, Peak: 12, Pos: netlist.Pos{File: "amp.cir", Line: 3, Col: 1}}
+	return checks.Node{NodeFixed: &checks.NodeFixed{Name: "vcc", Pos: netlist.Pos{File: "amp.cir", Line: 3, Col: 1}}, V: 12, Peak: 12}
 }
 
 // analysis wraps cases into an Analysis.

@@ -54,16 +54,13 @@ func FuzzEvaluate(f *testing.F) {
 			}
 			return math.Float64frombits(binary.LittleEndian.Uint64(raw[8*i:]))
 		}
-		q := checks.Transistor{Name: "Q1", Polarity: "npn", VBE: x(0), VCE: x(1), IC: x(2), IB: x(3),
-			Rating:   checks.Ratings{VCEO: x(4), VCBO: x(5), VEBO: x(6), ICMax: x(7), Pd: x(8), HFEMin: x(13)},
-			EmitterR: x(9), Ambient: x(10), PdDerated: x(14), Beta: x(15), Power: x(1) * x(2), VCB: x(1) - x(0),
-			Region: regions[int(flags)%len(regions)], Bleed: flags&8 != 0, StiffDrive: flags&16 != 0}
+		q := checks.Transistor{TransistorFixed: &checks.TransistorFixed{Name: "Q1", Polarity: "npn", Rating: checks.Ratings{VCEO: x(4), VCBO: x(5), VEBO: x(6), ICMax: x(7), Pd: x(8), HFEMin: x(13)}, EmitterR: x(9), Bleed: flags&8 != 0, StiffDrive: flags&16 != 0}, VBE: x(0), VCE: x(1), IC: x(2), IB: x(3), Ambient: x(10), PdDerated: x(14), Beta: x(15), Power: x(1) * x(2), VCB: x(1) - x(0), Region: regions[int(flags)%len(regions)]}
 		q.Role, q.Linear = checks.RoleCommonEmitter, true
 		if flags&32 != 0 {
 			q.Role, q.Linear = checks.RoleSwitch, false
 		}
-		r := checks.Resistor{Name: "R1", R: x(9), V: x(11), I: x(2), Power: x(11) * x(2), Rating: x(8)}
-		n := checks.Node{Name: "n1", V: x(11), Peak: x(12)}
+		r := checks.Resistor{ResistorFixed: &checks.ResistorFixed{Name: "R1", Rating: x(8)}, R: x(9), V: x(11), I: x(2), Power: x(11) * x(2)}
+		n := checks.Node{NodeFixed: &checks.NodeFixed{Name: "n1"}, V: x(11), Peak: x(12)}
 		fs, err := Evaluate(set, analysis(oneCase([]checks.Transistor{q}, []checks.Resistor{r}, []checks.Node{n})), EvalOptions{})
 		if err != nil {
 			t.Fatal(err)

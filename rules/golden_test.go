@@ -69,7 +69,7 @@ func TestFindingsGolden(t *testing.T) {
 		r := okResistor()
 		r.V, r.I, r.Power = 10, 0.1, 1
 		c := oneCase([]checks.Transistor{derive(q1), derive(q2), derive(q3)}, []checks.Resistor{r},
-			[]checks.Node{{Name: "hv", V: 120, Peak: 120}})
+			[]checks.Node{{NodeFixed: &checks.NodeFixed{Name: "hv"}, V: 120, Peak: 120}})
 		c.Scenario = scn
 		return c
 	}

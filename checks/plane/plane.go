@@ -186,7 +186,7 @@ func LoadLineOf(c *netlist.Circuit, name string, opt solve.Options) (LoadLine, e
 	}
 	without := func(extra *netlist.Element) *netlist.Circuit { return solve.Without(c, q, extra) }
 	vfwd := func(r *solve.Result) float64 {
-		return r.Voltage[netlist.Key(hi)] - r.Voltage[netlist.Key(lo)]
+		return r.V(netlist.Key(hi)) - r.V(netlist.Key(lo))
 	}
 
 	// Open circuit, then a small test current: VOpen and the resistance.
@@ -244,7 +244,8 @@ func LoadLineOf(c *netlist.Circuit, name string, opt solve.Options) (LoadLine, e
 		prev = r
 		// The branch current flows into the source's + terminal: the
 		// current the network drives into the transistor's place.
-		ll.Curve = append(ll.Curve, Point{VCE: v, IC: r.Current[netlist.Key("V#plane")]})
+		ic, _ := r.I("V#plane")
+		ll.Curve = append(ll.Curve, Point{VCE: v, IC: ic})
 	}
 	if len(ll.Curve) < 2 || ll.Curve[len(ll.Curve)-1].VCE != 0 {
 		return LoadLine{}, fmt.Errorf("the circuit without %s could not be solved along the load line", q.Name)

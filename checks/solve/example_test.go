@@ -37,7 +37,8 @@ func ExampleSolve() {
 	}
 	op := r.BJTs[0]
 	fmt.Printf("%s %s: VBE %.3f V, IC %.4g A, VCE %.3g V, %s\n", op.Name, op.Polarity, op.VBE, op.IC, op.VCE, op.Region)
-	fmt.Printf("supply current %.4g A (%s)\n", r.Current["vcc"], r.Method)
+	isupply, _ := r.I("VCC")
+	fmt.Printf("supply current %.4g A (%s)\n", isupply, r.Method)
 	// Output:
 	// Q1 npn: VBE 0.662 V, IC 0.00129 A, VCE 4.64 V, active
 	// supply current -0.001394 A (newton)

@@ -77,7 +77,7 @@ func TestSolveResponseIsTheveninResistance(t *testing.T) {
 	if math.Abs(dv["b"]-want) > 1e-9*want {
 		t.Errorf("response %.6f Ohm, want %.6f", dv["b"], want)
 	}
-	if v := r.Voltage["b"]; math.Abs(v-12*10e3/57e3) > 1e-6 {
+	if v := r.V("b"); math.Abs(v-12*10e3/57e3) > 1e-6 {
 		t.Errorf("V(b) = %g, want the divider's 2.105 V", v)
 	}
 }
@@ -124,8 +124,8 @@ func TestSolveSensitivitiesMatchResolving(t *testing.T) {
 			if err := s.SetValue(name, v); err != nil {
 				t.Fatal(err)
 			}
-			for k, v := range r0.Voltage {
-				fd := (r1.Voltage[k] - v) / 1e-6
+			for k, v := range r0.Voltages() {
+				fd := (r1.V(k) - v) / 1e-6
 				if d := math.Abs(dv[i][k] - fd); d > 5e-3*math.Abs(fd) && d > 1e-5*math.Abs(v)+1e-9 {
 					t.Errorf("%s, %s: dV(%s)/dlnR %.6g V, re-solving %.6g", f, name, k, dv[i][k], fd)
 				}

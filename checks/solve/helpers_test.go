@@ -87,7 +87,7 @@ func relErr(got, want float64) float64 { return math.Abs(got-want) / math.Abs(wa
 func kclResiduals(t fataler, c *netlist.Circuit, r *Result) (res, mag map[string]float64) {
 	t.Helper()
 	res, mag = map[string]float64{}, map[string]float64{}
-	v := func(n string) float64 { return r.Voltage[netlist.Key(n)] }
+	v := func(n string) float64 { return r.V(netlist.Key(n)) }
 	leave := func(n string, i float64) {
 		if isGround(n) {
 			return
@@ -101,7 +101,7 @@ func kclResiduals(t fataler, c *netlist.Circuit, r *Result) (res, mag map[string
 		switch e.Kind {
 		case 'R':
 			if e.Value == 0 {
-				i := r.Current[netlist.Key(e.Name)]
+				i := r.Ival(netlist.Key(e.Name))
 				leave(n[0], i)
 				leave(n[1], -i)
 				continue
@@ -110,7 +110,7 @@ func kclResiduals(t fataler, c *netlist.Circuit, r *Result) (res, mag map[string
 			leave(n[0], i)
 			leave(n[1], -i)
 		case 'V', 'L', 'E', 'H':
-			i := r.Current[netlist.Key(e.Name)]
+			i := r.Ival(netlist.Key(e.Name))
 			leave(n[0], i)
 			leave(n[1], -i)
 		case 'I':
@@ -121,7 +121,7 @@ func kclResiduals(t fataler, c *netlist.Circuit, r *Result) (res, mag map[string
 			leave(n[0], i)
 			leave(n[1], -i)
 		case 'F':
-			i := e.Value * r.Current[netlist.Key(e.Control)]
+			i := e.Value * r.Ival(netlist.Key(e.Control))
 			leave(n[0], i)
 			leave(n[1], -i)
 		case 'D':
@@ -157,4 +157,10 @@ func kclResiduals(t fataler, c *netlist.Circuit, r *Result) (res, mag map[string
 		}
 	}
 	return res, mag
+}
+
+// Ival is the branch current of an element, 0 when it has none.
+func (r *Result) Ival(element string) float64 {
+	i, _ := r.I(element)
+	return i
 }

@@ -400,9 +400,15 @@ func (s *System) guess(g *Result) ([]float64, bool) {
 	if g == nil {
 		return x, false
 	}
-	for i, nm := range s.nodeNames {
-		x[i] = g.Voltage[netlist.Key(nm)]
+	same := g.index != nil && g.index == s.index // a result of this System: slot by slot
+	for i := range s.nodeNames {
+		if same {
+			x[i] = g.Nodes[i].V
+		} else {
+			x[i] = g.V(s.nodeKeys[i])
+		}
 	}
+	br := 0
 	for _, el := range s.elems {
 		for t, in := range el.inner {
 			if in >= s.nExt {
@@ -410,7 +416,12 @@ func (s *System) guess(g *Result) ([]float64, bool) {
 			}
 		}
 		if el.br >= 0 {
-			x[el.br] = g.Current[netlist.Key(el.e.Name)]
+			if same {
+				x[el.br] = g.Branches[br].I
+			} else {
+				x[el.br], _ = g.I(el.key)
+			}
+			br++
 		}
 	}
 	for _, v := range x {

@@ -64,7 +64,7 @@ RF f 0 1k
 		t.Fatal(err)
 	}
 	for node, want := range map[string]float64{"s": 3, "t": 8, "g": 6, "u": 6, "h": 6, "f": 8} {
-		if got := r.Voltage[node]; math.Abs(got-want) > 1e-6*want {
+		if got := r.V(node); math.Abs(got-want) > 1e-6*want {
 			t.Errorf("V(%s) = %.9g, want %g (hand value)", node, got, want)
 		}
 	}

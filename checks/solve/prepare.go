@@ -54,6 +54,9 @@ type System struct {
 	// nodeKeys are the netlist.Key of each of nodeNames, for the Result's
 	// lookup maps (computed once, not per solve).
 	nodeKeys []string
+	// index is the name index of the results (result.go), built at the
+	// first result.
+	index *resultIndex
 	// names names every unknown: V(node), V(Q1:b'), I(V1).
 	names  []string
 	nExt   int // circuit nodes

@@ -6,20 +6,19 @@ import (
 )
 
 // Result is a DC operating point. Slices are in netlist order (nodes in
-// order of first appearance); the maps index the same values by
-// netlist.Key for lookup.
+// order of first appearance); V and I look values up by name. The
+// lookup index is the System's, shared by all its results, so a result
+// stores each value once.
 type Result struct {
 	// Nodes are the circuit's node voltages, V; ground is not listed.
 	Nodes []NodeVoltage
-	// Voltage maps netlist.Key(node) to its voltage; ground ("0", "gnd",
-	// "gnd!") is included as 0.
-	Voltage map[string]float64
 	// Branches are the branch currents of V, L, E, H and zero-ohm R
 	// elements, positive into the first (+) terminal: a supply that
 	// delivers power shows a negative current.
 	Branches []BranchCurrent
-	// Current maps netlist.Key(element name) to its branch current.
-	Current map[string]float64
+	// index maps netlist.Key of node and element names to their slots in
+	// Nodes and Branches.
+	index *resultIndex
 	// BJTs are the operating points of the transistors.
 	BJTs []BJTOp
 	// Diodes are the operating points of the diodes.
@@ -36,6 +35,49 @@ type Result struct {
 	// exponentials: the real device law fails Kirchhoff's current law
 	// there (verify.go). Empty for a physical solution (Physical).
 	Unphysical []Unphysical
+}
+
+// resultIndex maps names to the slots of a System's results.
+type resultIndex struct {
+	node   map[string]int // netlist.Key(node) -> index in Nodes
+	branch map[string]int // netlist.Key(element) -> index in Branches
+}
+
+// V returns the voltage of a node, V, by its name in any letter case;
+// ground ("0", "gnd", "gnd!") and a node the circuit does not have read 0.
+func (r *Result) V(node string) float64 {
+	if r == nil || r.index == nil {
+		return 0
+	}
+	if i, ok := r.index.node[netlist.Key(node)]; ok {
+		return r.Nodes[i].V
+	}
+	return 0
+}
+
+// I returns the branch current of an element (see Branches), A, by its
+// name in any letter case, and false when it has no branch.
+func (r *Result) I(element string) (float64, bool) {
+	if r == nil || r.index == nil {
+		return 0, false
+	}
+	if i, ok := r.index.branch[netlist.Key(element)]; ok {
+		return r.Branches[i].I, true
+	}
+	return 0, false
+}
+
+// Voltages returns every node voltage by netlist.Key of the node, ground
+// included as 0: a copy, for printing and comparing.
+func (r *Result) Voltages() map[string]float64 {
+	m := map[string]float64{netlist.Ground: 0, "gnd": 0, "gnd!": 0}
+	if r == nil || r.index == nil {
+		return m
+	}
+	for k, i := range r.index.node {
+		m[k] = r.Nodes[i].V
+	}
+	return m
 }
 
 // NodeVoltage is one node's voltage.
@@ -94,9 +136,11 @@ type DiodeOp struct {
 // evaluated (at x).
 func (s *System) result(w *work, x []float64, m Method) *Result {
 	nb := s.n - s.nNodes // branch unknowns
+	if s.index == nil {
+		s.index = s.newIndex()
+	}
 	r := &Result{
-		Voltage:    make(map[string]float64, len(s.nodeNames)+3),
-		Current:    make(map[string]float64, nb),
+		index:      s.index,
 		Method:     m,
 		Iterations: w.iters,
 		Temp:       w.st.temp,
@@ -104,18 +148,14 @@ func (s *System) result(w *work, x []float64, m Method) *Result {
 		Branches:   make([]BranchCurrent, 0, nb),
 		BJTs:       make([]BJTOp, 0, len(s.bjts)),
 	}
-	r.Voltage[netlist.Ground], r.Voltage["gnd"], r.Voltage["gnd!"] = 0, 0, 0
 	for i, nm := range s.nodeNames {
 		r.Nodes = append(r.Nodes, NodeVoltage{Name: nm, V: x[i]})
-		r.Voltage[s.nodeKeys[i]] = x[i]
 	}
 	for _, el := range s.elems {
 		if el.br < 0 {
 			continue
 		}
-		i := x[el.br]
-		r.Branches = append(r.Branches, BranchCurrent{Name: el.e.Name, Kind: el.kind, I: i, Pos: el.e.Pos})
-		r.Current[el.key] = i
+		r.Branches = append(r.Branches, BranchCurrent{Name: el.e.Name, Kind: el.kind, I: x[el.br], Pos: el.e.Pos})
 	}
 	for j, el := range s.bjts {
 		b, ev := w.bjt[j], w.evB[j]
@@ -138,4 +178,18 @@ func (s *System) result(w *work, x []float64, m Method) *Result {
 			Temp: w.dio[j].Temp, Pos: el.e.Pos})
 	}
 	return r
+}
+
+// newIndex builds the name index of the System's results, in the order
+// result fills Nodes and Branches.
+func (s *System) newIndex() *resultIndex {
+	ix := &resultIndex{node: s.nodeIdx, branch: map[string]int{}} // nodeIdx is fixed once prepared
+	n := 0
+	for _, el := range s.elems {
+		if el.br >= 0 {
+			ix.branch[el.key] = n
+			n++
+		}
+	}
+	return ix
 }

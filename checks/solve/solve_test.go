@@ -86,8 +86,8 @@ func TestDiodeSeriesResistorLambertW(t *testing.T) {
 		if e := relErr(got, want); e > 1e-6 {
 			t.Errorf("V=%g R=%g IS=%g N=%g: I = %.9g, Lambert-W %.9g (rel err %.2g)", tt.v, tt.r, tt.is, tt.n, got, want, e)
 		}
-		if e := relErr(-r.Current["v1"], want); e > 1e-6 {
-			t.Errorf("supply current %g, want %g", -r.Current["v1"], want)
+		if e := relErr(-r.Ival("v1"), want); e > 1e-6 {
+			t.Errorf("supply current %g, want %g", -r.Ival("v1"), want)
 		}
 	}
 }
@@ -133,8 +133,8 @@ func TestForcedVBEGummelPoon(t *testing.T) {
 			t.Errorf("VBE %g: IC %g IB %g, by hand IC %g IB %g", vbe, q.IC, q.IB, ic, ib)
 		}
 		// SPICE convention: a supply delivering current shows it negative.
-		if relErr(r.Current["vc"], -q.IC) > 1e-9 {
-			t.Errorf("I(VC) = %g, want -IC = %g", r.Current["vc"], -q.IC)
+		if relErr(r.Ival("vc"), -q.IC) > 1e-9 {
+			t.Errorf("I(VC) = %g, want -IC = %g", r.Ival("vc"), -q.IC)
 		}
 		if q.IE >= 0 || math.Abs(q.IC+q.IB+q.IE) > 1e-18 || q.Region != device.Active {
 			t.Errorf("IE %g, IC+IB+IE = %g, region %s", q.IE, q.IC+q.IB+q.IE, q.Region)
@@ -188,7 +188,7 @@ func degenerated(t *testing.T, vin, rs, rc, re float64) *Result {
 func TestDegeneratedCommonEmitterGain(t *testing.T) {
 	const rs, rc, re, vin, h = 1e3, 10e3, 2.2e3, 2.0, 1e-3
 	r := degenerated(t, vin, rs, rc, re)
-	gain := (degenerated(t, vin+h, rs, rc, re).Voltage["out"] - degenerated(t, vin-h, rs, rc, re).Voltage["out"]) / (2 * h)
+	gain := (degenerated(t, vin+h, rs, rc, re).V("out") - degenerated(t, vin-h, rs, rc, re).V("out")) / (2 * h)
 	// Common practice: a degenerated common-emitter stage has gain ≈ −RC/RE.
 	if e := relErr(gain, -rc/re); e > 0.05 {
 		t.Errorf("gain %g, -RC/RE = %g (rel %g)", gain, -rc/re, e)
@@ -228,11 +228,11 @@ func TestVoltageDividerBiasTextbook(t *testing.T) {
 	if e := relErr(-q.IE, ie); e > 0.03 {
 		t.Errorf("IE = %.4g, approximate analysis %.4g (rel %g)", -q.IE, ie, e)
 	}
-	if e := relErr(r.Voltage["c"], vc); e > 0.03 {
-		t.Errorf("VC = %.4g, approximate analysis %.4g", r.Voltage["c"], vc)
+	if e := relErr(r.V("c"), vc); e > 0.03 {
+		t.Errorf("VC = %.4g, approximate analysis %.4g", r.V("c"), vc)
 	}
-	if relErr(-q.IE, 1.29e-3) > 0.03 || relErr(r.Voltage["c"], 8.6) > 0.03 {
-		t.Errorf("IE = %.4g, VC = %.4g; the book has 1.29 mA, 8.6 V (from memory)", -q.IE, r.Voltage["c"])
+	if relErr(-q.IE, 1.29e-3) > 0.03 || relErr(r.V("c"), 8.6) > 0.03 {
+		t.Errorf("IE = %.4g, VC = %.4g; the book has 1.29 mA, 8.6 V (from memory)", -q.IE, r.V("c"))
 	}
 	if q.Region != device.Active {
 		t.Errorf("region %s, want active", q.Region)
@@ -339,13 +339,13 @@ func TestLinearElements(t *testing.T) {
 			b.R("RL", "out", "0", 1e3)
 		}, func(r *Result) []check {
 			// V(out) = 3·V(in); the source delivers 3 mA out of its + terminal.
-			return []check{{"V(out)", r.Voltage["out"], 3}, {"I(E1)", r.Current["e1"], -3e-3}}
+			return []check{{"V(out)", r.V("out"), 3}, {"I(E1)", r.Ival("e1"), -3e-3}}
 		}},
 		{"G", func(b *builder) {
 			b.V("V1", "in", "0", 1)
 			b.add('G', "G1", 2e-3, "0", "out", "in", "0") // 2 mA from 0 through G1 into out
 			b.R("RL", "out", "0", 1e3)
-		}, func(r *Result) []check { return []check{{"V(out)", r.Voltage["out"], 2}} }},
+		}, func(r *Result) []check { return []check{{"V(out)", r.V("out"), 2}} }},
 		{"F", func(b *builder) {
 			b.V("V1", "a", "0", 5)
 			b.R("R1", "a", "b", 1e3)
@@ -354,7 +354,7 @@ func TestLinearElements(t *testing.T) {
 			f.Control = "VS"
 			b.R("RL", "out", "0", 100)
 		}, func(r *Result) []check {
-			return []check{{"I(VS)", r.Current["vs"], 5e-3}, {"V(out)", r.Voltage["out"], 1}}
+			return []check{{"I(VS)", r.Ival("vs"), 5e-3}, {"V(out)", r.V("out"), 1}}
 		}},
 		{"H", func(b *builder) {
 			b.V("V1", "a", "0", 5)
@@ -364,7 +364,7 @@ func TestLinearElements(t *testing.T) {
 			h.Control = "vs" // case-insensitive
 			b.R("RL", "out", "0", 1e3)
 		}, func(r *Result) []check {
-			return []check{{"V(out)", r.Voltage["out"], 0.5}, {"I(H1)", r.Current["h1"], -0.5e-3}}
+			return []check{{"V(out)", r.V("out"), 0.5}, {"I(H1)", r.Ival("h1"), -0.5e-3}}
 		}},
 		{"L short", func(b *builder) {
 			b.V("V1", "a", "0", 10)
@@ -372,29 +372,29 @@ func TestLinearElements(t *testing.T) {
 			b.L("L1", "b", "c")
 			b.R("R2", "c", "0", 1e3)
 		}, func(r *Result) []check {
-			return []check{{"V(b)", r.Voltage["b"], 5}, {"V(c)", r.Voltage["c"], 5}, {"I(L1)", r.Current["l1"], 5e-3},
-				{"I(V1)", r.Current["v1"], -5e-3}}
+			return []check{{"V(b)", r.V("b"), 5}, {"V(c)", r.V("c"), 5}, {"I(L1)", r.Ival("l1"), 5e-3},
+				{"I(V1)", r.Ival("v1"), -5e-3}}
 		}},
 		{"C open", func(b *builder) {
 			b.V("V1", "a", "0", 10)
 			b.R("R1", "a", "b", 1e3)
 			b.C("C1", "b", "0")
 			b.R("R2", "b", "0", 3e3)
-		}, func(r *Result) []check { return []check{{"V(b)", r.Voltage["b"], 7.5}} }},
+		}, func(r *Result) []check { return []check{{"V(b)", r.V("b"), 7.5}} }},
 		{"zero-ohm R short", func(b *builder) {
 			b.V("V1", "a", "0", 10)
 			b.R("R1", "a", "b", 1e3)
 			b.R("R0", "b", "c", 0)
 			b.R("R2", "c", "0", 1e3)
 		}, func(r *Result) []check {
-			return []check{{"V(c)", r.Voltage["c"], 5}, {"I(R0)", r.Current["r0"], 5e-3}}
+			return []check{{"V(c)", r.V("c"), 5}, {"I(R0)", r.Ival("r0"), 5e-3}}
 		}},
 		{"I source", func(b *builder) {
 			b.I("I1", "0", "a", 2e-3) // 2 mA from 0 through I1 into a
 			b.R("R1", "a", "0", 1e3)
 			b.V("VX", "x", "GND", 1) // gnd alias
 			b.R("RX", "x", "0", 1)
-		}, func(r *Result) []check { return []check{{"V(a)", r.Voltage["a"], 2}, {"I(VX)", r.Current["vx"], -1}} }},
+		}, func(r *Result) []check { return []check{{"V(a)", r.V("a"), 2}, {"I(VX)", r.Ival("vx"), -1}} }},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -655,7 +655,7 @@ func TestCapacitorOnlyNodesLeak(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if vb, vc := r.Voltage["b"], r.Voltage["c"]; math.Abs(vb-2.5) > 1e-6 || math.Abs(vc+2.5) > 1e-6 {
+	if vb, vc := r.V("b"), r.V("c"); math.Abs(vb-2.5) > 1e-6 || math.Abs(vc+2.5) > 1e-6 {
 		t.Errorf("V(b) = %g, V(c) = %g; want +2.5 and -2.5 V", vb, vc)
 	}
 }

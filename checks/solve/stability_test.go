@@ -39,8 +39,8 @@ func TestLatchStability(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if vc := r.Voltage["c1"]; math.Abs(vc-1.04) > 0.05 || math.Abs(r.Voltage["c2"]-vc) > 1e-6 {
-		t.Fatalf("balanced point: V(c1) %g V(c2) %g, want both about 1.04 V", vc, r.Voltage["c2"])
+	if vc := r.V("c1"); math.Abs(vc-1.04) > 0.05 || math.Abs(r.V("c2")-vc) > 1e-6 {
+		t.Fatalf("balanced point: V(c1) %g V(c2) %g, want both about 1.04 V", vc, r.V("c2"))
 	}
 	st, err := s.Stability(Options{}, r)
 	if err != nil {
@@ -62,14 +62,14 @@ func TestLatchStability(t *testing.T) {
 			on, off = off, on
 		}
 		if on.Region != device.Saturation || off.Region != device.Cutoff {
-			t.Errorf("state %v: regions %s and %s, want saturation and cutoff", x.Voltage, on.Region, off.Region)
+			t.Errorf("state %v: regions %s and %s, want saturation and cutoff", x.Voltages(), on.Region, off.Region)
 		}
 		if math.Abs(on.IC-4.9e-3) > 0.1e-3 || math.Abs(off.VCE-4.61) > 0.05 {
 			t.Errorf("state: IC(on) %g (hand 4.9 mA), VCE(off) %g (hand 4.61 V)", on.IC, off.VCE)
 		}
 		st2, err := s.Stability(Options{}, x)
 		if err != nil || st2.Unstable {
-			t.Errorf("state %v not stable: %+v %v", x.Voltage, st2, err)
+			t.Errorf("state %v not stable: %+v %v", x.Voltages(), st2, err)
 		}
 	}
 	if states[0].BJTs[0].Region == states[1].BJTs[0].Region {
@@ -114,7 +114,7 @@ func TestThyristorPairStates(t *testing.T) {
 	r := mustSolve(t, b.c, Options{})
 	st, err := s.Stability(Options{}, r)
 	if err != nil || !st.Unstable {
-		t.Fatalf("first solution %v (%s, %s): %+v %v; want unstable", r.Voltage, r.BJTs[0].Region, r.BJTs[1].Region, st, err)
+		t.Fatalf("first solution %v (%s, %s): %+v %v; want unstable", r.Voltages(), r.BJTs[0].Region, r.BJTs[1].Region, st, err)
 	}
 	states, err := s.StableStates(Options{}, st)
 	if err != nil || len(states) != 2 {
@@ -122,19 +122,19 @@ func TestThyristorPairStates(t *testing.T) {
 	}
 	var on, off *Result
 	for _, x := range states {
-		if x.Voltage["a"] < 6 {
+		if x.V("a") < 6 {
 			on = x
 		} else {
 			off = x
 		}
 	}
 	if on == nil || off == nil {
-		t.Fatalf("states %v %v: want one on, one off", states[0].Voltage, states[1].Voltage)
+		t.Fatalf("states %v %v: want one on, one off", states[0].Voltages(), states[1].Voltages())
 	}
-	if i := (12 - on.Voltage["a"]) / 1e3; math.Abs(i-11.2e-3) > 0.3e-3 || on.BJTs[0].Region != device.Saturation || on.BJTs[1].Region != device.Saturation {
+	if i := (12 - on.V("a")) / 1e3; math.Abs(i-11.2e-3) > 0.3e-3 || on.BJTs[0].Region != device.Saturation || on.BJTs[1].Region != device.Saturation {
 		t.Errorf("on state: %g A (hand 11.2 mA), %s %s", i, on.BJTs[0].Region, on.BJTs[1].Region)
 	}
-	if off.Voltage["a"] < 11.99 || off.BJTs[0].Region != device.Cutoff || off.BJTs[1].Region != device.Cutoff {
-		t.Errorf("off state: V(a) %g, %s %s", off.Voltage["a"], off.BJTs[0].Region, off.BJTs[1].Region)
+	if off.V("a") < 11.99 || off.BJTs[0].Region != device.Cutoff || off.BJTs[1].Region != device.Cutoff {
+		t.Errorf("off state: V(a) %g, %s %s", off.V("a"), off.BJTs[0].Region, off.BJTs[1].Region)
 	}
 }

@@ -64,7 +64,7 @@ func TestSolveStops(t *testing.T) {
 	b.V("V1", "a", "0", 5)
 	b.R("R1", "a", "0", 1e3)
 	r, err := Solve(b.c, Options{Context: context.Background()})
-	if err != nil || r.Voltage["a"] != 5 {
+	if err != nil || r.V("a") != 5 {
 		t.Fatalf("with a live context: %v, V(a) %v", err, r)
 	}
 }

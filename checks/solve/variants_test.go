@@ -28,8 +28,9 @@ func TestVariantsMatchRebuiltCircuits(t *testing.T) {
 	}
 	same := func(what string, got, want *Result) {
 		t.Helper()
-		for k, v := range want.Voltage {
-			if g, ok := got.Voltage[k]; ok && math.Abs(g-v) > DefaultVNTol+1e-6*math.Abs(v) {
+		gotV := got.Voltages()
+		for k, v := range want.Voltages() {
+			if g, ok := gotV[k]; ok && math.Abs(g-v) > DefaultVNTol+1e-6*math.Abs(v) {
 				t.Errorf("%s: V(%s) = %.9g, rebuilt circuit %.9g", what, k, g, v)
 			}
 		}

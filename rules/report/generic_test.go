@@ -17,9 +17,9 @@ func TestGenericLine(t *testing.T) {
 		if i > 8 {
 			model = "OTHER"
 		}
-		ts = append(ts, checks.Transistor{Name: fmt.Sprintf("Q%d", i), Model: model, Rating: checks.Ratings{Generic: true}})
+		ts = append(ts, checks.Transistor{TransistorFixed: &checks.TransistorFixed{Name: fmt.Sprintf("Q%d", i), Model: model, Rating: checks.Ratings{Generic: true}}})
 	}
-	ts = append(ts, checks.Transistor{Name: "Q11", Model: "BC547B", Rating: checks.Ratings{Part: "BC547B"}})
+	ts = append(ts, checks.Transistor{TransistorFixed: &checks.TransistorFixed{Name: "Q11", Model: "BC547B", Rating: checks.Ratings{Part: "BC547B"}}})
 	f := &File{Analysis: &checks.Analysis{Cases: []checks.Case{{Transistors: ts}}}}
 	got := genericLine(f)
 	want := "generic ratings: Q1, Q2, Q3, Q4, Q5, Q6, Q7, Q8 (model MYNPN) and 2 more judged against the conservative generic class"
@@ -36,11 +36,11 @@ func TestGenericLine(t *testing.T) {
 // parts library, with the caution that they are recalled.
 func TestLibraryLine(t *testing.T) {
 	ts := []checks.Transistor{
-		{Name: "Q1", Rating: checks.Ratings{Part: "2N3904", Origin: "parts library: from memory"}},
-		{Name: "Q2", Rating: checks.Ratings{Part: "2N3904", Origin: "parts library: from memory"}},
-		{Name: "Q3", Rating: checks.Ratings{Part: "BC547B", Origin: "parts library: from memory"}},
-		{Name: "Q4", Rating: checks.Ratings{Part: "MYNPN", Origin: "annotation at t.cir:9:1"}},
-		{Name: "Q5", Rating: checks.Ratings{Part: "generic", Origin: "parts library: x", Generic: true}},
+		{TransistorFixed: &checks.TransistorFixed{Name: "Q1", Rating: checks.Ratings{Part: "2N3904", Origin: "parts library: from memory"}}},
+		{TransistorFixed: &checks.TransistorFixed{Name: "Q2", Rating: checks.Ratings{Part: "2N3904", Origin: "parts library: from memory"}}},
+		{TransistorFixed: &checks.TransistorFixed{Name: "Q3", Rating: checks.Ratings{Part: "BC547B", Origin: "parts library: from memory"}}},
+		{TransistorFixed: &checks.TransistorFixed{Name: "Q4", Rating: checks.Ratings{Part: "MYNPN", Origin: "annotation at t.cir:9:1"}}},
+		{TransistorFixed: &checks.TransistorFixed{Name: "Q5", Rating: checks.Ratings{Part: "generic", Origin: "parts library: x", Generic: true}}},
 	}
 	f := &File{Analysis: &checks.Analysis{Cases: []checks.Case{{Transistors: ts}}}}
 	want := "library ratings: Q1, Q2 (2N3904), Q3 (BC547B), from memory of data sheets; check the data sheet of the part you use"

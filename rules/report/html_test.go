@@ -157,7 +157,7 @@ func TestHTMLMargins(t *testing.T) {
 			{Point: plane.Point{VCE: 46, IC: 1e-3}, Case: "nominal", Power: 0.045},
 			{Point: plane.Point{VCE: 30, IC: 2e-3}, Case: "hot", Power: 0.42},
 		}}
-	m := htmlMargins(pl, checks.Transistor{}, false)
+	m := htmlMargins(pl, checks.Transistor{TransistorFixed: &checks.TransistorFixed{}}, false)
 	if len(m) != 3 {
 		t.Fatalf("margins %+v", m)
 	}
