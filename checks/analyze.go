@@ -88,6 +88,12 @@ type Options struct {
 	// solve stops at its next Newton iteration and Analyze returns an error
 	// wrapping the context's (context.DeadlineExceeded for a time budget).
 	Context context.Context
+	// MemoryLimit, if above 0, bounds the memory the analysis holds,
+	// bytes: before the workers are made and before each group of cases
+	// is solved, the memory of the cases planned so far is estimated
+	// (memory.go), and Analyze returns a *MemoryError instead of going past
+	// the limit.
+	MemoryLimit int64
 }
 
 // Tolerances are relative tolerances (0.05 for 5 %).
@@ -126,6 +132,10 @@ type analyzer struct {
 	resFixed  []*ResistorFixed
 	nres      int
 	nodeFixed map[string]*NodeFixed
+	// workers is the number of workers the analysis makes besides sys
+	// (0 for OperatingPoint, which solves on sys alone), for the memory
+	// estimate (memory.go).
+	workers int
 	// bjtIdx maps netlist.Key of a transistor's name to its index.
 	bjtIdx map[string]int
 	// nominal holds the nominal value of every R, V and I element by key.
@@ -167,6 +177,10 @@ func Analyze(c *netlist.Circuit, opt Options) (*Analysis, error) {
 	}
 	a.g = newGraph(c, a.board)
 	if err := a.templates(); err != nil {
+		return nil, err
+	}
+	a.workers = workerCount(opt) // for the estimate before they are made
+	if err := a.fits(1); err != nil {
 		return nil, err
 	}
 	a.pool = newPool(a)
@@ -267,6 +281,9 @@ type OpPoint struct {
 func OperatingPoint(c *netlist.Circuit, opt Options) (*OpPoint, error) {
 	a, err := newAnalyzer(c, opt)
 	if err != nil {
+		return nil, err
+	}
+	if err := a.fits(1); err != nil {
 		return nil, err
 	}
 	a.tmpl = make([]Transistor, len(a.bjts))

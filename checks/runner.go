@@ -320,8 +320,13 @@ func drivenBy(t *Transistor, name string) bool {
 // indexed like specs. A case that fails keeps its error in outs[i].err
 // (it is reported as not judged, see caseFacts); solveSpecs returns the
 // first error in spec order only for the nominal case, without which no
-// other case has a meaning.
+// other case has a meaning. When holding every case planned (specs) would
+// exceed Options.MemoryLimit it solves nothing and returns a
+// *MemoryError.
 func (a *analyzer) solveSpecs(specs []caseSpec, outs []caseOut, idx []int) error {
+	if err := a.fits(len(specs)); err != nil {
+		return err
+	}
 	a.pool.expect(len(idx))
 	a.pool.each(len(idx), func(w *worker, k int) {
 		i := idx[k]

@@ -322,6 +322,9 @@ func (a *analyzer) runSwings(specs []caseSpec, outs []caseOut) ([]caseSpec, []ca
 		}
 		specs, outs = a.add(specs, outs, more)
 	}
+	if err := a.fits(len(specs)); err != nil {
+		return nil, nil, nil, err
+	}
 	nominal := outs[0].res
 	errs := make([]error, len(srcs))
 	a.pool.expect(len(specs) - srcs[0].first)

@@ -67,3 +67,27 @@ func BenchmarkStagesNominal(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkStagesCornersMemory is the full check of 2000 stages, with the
+// memory it holds: MB-live is the heap in use after a collection while
+// the Analysis (every case's facts) is still referenced, MB-sys what the
+// Go runtime took from the system by then (a ceiling on the peak heap;
+// the whole process's peak RSS is measured with GNU time, see README).
+func BenchmarkStagesCornersMemory(b *testing.B) {
+	c := stages(b, 2000)
+	cpu0 := cpuTime()
+	for i := 0; i < b.N; i++ {
+		a, err := checks.Analyze(c, full)
+		if err != nil {
+			b.Fatal(err)
+		}
+		runtime.GC()
+		var m runtime.MemStats
+		runtime.ReadMemStats(&m)
+		b.ReportMetric(float64(len(a.Cases)), "cases")
+		b.ReportMetric(float64(m.HeapInuse)/1e6, "MB-live")
+		b.ReportMetric(float64(m.Sys)/1e6, "MB-sys")
+		runtime.KeepAlive(a)
+	}
+	b.ReportMetric((cpuTime()-cpu0).Seconds()*1e3/float64(b.N), "cpu-ms/op")
+}

@@ -349,8 +349,12 @@ func (run *checkRun) all(c *cli.Context, inputs []input, opt checks.Options) ([]
 				*f, err = run.one(c, r.circ, o)
 				return err
 			})
+			why := overMemory(r.err)
 			if over {
-				*f, errs[i] = overBudget(in.name, r.circ.Title, run.timeout)
+				why = overTime(run.timeout)
+			}
+			if why != "" {
+				*f, errs[i] = overBudget(in.name, r.circ.Title, why)
 				f.Notes = r.circ.Notes
 				return
 			}

@@ -1,10 +1,10 @@
 package main
 
-// Per-file budgets of a batch: how long one netlist may be checked, and how
-// large it may be (elements after flattening, bytes read with its
-// includes). A file past its time budget is reported as not checked, with
-// the reason, and the batch goes on; the size budgets are located errors of
-// that file.
+// Per-file budgets of a batch: how long one netlist may be checked, how
+// much memory its analysis may hold, and how large it may be (elements
+// after flattening, bytes read with its includes). A file past its time or
+// memory budget is reported as not checked, with the reason, and the batch
+// goes on; the size budgets are located errors of that file.
 
 import (
 	"context"
@@ -15,6 +15,7 @@ import (
 
 	"github.com/urfave/cli/v2"
 
+	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/rules/report"
 )
@@ -22,6 +23,11 @@ import (
 // defaultFileTimeout is generous: the demo board's 78 cases take about a
 // third of a second, a 40-transistor board a few seconds.
 const defaultFileTimeout = 60 * time.Second
+
+// defaultFileMemory is generous too, MiB: a full check of 2000 transistors
+// (107 cases) is estimated at about 206 MiB, one with 1000 Monte Carlo
+// runs at about 1656 MiB.
+const defaultFileMemory = 4096
 
 var (
 	fileTimeoutFlag = &cli.DurationFlag{
@@ -34,15 +40,17 @@ var (
 		Value: netlist.DefaultMaxElements,
 		Usage: "read at most `N` elements of one netlist after flattening its subcircuits; more is an error of that file",
 	}
+	fileMemoryFlag = &cli.IntFlag{
+		Name:  "file-memory",
+		Value: defaultFileMemory,
+		Usage: "let the analysis of one netlist hold at most about `N` MiB, estimated before its cases are solved; a file that needs more is reported as not checked",
+	}
 	fileMiBFlag = &cli.IntFlag{
 		Name:  "file-mib",
 		Value: netlist.DefaultMaxTotalSize >> 20,
 		Usage: "read at most `N` MiB for one netlist, its includes counted each time they are read; more is an error of that file",
 	}
 )
-
-// budgetFlags are the per-file budget flags of check, report and plot.
-func budgetFlags() []cli.Flag { return []cli.Flag{fileTimeoutFlag, fileElementsFlag, fileMiBFlag} }
 
 // sizeBudget sets o's element and byte limits from the flags (a command
 // without them keeps the defaults).
@@ -73,6 +81,15 @@ func fileTimeout(c *cli.Context) (time.Duration, error) {
 	return d, nil
 }
 
+// fileMemory returns the --file-memory budget, bytes.
+func fileMemory(c *cli.Context) (int64, error) {
+	n := c.Int("file-memory")
+	if n <= 0 || n > 1<<20 {
+		return 0, badInput(fmt.Errorf("biaslint: --file-memory %d: give a number of MiB from 1 to %d", n, 1<<20))
+	}
+	return int64(n) << 20, nil
+}
+
 // budgetContext returns the context that bounds checking the file path
 // to d; tests replace it to run one file of a batch out of time.
 var budgetContext = func(path string, d time.Duration) (context.Context, context.CancelFunc) {
@@ -94,9 +111,24 @@ func withBudget(path string, d time.Duration, check func(ctx context.Context) er
 	return err, err != nil && errors.Is(err, context.DeadlineExceeded)
 }
 
-// overBudget is the report entry of a file whose check ran out of time.
-func overBudget(path, title string, d time.Duration) (report.File, error) {
-	why := fmt.Sprintf("checking took longer than the limit of %v per file (raise it with --file-timeout)", d)
+// overTime says why a file whose check ran out of time d is not checked.
+func overTime(d time.Duration) string {
+	return fmt.Sprintf("checking took longer than the limit of %v per file (raise it with --file-timeout)", d)
+}
+
+// overMemory says why a file whose analysis would pass its memory budget
+// is not checked, or "" when err is not that.
+func overMemory(err error) string {
+	var me *checks.MemoryError
+	if !errors.As(err, &me) {
+		return ""
+	}
+	return me.Error() + " per file (raise it with --file-memory)"
+}
+
+// overBudget is the report entry of a file whose check ran past a budget,
+// with why in words.
+func overBudget(path, title, why string) (report.File, error) {
 	f := report.File{Path: path, Title: title, Status: report.StatusOverBudget, StatusDetail: why,
 		Errors: []*netlist.Error{{Pos: netlist.Pos{File: path, Line: 1, Col: 1}, Msg: "not checked: " + why}}}
 	return f, fmt.Errorf("%s:1:1: error: not checked: %s", path, why)
@@ -116,6 +148,9 @@ func loosensBudget(key, val string) string {
 	case "file-elements":
 		n, err := strconv.Atoi(val)
 		ok, limit = err != nil || (n > 0 && n <= netlist.DefaultMaxElements), strconv.Itoa(netlist.DefaultMaxElements)
+	case "file-memory":
+		n, err := strconv.Atoi(val)
+		ok, limit = err != nil || (n > 0 && n <= defaultFileMemory), strconv.Itoa(defaultFileMemory)
 	case "file-mib":
 		n, err := strconv.Atoi(val)
 		ok, limit = err != nil || (n > 0 && n <= netlist.DefaultMaxTotalSize>>20), strconv.Itoa(netlist.DefaultMaxTotalSize>>20)

@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -31,33 +32,7 @@ func TestFileTimeout(t *testing.T) {
 	if code != exitBadInput {
 		t.Errorf("exit %d, want 2 (a file could not be checked): %s", code, errs)
 	}
-	var rep struct {
-		Results []struct {
-			File, Status string
-			StatusDetail string `json:"status_detail"`
-			Findings     []json.RawMessage
-		}
-	}
-	if err := json.Unmarshal([]byte(out), &rep); err != nil {
-		t.Fatalf("JSON: %v\n%s", err, out)
-	}
-	got := map[string]string{}
-	for _, r := range rep.Results {
-		got[filepath.Base(r.File)] = r.Status
-		switch filepath.Base(r.File) {
-		case "slow.cir":
-			if !strings.Contains(r.StatusDetail, "--file-timeout") || len(r.Findings) != 0 {
-				t.Errorf("slow.cir: detail %q, %d findings", r.StatusDetail, len(r.Findings))
-			}
-		case "quick.cir":
-			if len(r.Findings) == 0 {
-				t.Errorf("quick.cir: no findings; it was not checked in full")
-			}
-		}
-	}
-	if got["slow.cir"] != "over-budget" || got["quick.cir"] != "checked" {
-		t.Errorf("statuses %v, want slow.cir over-budget and quick.cir checked", got)
-	}
+	overOne(t, out, "slow.cir", "--file-timeout")
 	// The text report says it in words.
 	out, _, _ = runCLI(t, "check", dir)
 	if !strings.Contains(out, "slow.cir: not checked, over its budget") || !strings.Contains(out, "quick.cir: 1 transistor") {
@@ -143,4 +118,99 @@ func slowBatch(t *testing.T, slow, quick string) string {
 		return saved(path, d)
 	}
 	return dir
+}
+
+// stagesFile writes a board of n divider-biased common-emitter stages
+// (invented test data) into dir.
+func stagesFile(t *testing.T, dir, name string, n int) string {
+	t.Helper()
+	var s strings.Builder
+	fmt.Fprintf(&s, "%d stages on one supply\nVCC vcc 0 DC 12\n.model SNPN NPN(IS=5f BF=180 VAF=80)\n", n)
+	for i := 1; i <= n; i++ {
+		fmt.Fprintf(&s, "R1_%d vcc b%d 47k\nR2_%d b%d 0 10k\nRC%d vcc c%d 4.7k\nRE%d e%d 0 1k\nQ%d c%d b%d e%d SNPN\n", i, i, i, i, i, i, i, i, i, i, i, i)
+	}
+	s.WriteString(".end\n")
+	p := filepath.Join(dir, name)
+	writeFile(t, p, []byte(s.String()))
+	return p
+}
+
+// TestFileMemory: a file whose analysis would hold more than --file-memory
+// is not checked (refused before its cases are solved), says why with the
+// flag to raise it, and the other files of the batch are checked in full.
+// A full check of 25 stages (57 cases) is estimated at 2 MiB, the
+// operating point of 200 stages at 3 MiB, one transistor at well under
+// 1 MiB (checks/memory.go).
+func TestFileMemory(t *testing.T) {
+	dir := t.TempDir()
+	big := stagesFile(t, dir, "big.cir", 25)
+	src, err := os.ReadFile(good)
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, filepath.Join(dir, "quick.cir"), src)
+
+	const why = "error: not checked: checking it would hold about 2 MiB for 57 cases, more than the limit of 1 MiB per file (raise it with --file-memory)"
+	out, errs, code := runCLI(t, "check", "--file-memory", "1", big)
+	if code != exitBadInput || out != "" || strings.TrimSpace(errs) != big+":1:1: "+why {
+		t.Errorf("one file: exit %d, stdout %q, stderr %q; want 2, nothing and %q", code, out, errs, why)
+	}
+	out, errs, code = runCLI(t, "fix", "--preview", "--file-memory", "1", big)
+	if code != exitBadInput || out != "" || !strings.Contains(errs, big+":1:1: "+why) || !strings.Contains(errs, "nothing written") {
+		t.Errorf("fix: exit %d, stdout %q, stderr %q", code, out, errs)
+	}
+	wide := stagesFile(t, t.TempDir(), "wide.cir", 200)
+	out, errs, code = runCLI(t, "op", "--file-memory", "1", wide)
+	if code != exitBadInput || out != "" || !strings.Contains(errs, "wide.cir:1:1: error: not checked: checking it would hold about 3 MiB for 1 case") || !strings.Contains(errs, "--file-memory") {
+		t.Errorf("op: exit %d, stdout %q, stderr %q", code, out, errs)
+	}
+
+	out, errs, code = runCLI(t, "check", "--format", "json", "--file-memory", "1", dir)
+	if code != exitBadInput {
+		t.Errorf("batch: exit %d, want 2 (a file could not be checked): %s", code, errs)
+	}
+	overOne(t, out, "big.cir", "--file-memory")
+	// With the default budget the board is checked.
+	if _, errs, code := runCLI(t, "check", big); code == exitBadInput {
+		t.Errorf("default budget: exit 2: %s", errs)
+	}
+	for _, v := range []string{"0", "-5", "2000000"} {
+		if _, errs, code := runCLI(t, "check", "--file-memory", v, big); code != exitBadInput || !strings.Contains(errs, "--file-memory "+v) {
+			t.Errorf("--file-memory %s: exit %d, %q", v, code, errs)
+		}
+	}
+}
+
+// overOne checks a JSON batch report in which the file named over is
+// over-budget (no findings, the detail naming the flag that raises the
+// budget) and quick.cir is checked in full.
+func overOne(t *testing.T, out, over, flag string) {
+	t.Helper()
+	var rep struct {
+		Results []struct {
+			File, Status string
+			StatusDetail string `json:"status_detail"`
+			Findings     []json.RawMessage
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatalf("JSON: %v\n%s", err, out)
+	}
+	got := map[string]string{}
+	for _, r := range rep.Results {
+		got[filepath.Base(r.File)] = r.Status
+		switch filepath.Base(r.File) {
+		case over:
+			if !strings.Contains(r.StatusDetail, flag) || len(r.Findings) != 0 {
+				t.Errorf("%s: detail %q, %d findings", over, r.StatusDetail, len(r.Findings))
+			}
+		case "quick.cir":
+			if len(r.Findings) == 0 {
+				t.Errorf("quick.cir: no findings; it was not checked in full")
+			}
+		}
+	}
+	if got[over] != "over-budget" || got["quick.cir"] != "checked" {
+		t.Errorf("statuses %v, want %s over-budget and quick.cir checked", got, over)
+	}
 }

@@ -60,7 +60,7 @@ func checkCommand() *cli.Command {
 			rulesetFlag, setFlag,
 			&cli.StringSliceFlag{Name: "only", Usage: "judge only these rule `IDS` (comma-separated or repeated)"},
 			&cli.StringSliceFlag{Name: "skip", Usage: "do not judge these rule `IDS` (comma-separated or repeated)"},
-			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag, fileTimeoutFlag, fileElementsFlag, fileMiBFlag,
+			partsFlag, boardFlag, ambientFlag, tempFlag, includeDirFlag, fileTimeoutFlag, fileMemoryFlag, fileElementsFlag, fileMiBFlag,
 			&cli.BoolFlag{Name: "notes", Usage: "also print the notes about reading the input"},
 			colorFlag, outputFlag, demoFlag, demoRevFlag,
 			&cli.StringFlag{Name: "ambient-range", Usage: "ambient range of the temperature corners, `MIN:MAX` in C (default: the rule set's ambient_min:ambient_max, else 0:70)"},
@@ -204,8 +204,10 @@ type checkRun struct {
 	board     []byte
 	// fixes asks for the computed fixes (rules/fix) of each file's findings.
 	fixes bool
-	// timeout is the --file-timeout budget of each file (0: none).
+	// timeout is the --file-timeout budget of each file (0: none), and
+	// memory the --file-memory budget, bytes.
 	timeout time.Duration
+	memory  int64
 	// shardI of shardN is the part of the inputs checked (--shard).
 	shardI, shardN int
 }
@@ -235,6 +237,9 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if run.timeout, err = fileTimeout(c); err != nil {
 		return nil, err
 	}
+	if run.memory, err = fileMemory(c); err != nil {
+		return nil, err
+	}
 	if run.boardPath = c.String("board"); run.boardPath != "" {
 		if run.board, err = board.ReadFile(run.boardPath); err != nil {
 			return nil, badInput(err)
@@ -246,7 +251,7 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
-	opt.Parts = parts
+	opt.Parts, opt.MemoryLimit = parts, run.memory
 	if opt.Ambient, err = tempOf(c, "ambient"); err != nil {
 		return nil, err
 	}

@@ -100,6 +100,9 @@ func runFix(c *cli.Context) error {
 		return err
 	}
 	opt.Parts = parts
+	if opt.MemoryLimit, err = fileMemory(c); err != nil {
+		return err
+	}
 	if opt.Ambient, err = tempOf(c, "ambient"); err != nil {
 		return err
 	}
@@ -160,6 +163,9 @@ func (run *checkRun) fixOne(in input, opt checks.Options, maxChanges int) (fixed
 	}
 	judge := run.judge(opt)
 	first, err := judge(circ, false)
+	if why := overMemory(err); why != "" {
+		_, err = overBudget(in.name, circ.Title, why)
+	}
 	if err != nil {
 		return ff, err
 	}

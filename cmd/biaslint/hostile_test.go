@@ -272,13 +272,13 @@ func TestProjectIncludeDir(t *testing.T) {
 		}
 	}
 	// Nor loosen a per-file budget; tightening is fine.
-	for _, kv := range []string{"file-timeout: 0", "file-timeout: 10m", "file-elements: 900000", "file-mib: 4096"} {
+	for _, kv := range []string{"file-timeout: 0", "file-timeout: 10m", "file-elements: 900000", "file-mib: 4096", "file-memory: 8192"} {
 		writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte(kv+"\n"))
 		if _, errs, code := runCLI(t, "check", "stage.cir"); code != exitBadInput || !strings.Contains(errs, "would loosen the per-file budget") {
 			t.Errorf("%s in the project file: exit %d, %s", kv, code, errs)
 		}
 	}
-	writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte("file-timeout: 20s\nfile-elements: 5000\nfile-mib: 8\ninclude-dir: [models]\n"))
+	writeFile(t, filepath.Join(top, "biaslint.yaml"), []byte("file-timeout: 20s\nfile-memory: 512\nfile-elements: 5000\nfile-mib: 8\ninclude-dir: [models]\n"))
 	if _, errs, code := runCLI(t, "check", "stage.cir"); code == exitBadInput {
 		t.Errorf("tighter budgets in the project file: exit 2: %s", errs)
 	}

@@ -30,6 +30,7 @@ func opCommand() *cli.Command {
 			demoFlag,
 			demoRevFlag,
 			fileTimeoutFlag,
+			fileMemoryFlag,
 		},
 		Action: runOp,
 	}
@@ -96,6 +97,9 @@ func runOp(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	if _, err := fileMemory(c); err != nil {
+		return err
+	}
 	var results []opFile
 	var problems []string
 	for _, in := range inputs {
@@ -119,9 +123,12 @@ func runOp(c *cli.Context) error {
 			r, err = solveOp(ctx, c, circ)
 			return err
 		})
-		if over {
-			// Out of time: the file is not solved, the batch goes on.
-			_, err = overBudget(in.name, circ.Title, timeout)
+		if why := overMemory(err); over || why != "" {
+			// Past a budget: the file is not solved, the batch goes on.
+			if over {
+				why = overTime(timeout)
+			}
+			_, err = overBudget(in.name, circ.Title, why)
 		}
 		if err != nil {
 			problems = append(problems, err.Error())
@@ -176,7 +183,8 @@ func solveOp(ctx context.Context, c *cli.Context, circ *netlist.Circuit) (opFile
 	}
 	// Only the nominal solution and the junction temperatures: op prints
 	// no roles, topology or other cases, so it computes none.
-	op, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal"), Context: ctx})
+	limit, _ := fileMemory(c) // checked by runOp
+	op, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal"), Context: ctx, MemoryLimit: limit})
 	if err != nil {
 		return opFile{}, err
 	}

@@ -59,7 +59,7 @@ var (
 var (
 	projectKeys = []string{"files", "ruleset", "set", "only", "skip", "parts", "board", "fail-on", "ambient",
 		"ambient-range", "corners", "thermal", "monte-carlo", "seed", "distribution",
-		"include-dir", "file-timeout", "file-elements", "file-mib"}
+		"include-dir", "file-timeout", "file-memory", "file-elements", "file-mib"}
 	pathKeys = map[string]bool{"files": true, "parts": true, "board": true, "include-dir": true}
 )
 
