@@ -5,8 +5,11 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+	"runtime"
 	"sort"
 	"strings"
+	"sync"
+	"sync/atomic"
 
 	"github.com/biaslint/biaslint/checks"
 	"github.com/biaslint/biaslint/netlist"
@@ -198,18 +201,27 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 	type key struct {
 		rule, subject, device string
 	}
-	results := map[key][]outcome{}
-	var order []key
-	for ci := range a.Cases {
+	// The cases are judged in parallel, each into its own list, and the
+	// lists merged in case order: the findings do not depend on the
+	// scheduling.
+	type keyed struct {
+		k       key
+		o       outcome
+		applied bool // applied without an outcome
+	}
+	per := make([][]keyed, len(a.Cases))
+	eachCase(len(a.Cases), func(ci int) {
 		c := &a.Cases[ci]
-		for _, s := range subjects(c, params) {
+		var list []keyed
+		eachSubject(c, params, func(s subjectRef) {
 			for _, r := range set.Rules {
 				if r.Subject != s.kind || r.c == nil {
 					continue
 				}
 				o, ok, applied := judge(r, s, c, ci)
+				k := key{r.ID, string(s.kind), netlist.Key(s.name)}
 				if applied && opts.Applied != nil {
-					opts.Applied[AppliedKey(r.ID, s.name)] = true
+					list = append(list, keyed{k: k, applied: true})
 				}
 				if !ok {
 					continue
@@ -224,13 +236,25 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 					}
 					o.f.lead = r.c.when.uses("stiff_drive")
 				}
-				k := key{r.ID, string(s.kind), netlist.Key(s.name)}
-				if _, seen := results[k]; !seen {
-					order = append(order, k)
-				}
-				results[k] = append(results[k], o)
+				list = append(list, keyed{k: k, o: o})
 			}
+		})
+		per[ci] = list
+	})
+	results := map[key][]outcome{}
+	var order []key
+	for ci := range per {
+		for _, x := range per[ci] {
+			if x.applied {
+				opts.Applied[AppliedKey(x.k.rule, x.k.device)] = true
+				continue
+			}
+			if _, seen := results[x.k]; !seen {
+				order = append(order, x.k)
+			}
+			results[x.k] = append(results[x.k], x.o)
 		}
+		per[ci] = nil
 	}
 	var out []Finding
 	for _, k := range order {
@@ -238,6 +262,37 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 	}
 	sortFindings(out)
 	return out, nil
+}
+
+// eachCase calls do(i) for every i below n on up to GOMAXPROCS
+// goroutines and returns when all are done.
+func eachCase(n int, do func(i int)) {
+	workers := runtime.GOMAXPROCS(0)
+	if workers > n {
+		workers = n
+	}
+	if workers <= 1 {
+		for i := 0; i < n; i++ {
+			do(i)
+		}
+		return
+	}
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				i := int(next.Add(1)) - 1
+				if i >= n {
+					return
+				}
+				do(i)
+			}
+		}()
+	}
+	wg.Wait()
 }
 
 // pickWorst folds one device's outcomes over the cases into one finding.
@@ -304,30 +359,30 @@ func sortFindings(fs []Finding) {
 // left nil: none. Expressions only read it.
 var noClipping checks.Clipping
 
-// subjects lists the subjects of one case with their environments.
-func subjects(c *checks.Case, params map[string]float64) []subjectRef {
-	var out []subjectRef
+// eachSubject calls do with every subject of one case and its
+// environment, one at a time (a board of many devices does not hold a
+// case's environments all at once).
+func eachSubject(c *checks.Case, params map[string]float64, do func(s subjectRef)) {
 	for i := range c.Transistors {
 		t := &c.Transistors[i]
 		env := transistorEnv{Transistor: *t, Scenario: c.Scenario, Corner: c.Corner, Param: params}
 		if env.Clipping == nil {
 			env.Clipping = &noClipping // facts made by hand
 		}
-		out = append(out, subjectRef{SubjectTransistor, t.Name, t.Pos, t.Chain,
+		do(subjectRef{SubjectTransistor, t.Name, t.Pos, t.Chain,
 			[]string{t.Collector, t.Base, t.Emitter}, env, reflect.ValueOf(env)})
 	}
 	for i := range c.Resistors {
 		r := &c.Resistors[i]
 		env := resistorEnv{Resistor: *r, Scenario: c.Scenario, Corner: c.Corner, Ambient: c.Ambient, Param: params}
-		out = append(out, subjectRef{SubjectResistor, r.Name, r.Pos, r.Chain,
+		do(subjectRef{SubjectResistor, r.Name, r.Pos, r.Chain,
 			[]string{r.NodeA, r.NodeB}, env, reflect.ValueOf(env)})
 	}
 	for i := range c.Nodes {
 		n := &c.Nodes[i]
 		env := nodeEnv{Node: *n, Scenario: c.Scenario, Corner: c.Corner, Ambient: c.Ambient, Param: params}
-		out = append(out, subjectRef{SubjectNode, n.Name, n.Pos, nil, []string{n.Name}, env, reflect.ValueOf(env)})
+		do(subjectRef{SubjectNode, n.Name, n.Pos, nil, []string{n.Name}, env, reflect.ValueOf(env)})
 	}
-	return out
 }
 
 // judge runs one rule on one subject. ok is false when the rule does not
