@@ -449,6 +449,23 @@ func OfContext(ctx context.Context, an *checks.Analysis, name string) (Plane, er
 	return of(ctx, an, name, checks.NewLocalizer(an.Circuit))
 }
 
+// sameDevice returns the facts of t's device in case cs, or nil. The
+// cases of an analysis list the transistors in one order and share each
+// device's TransistorFixed, so the slot of t in the nominal case is tried
+// first; otherwise the case is searched by name.
+func sameDevice(cs *checks.Case, slot int, t *checks.Transistor) *checks.Transistor {
+	if slot >= 0 && slot < len(cs.Transistors) && cs.Transistors[slot].TransistorFixed == t.TransistorFixed {
+		return &cs.Transistors[slot]
+	}
+	key := netlist.Key(t.Name)
+	for k := range cs.Transistors {
+		if netlist.Key(cs.Transistors[k].Name) == key {
+			return &cs.Transistors[k]
+		}
+	}
+	return nil
+}
+
 // of is Of with the circuit's Localizer: the load line is solved on the
 // part of the board that taking the transistor out can change (the rest
 // is held by the rails), so plotting every transistor of a large board
@@ -457,26 +474,28 @@ func OfContext(ctx context.Context, an *checks.Analysis, name string) (Plane, er
 func of(ctx context.Context, an *checks.Analysis, name string, loc *checks.Localizer) (Plane, error) {
 	nom := an.Cases[0]
 	var t *checks.Transistor
+	slot := -1
+	key := netlist.Key(name)
 	for i := range nom.Transistors {
-		if netlist.Key(nom.Transistors[i].Name) == netlist.Key(name) {
-			t = &nom.Transistors[i]
+		if netlist.Key(nom.Transistors[i].Name) == key {
+			t, slot = &nom.Transistors[i], i
 		}
 	}
 	if t == nil {
 		return Plane{}, fmt.Errorf("no transistor %s in %s", name, an.Circuit.File)
 	}
 	pl := Plane{Device: t.Name, Model: t.Model, Polarity: t.Polarity, Ambient: nom.Ambient}
-	for i, cs := range an.Cases {
-		for _, x := range cs.Transistors {
-			if netlist.Key(x.Name) != netlist.Key(t.Name) || math.IsNaN(x.VCE) || math.IsNaN(x.IC) {
-				continue // another device, or a case that is not physical
-			}
-			op := OpPoint{Point: Point{x.VCE, x.IC}, Kind: KindOf(i, cs), Case: caseName(cs), Region: x.Region, Power: x.Power}
-			if op.Kind == Swing {
-				op.Level = x.SwingLevel
-			}
-			pl.Points = append(pl.Points, op)
+	for i := range an.Cases {
+		cs := &an.Cases[i]
+		x := sameDevice(cs, slot, t)
+		if x == nil || math.IsNaN(x.VCE) || math.IsNaN(x.IC) {
+			continue // not in this case, or a case that is not physical
 		}
+		op := OpPoint{Point: Point{x.VCE, x.IC}, Kind: KindOf(i, *cs), Case: caseName(*cs), Region: x.Region, Power: x.Power}
+		if op.Kind == Swing {
+			op.Level = x.SwingLevel
+		}
+		pl.Points = append(pl.Points, op)
 	}
 	pl.Swings = trajectories(pl.Points)
 
