@@ -265,6 +265,27 @@ func (s *System) release(w *work) {
 	}
 }
 
+// PivotOrder returns the symbolic analysis and pivot order of the last
+// factorisation of the System's own linear solver (nil if it has none),
+// to share with the Systems of other goroutines (UsePivotOrder).
+func (s *System) PivotOrder() *PivotOrder {
+	if s.lin == nil {
+		return nil
+	}
+	return s.lin.PivotOrder()
+}
+
+// UsePivotOrder makes every later solve with the System's own linear
+// solver start from o where o's pattern is the System's (see
+// SparseLU.UsePivotOrder); nil stops it. The solutions are the same bits
+// as without it: only the work of pivoting is saved.
+func (s *System) UsePivotOrder(o *PivotOrder) {
+	if s.lin == nil {
+		s.lin = NewSparseLU()
+	}
+	s.lin.UsePivotOrder(o)
+}
+
 // Solve finds the DC operating point: plain Newton first, then GMIN
 // stepping, then source stepping. It returns a *ConvergenceError if all
 // fail, and never returns a result with a non-finite value.
