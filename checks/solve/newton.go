@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/biaslint/biaslint/checks/device"
@@ -123,6 +124,10 @@ type work struct {
 	off        []uint8
 	offB, offD []bool
 	inject     map[int]float64
+	// The sinks of assemble and residualOK, kept so that each iteration
+	// does not make new ones.
+	msink matrixSink
+	rsink residualSink
 }
 
 // stop reports whether the solve must stop because its context is done.
@@ -185,13 +190,26 @@ func (w *work) variants(opt Options) error {
 	return nil
 }
 
-// devices builds the device instances at their temperatures.
-func (s *System) devices(opt Options, st settings) ([]*device.BJT, []*device.Diode, error) {
+// devices builds the device instances at their temperatures. An
+// instance depends only on its model's type and parameters, its area, its
+// temperature and the device options, and is not changed once made, so
+// each element keeps the instance of its last solve (s.made) and takes it
+// again while those are the same: a Monte Carlo run or a corner that
+// changes resistors, and the gain solves after a solve, make no new
+// devices.
+// bjts and dios are the slices to fill (their storage is reused).
+func (s *System) devices(opt Options, st settings, bjts []*device.BJT, dios []*device.Diode) ([]*device.BJT, []*device.Diode, error) {
 	c := s.circuit
 	dopt := device.Options{TNom: c.Options.TNom, GMin: st.gmin}
-	var errs netlist.ErrorList
+	var errs *netlist.ErrorList
+	fail := func(el *elem, err error) {
+		if errs == nil {
+			errs = &netlist.ErrorList{}
+		}
+		errs.Addf(el.e.Pos, "%s: %v", el.e.Name, err)
+	}
 	temp := func(el *elem) float64 {
-		if t, ok := opt.DeviceTemp[netlist.Key(el.e.Name)]; ok {
+		if t, ok := opt.DeviceTemp[el.key]; ok {
 			return t
 		}
 		if t, ok := el.e.Params["temp"]; ok {
@@ -199,24 +217,91 @@ func (s *System) devices(opt Options, st settings) ([]*device.BJT, []*device.Dio
 		}
 		return st.temp + el.e.Params["dtemp"]
 	}
-	bjts := make([]*device.BJT, len(s.bjts))
+	if len(s.made) != len(s.bjts)+len(s.diodes) {
+		s.made = make([]madeDevice, len(s.bjts)+len(s.diodes))
+	}
+	bjts, dios = slices.Grow(bjts[:0], len(s.bjts))[:len(s.bjts)], slices.Grow(dios[:0], len(s.diodes))[:len(s.diodes)]
 	for i, el := range s.bjts {
-		b, err := device.NewBJT(el.model, el.value, temp(el), dopt)
-		if err != nil {
-			errs.Addf(el.e.Pos, "%s: %v", el.e.Name, err)
+		t, m := temp(el), &s.made[i]
+		if m.bjt == nil || !m.same(el, t, dopt) {
+			b, err := device.NewBJT(el.model, el.value, t, dopt)
+			m.bjt = nil
+			if err != nil {
+				fail(el, err)
+			} else {
+				m.bjt = b
+				m.record(el, t, dopt)
+			}
 		}
-		bjts[i] = b
+		bjts[i] = m.bjt
 	}
-	dios := make([]*device.Diode, len(s.diodes))
 	for i, el := range s.diodes {
-		d, err := device.NewDiode(el.model, el.value, temp(el), dopt)
-		if err != nil {
-			errs.Addf(el.e.Pos, "%s: %v", el.e.Name, err)
+		t, m := temp(el), &s.made[len(s.bjts)+i]
+		if m.dio == nil || !m.same(el, t, dopt) {
+			d, err := device.NewDiode(el.model, el.value, t, dopt)
+			m.dio = nil
+			if err != nil {
+				fail(el, err)
+			} else {
+				m.dio = d
+				m.record(el, t, dopt)
+			}
 		}
-		dios[i] = d
+		dios[i] = m.dio
 	}
-	return bjts, dios, errs.Err()
+	if errs != nil {
+		return bjts, dios, errs.Err()
+	}
+	return bjts, dios, nil
 }
+
+// madeDevice is the device instance an element's last solve made and what
+// it was made from: the model (pointer, type, name and every parameter,
+// which a caller may change in place between solves), the area, the
+// temperature and the options.
+type madeDevice struct {
+	bjt        *device.BJT
+	dio        *device.Diode
+	model      *netlist.Model
+	typ        netlist.ModelType
+	name       string
+	params     []modelParam
+	area, temp float64
+	opt        device.Options
+}
+
+type modelParam struct {
+	key string
+	v   float64
+}
+
+// same reports whether el at temperature t with options opt would make
+// the recorded instance: the same inputs, compared bit for bit.
+func (m *madeDevice) same(el *elem, t float64, opt device.Options) bool {
+	md := el.model
+	if md != m.model || md.Type != m.typ || md.Name != m.name || len(md.Params) != len(m.params) ||
+		!sameBits(el.value, m.area) || !sameBits(t, m.temp) || !sameBits(opt.TNom, m.opt.TNom) || !sameBits(opt.GMin, m.opt.GMin) {
+		return false
+	}
+	for _, p := range m.params {
+		if v, ok := md.Params[p.key]; !ok || !sameBits(v, p.v) {
+			return false
+		}
+	}
+	return true
+}
+
+// record notes the inputs of an instance just made.
+func (m *madeDevice) record(el *elem, t float64, opt device.Options) {
+	md := el.model
+	m.model, m.typ, m.name, m.area, m.temp, m.opt = md, md.Type, md.Name, el.value, t, opt
+	m.params = m.params[:0]
+	for k, v := range md.Params {
+		m.params = append(m.params, modelParam{k, v})
+	}
+}
+
+func sameBits(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }
 
 // newWork resolves the options and builds the devices and workspace of
 // one solve.
@@ -225,7 +310,24 @@ func (s *System) newWork(opt Options) (*work, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
+	w := s.spare
+	if w != nil {
+		// The work space of the last solve: every buffer is written before
+		// it is read (evaluate, assemble, residualOK, the linear solve), and
+		// every other field starts as in a new one.
+		s.spare = nil
+		*w = work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context,
+			jb: w.jb, evB: w.evB, jd: w.jd, evD: w.evD,
+			rhs: w.rhs, xnew: w.xnew, res: w.res, mag: w.mag,
+			bad: w.bad[:0], limited: w.limited[:0], bjt: w.bjt, dio: w.dio}
+	} else {
+		w = &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
+		nb, nd := len(s.bjts), len(s.diodes)
+		w.jb, w.evB = make([][2]float64, nb), make([]device.BJTEval, nb)
+		w.jd, w.evD = make([]float64, nd), make([][2]float64, nd)
+		w.rhs, w.xnew = make([]float64, s.n), make([]float64, s.n)
+		w.res, w.mag = make([]float64, s.n), make([]float64, s.n)
+	}
 	if w.lin == nil {
 		if s.lin == nil {
 			s.lin = NewSparseLU()
@@ -235,25 +337,12 @@ func (s *System) newWork(opt Options) (*work, error) {
 	if r, ok := w.lin.(interface{ Repivot() }); ok {
 		r.Repivot()
 	}
-	if w.bjt, w.dio, err = s.devices(opt, st); err != nil {
+	if w.bjt, w.dio, err = s.devices(opt, st, w.bjt, w.dio); err != nil {
 		return nil, err
 	}
 	if err := w.variants(opt); err != nil {
 		return nil, err
 	}
-	if b := s.spare; b != nil {
-		// The buffers of the last solve: every one is written before it
-		// is read (evaluate, assemble, residualOK, the linear solve).
-		s.spare = nil
-		w.jb, w.evB, w.jd, w.evD = b.jb, b.evB, b.jd, b.evD
-		w.rhs, w.xnew, w.res, w.mag = b.rhs, b.xnew, b.res, b.mag
-		return w, nil
-	}
-	nb, nd := len(s.bjts), len(s.diodes)
-	w.jb, w.evB = make([][2]float64, nb), make([]device.BJTEval, nb)
-	w.jd, w.evD = make([]float64, nd), make([][2]float64, nd)
-	w.rhs, w.xnew = make([]float64, s.n), make([]float64, s.n)
-	w.res, w.mag = make([]float64, s.n), make([]float64, s.n)
 	return w, nil
 }
 
@@ -421,8 +510,8 @@ func (s *System) guess(g *Result) ([]float64, bool) {
 	if g == nil {
 		return x, false
 	}
-	for i, nm := range s.nodeNames {
-		x[i] = g.Voltage[netlist.Key(nm)]
+	for i, k := range s.nodeKeys {
+		x[i] = g.Voltage[k]
 	}
 	for _, el := range s.elems {
 		for t, in := range el.inner {
@@ -431,7 +520,7 @@ func (s *System) guess(g *Result) ([]float64, bool) {
 			}
 		}
 		if el.br >= 0 {
-			x[el.br] = g.Current[netlist.Key(el.e.Name)]
+			x[el.br] = g.Current[el.key]
 		}
 	}
 	for _, v := range x {
@@ -541,7 +630,8 @@ func (w *work) assemble(x []float64) error {
 	for i := range w.rhs {
 		w.rhs[i] = 0
 	}
-	m := &matrixSink{lin: w.lin, rhs: w.rhs}
+	m := &w.msink
+	m.lin, m.rhs = w.lin, w.rhs
 	w.stampLinear(m)
 	w.stampDevices(m, x, true)
 	w.stampPoly(m, x, true)
@@ -574,7 +664,8 @@ func (w *work) residualOK(x []float64) bool {
 	for i := range w.res {
 		w.res[i], w.mag[i] = 0, 0
 	}
-	r := &residualSink{x: x, r: w.res, m: w.mag}
+	r := &w.rsink
+	r.x, r.r, r.m = x, w.res, w.mag
 	w.stampLinear(r)
 	w.stampDevices(r, x, false)
 	w.stampPoly(r, x, false)

@@ -95,6 +95,8 @@ type SparseLU struct {
 	rowm         []float64
 	inq          []bool    // SolveSparse: step queued
 	ys, ws       []float64 // SolveSparse's work, all zero between calls
+	heap         minHeap   // SolveSparse's queue, kept for its storage
+	touched      []int     // SolveSparse's forward steps, likewise
 	factorsFresh int       // factorisations with fresh pivoting (statistics)
 	refactors    int       // value-only refactorisations (statistics)
 	reused       int       // solves started from the shared order (statistics)
@@ -822,7 +824,7 @@ func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
 	y, w := f.ys, f.ws // kept all zero between calls
 	// Forward: steps in increasing order, a step queued when its row
 	// becomes nonzero.
-	var lo minHeap
+	lo := f.heap[:0]
 	for _, i := range rows {
 		if i < 0 || i >= f.n {
 			continue
@@ -834,7 +836,7 @@ func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
 			lo.push(k)
 		}
 	}
-	var touched []int
+	touched := f.touched[:0]
 	for lo.len() > 0 {
 		k := lo.pop()
 		f.inq[k] = false
@@ -856,7 +858,7 @@ func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
 		}
 	}
 	// Backward: steps in decreasing order.
-	var hi minHeap
+	hi := lo[:0]
 	for _, k := range touched {
 		if w[k] != 0 && !f.inq[k] {
 			f.inq[k] = true
@@ -887,6 +889,7 @@ func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
 	for _, k := range touched {
 		w[k] = 0
 	}
+	f.heap, f.touched = hi, touched
 	return set, nil
 }
 
