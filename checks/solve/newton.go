@@ -128,6 +128,9 @@ type work struct {
 	// does not make new ones.
 	msink matrixSink
 	rsink residualSink
+	// x0 and x are solve's starting point and iterate (kept for their
+	// storage; x is the solution solve returns, valid until release).
+	x0, x []float64
 }
 
 // stop reports whether the solve must stop because its context is done.
@@ -319,7 +322,7 @@ func (s *System) newWork(opt Options) (*work, error) {
 		*w = work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context,
 			jb: w.jb, evB: w.evB, jd: w.jd, evD: w.evD,
 			rhs: w.rhs, xnew: w.xnew, res: w.res, mag: w.mag,
-			bad: w.bad[:0], limited: w.limited[:0], bjt: w.bjt, dio: w.dio}
+			bad: w.bad[:0], limited: w.limited[:0], bjt: w.bjt, dio: w.dio, x0: w.x0, x: w.x}
 	} else {
 		w = &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
 		nb, nd := len(s.bjts), len(s.diodes)
@@ -391,8 +394,9 @@ func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 		return nil, nil, nil, err
 	}
 	st := w.st
-	x0, warm := s.guess(opt.Guess)
-	x := append([]float64(nil), x0...)
+	x0, warm := s.guessInto(w.x0, opt.Guess)
+	x := append(w.x[:0], x0...)
+	w.x0, w.x = x0, x
 	var tried []string
 	if w.newton(x, !warm, st.maxIter) {
 		return s.verified(w, x, MethodNewton), w, x, nil
@@ -505,8 +509,12 @@ func (s *System) unknownName(i int) string {
 
 // guess returns the starting vector: zero, or the values of a previous
 // result matched by node and element name.
-func (s *System) guess(g *Result) ([]float64, bool) {
-	x := make([]float64, s.n)
+func (s *System) guess(g *Result) ([]float64, bool) { return s.guessInto(nil, g) }
+
+// guessInto is guess, into buf's storage when it is large enough.
+func (s *System) guessInto(buf []float64, g *Result) ([]float64, bool) {
+	x := slices.Grow(buf[:0], s.n)[:s.n]
+	clear(x)
 	if g == nil {
 		return x, false
 	}
@@ -525,7 +533,8 @@ func (s *System) guess(g *Result) ([]float64, bool) {
 	}
 	for _, v := range x {
 		if !finite(v) {
-			return make([]float64, s.n), false
+			clear(x)
+			return x, false
 		}
 	}
 	return x, true

@@ -59,7 +59,7 @@ type SparseLU struct {
 	val    []float64
 	// seq is the entry of each Add of the current (and previous) assembly;
 	// nadd counts the Adds since Clear.
-	seq   []int32
+	seq   []seqAdd
 	nadd  int
 	grown bool
 
@@ -115,6 +115,14 @@ type SparseLU struct {
 	adopted bool
 	atOrder bool
 	restart bool
+}
+
+// seqAdd is one Add of an assembly: its entry and the entry's (i, j) as
+// i<<32 | j, so that an Add repeating the previous assembly's is told by
+// one comparison.
+type seqAdd struct {
+	id uint64
+	e  int32
 }
 
 // PivotOrder is the symbolic analysis and pivot order of one SparseLU
@@ -217,13 +225,13 @@ func (f *SparseLU) Add(i, j int, v float64) {
 	}
 	k := f.nadd
 	f.nadd++
+	id := uint64(i)<<32 | uint64(j)
 	if k < len(f.seq) {
-		if e := f.seq[k]; int(f.ei[e]) == i && int(f.ej[e]) == j {
-			f.val[e] += v
+		if a := f.seq[k]; a.id == id {
+			f.val[a.e] += v
 			return
 		}
 	}
-	id := uint64(i)<<32 | uint64(j)
 	e, ok := f.key[id]
 	if !ok {
 		e = int32(len(f.val))
@@ -233,9 +241,9 @@ func (f *SparseLU) Add(i, j int, v float64) {
 	}
 	f.val[e] += v
 	if k < len(f.seq) {
-		f.seq[k] = e
+		f.seq[k] = seqAdd{id, e}
 	} else {
-		f.seq = append(f.seq, e)
+		f.seq = append(f.seq, seqAdd{id, e})
 	}
 }
 
