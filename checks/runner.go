@@ -149,33 +149,33 @@ func (p *pool) tick(n int) {
 }
 
 // each runs do(w, i) for i in [0, n) on the workers. Each i is run once;
-// do writes its result into slot i of a slice the caller owns.
+// do writes its result into slot i of a slice the caller owns. The
+// workers take the next i from a shared counter (no channel hand-off per
+// item), the first of them on the calling goroutine.
 func (p *pool) each(n int, do func(w *worker, i int)) {
 	if n <= 0 {
 		return
 	}
 	k := min(len(p.workers), n)
-	if k == 1 {
-		for i := 0; i < n; i++ {
-			do(p.workers[0], i)
+	var next atomic.Int64
+	run := func(w *worker) {
+		for {
+			i := int(next.Add(1) - 1)
+			if i >= n {
+				return
+			}
+			do(w, i)
 		}
-		return
 	}
-	next := make(chan int)
 	var wg sync.WaitGroup
-	for _, w := range p.workers[:k] {
+	for _, w := range p.workers[1:k] {
 		wg.Add(1)
 		go func(w *worker) {
 			defer wg.Done()
-			for i := range next {
-				do(w, i)
-			}
+			run(w)
 		}(w)
 	}
-	for i := 0; i < n; i++ {
-		next <- i
-	}
-	close(next)
+	run(p.workers[0])
 	wg.Wait()
 }
 
