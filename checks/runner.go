@@ -23,6 +23,7 @@ import (
 	"runtime"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"github.com/biaslint/biaslint/checks/solve"
 	"github.com/biaslint/biaslint/netlist"
@@ -92,6 +93,29 @@ type pool struct {
 	mu      sync.Mutex
 	done    int
 	total   int
+	// order is the pivot order of the nominal case's last factorisation,
+	// captured once when the nominal case is first solved (alone, on the
+	// first worker, before any other case); every worker's System starts
+	// its later solves from it (worker.apply). A solve keeps it only
+	// where a fresh pivoting would pick the same pivots
+	// (solve.SparseLU.UsePivotOrder), so it saves work without changing
+	// a bit of any result, whichever worker solves a case.
+	order    atomic.Pointer[solve.PivotOrder]
+	captured atomic.Bool
+}
+
+// sharePivotOrder turns the pool's shared pivot order on; tests turn it
+// off to compare.
+var sharePivotOrder = true
+
+// capture keeps sys's pivot order as the pool's, the first time it is
+// called.
+func (p *pool) capture(sys *solve.System) {
+	if p.captured.CompareAndSwap(false, true) && sharePivotOrder {
+		if o := sys.PivotOrder(); o != nil {
+			p.order.Store(o)
+		}
+	}
 }
 
 func newPool(a *analyzer) *pool {
@@ -125,33 +149,33 @@ func (p *pool) tick(n int) {
 }
 
 // each runs do(w, i) for i in [0, n) on the workers. Each i is run once;
-// do writes its result into slot i of a slice the caller owns.
+// do writes its result into slot i of a slice the caller owns. The
+// workers take the next i from a shared counter (no channel hand-off per
+// item), the first of them on the calling goroutine.
 func (p *pool) each(n int, do func(w *worker, i int)) {
 	if n <= 0 {
 		return
 	}
 	k := min(len(p.workers), n)
-	if k == 1 {
-		for i := 0; i < n; i++ {
-			do(p.workers[0], i)
+	var next atomic.Int64
+	run := func(w *worker) {
+		for {
+			i := int(next.Add(1) - 1)
+			if i >= n {
+				return
+			}
+			do(w, i)
 		}
-		return
 	}
-	next := make(chan int)
 	var wg sync.WaitGroup
-	for _, w := range p.workers[:k] {
+	for _, w := range p.workers[1:k] {
 		wg.Add(1)
 		go func(w *worker) {
 			defer wg.Done()
-			for i := range next {
-				do(w, i)
-			}
+			run(w)
 		}(w)
 	}
-	for i := 0; i < n; i++ {
-		next <- i
-	}
-	close(next)
+	run(p.workers[0])
 	wg.Wait()
 }
 
@@ -241,8 +265,14 @@ func (w *worker) setHFE(h int) {
 	}
 }
 
-// apply resets the values changed on sys and sets those of set.
+// apply resets the values changed on sys and sets those of set. The
+// worker's main System is given the pool's pivot order once it exists.
 func (w *worker) apply(sys *solve.System, dirty *[]string, set []setting) error {
+	if p := w.a.pool; sys == w.sys && p != nil && sys != nil {
+		if o := p.order.Load(); o != nil {
+			sys.UsePivotOrder(o)
+		}
+	}
 	for _, k := range *dirty {
 		if err := sys.SetValue(k, w.a.nominal[k]); err != nil {
 			return err
@@ -269,6 +299,9 @@ func (w *worker) solveCase(sp *caseSpec, guess *solve.Result) caseOut {
 	}
 	var out caseOut
 	out.res, out.th, out.err = w.a.solveThermal(w.sys, sp, guess)
+	if sp.kind == KindNominal && out.err == nil && w.a.pool != nil {
+		w.a.pool.capture(w.sys)
+	}
 	if sp.open != nil {
 		w.openThevenin(sp, &out)
 	}

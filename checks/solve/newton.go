@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/biaslint/biaslint/checks/device"
@@ -123,6 +124,13 @@ type work struct {
 	off        []uint8
 	offB, offD []bool
 	inject     map[int]float64
+	// The sinks of assemble and residualOK, kept so that each iteration
+	// does not make new ones.
+	msink matrixSink
+	rsink residualSink
+	// x0 and x are solve's starting point and iterate (kept for their
+	// storage; x is the solution solve returns, valid until release).
+	x0, x []float64
 }
 
 // stop reports whether the solve must stop because its context is done.
@@ -185,13 +193,26 @@ func (w *work) variants(opt Options) error {
 	return nil
 }
 
-// devices builds the device instances at their temperatures.
-func (s *System) devices(opt Options, st settings) ([]*device.BJT, []*device.Diode, error) {
+// devices builds the device instances at their temperatures. An
+// instance depends only on its model's type and parameters, its area, its
+// temperature and the device options, and is not changed once made, so
+// each element keeps the instance of its last solve (s.made) and takes it
+// again while those are the same: a Monte Carlo run or a corner that
+// changes resistors, and the gain solves after a solve, make no new
+// devices.
+// bjts and dios are the slices to fill (their storage is reused).
+func (s *System) devices(opt Options, st settings, bjts []*device.BJT, dios []*device.Diode) ([]*device.BJT, []*device.Diode, error) {
 	c := s.circuit
 	dopt := device.Options{TNom: c.Options.TNom, GMin: st.gmin}
-	var errs netlist.ErrorList
+	var errs *netlist.ErrorList
+	fail := func(el *elem, err error) {
+		if errs == nil {
+			errs = &netlist.ErrorList{}
+		}
+		errs.Addf(el.e.Pos, "%s: %v", el.e.Name, err)
+	}
 	temp := func(el *elem) float64 {
-		if t, ok := opt.DeviceTemp[netlist.Key(el.e.Name)]; ok {
+		if t, ok := opt.DeviceTemp[el.key]; ok {
 			return t
 		}
 		if t, ok := el.e.Params["temp"]; ok {
@@ -199,24 +220,91 @@ func (s *System) devices(opt Options, st settings) ([]*device.BJT, []*device.Dio
 		}
 		return st.temp + el.e.Params["dtemp"]
 	}
-	bjts := make([]*device.BJT, len(s.bjts))
+	if len(s.made) != len(s.bjts)+len(s.diodes) {
+		s.made = make([]madeDevice, len(s.bjts)+len(s.diodes))
+	}
+	bjts, dios = slices.Grow(bjts[:0], len(s.bjts))[:len(s.bjts)], slices.Grow(dios[:0], len(s.diodes))[:len(s.diodes)]
 	for i, el := range s.bjts {
-		b, err := device.NewBJT(el.model, el.value, temp(el), dopt)
-		if err != nil {
-			errs.Addf(el.e.Pos, "%s: %v", el.e.Name, err)
+		t, m := temp(el), &s.made[i]
+		if m.bjt == nil || !m.same(el, t, dopt) {
+			b, err := device.NewBJT(el.model, el.value, t, dopt)
+			m.bjt = nil
+			if err != nil {
+				fail(el, err)
+			} else {
+				m.bjt = b
+				m.record(el, t, dopt)
+			}
 		}
-		bjts[i] = b
+		bjts[i] = m.bjt
 	}
-	dios := make([]*device.Diode, len(s.diodes))
 	for i, el := range s.diodes {
-		d, err := device.NewDiode(el.model, el.value, temp(el), dopt)
-		if err != nil {
-			errs.Addf(el.e.Pos, "%s: %v", el.e.Name, err)
+		t, m := temp(el), &s.made[len(s.bjts)+i]
+		if m.dio == nil || !m.same(el, t, dopt) {
+			d, err := device.NewDiode(el.model, el.value, t, dopt)
+			m.dio = nil
+			if err != nil {
+				fail(el, err)
+			} else {
+				m.dio = d
+				m.record(el, t, dopt)
+			}
 		}
-		dios[i] = d
+		dios[i] = m.dio
 	}
-	return bjts, dios, errs.Err()
+	if errs != nil {
+		return bjts, dios, errs.Err()
+	}
+	return bjts, dios, nil
 }
+
+// madeDevice is the device instance an element's last solve made and what
+// it was made from: the model (pointer, type, name and every parameter,
+// which a caller may change in place between solves), the area, the
+// temperature and the options.
+type madeDevice struct {
+	bjt        *device.BJT
+	dio        *device.Diode
+	model      *netlist.Model
+	typ        netlist.ModelType
+	name       string
+	params     []modelParam
+	area, temp float64
+	opt        device.Options
+}
+
+type modelParam struct {
+	key string
+	v   float64
+}
+
+// same reports whether el at temperature t with options opt would make
+// the recorded instance: the same inputs, compared bit for bit.
+func (m *madeDevice) same(el *elem, t float64, opt device.Options) bool {
+	md := el.model
+	if md != m.model || md.Type != m.typ || md.Name != m.name || len(md.Params) != len(m.params) ||
+		!sameBits(el.value, m.area) || !sameBits(t, m.temp) || !sameBits(opt.TNom, m.opt.TNom) || !sameBits(opt.GMin, m.opt.GMin) {
+		return false
+	}
+	for _, p := range m.params {
+		if v, ok := md.Params[p.key]; !ok || !sameBits(v, p.v) {
+			return false
+		}
+	}
+	return true
+}
+
+// record notes the inputs of an instance just made.
+func (m *madeDevice) record(el *elem, t float64, opt device.Options) {
+	md := el.model
+	m.model, m.typ, m.name, m.area, m.temp, m.opt = md, md.Type, md.Name, el.value, t, opt
+	m.params = m.params[:0]
+	for k, v := range md.Params {
+		m.params = append(m.params, modelParam{k, v})
+	}
+}
+
+func sameBits(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }
 
 // newWork resolves the options and builds the devices and workspace of
 // one solve.
@@ -225,7 +313,24 @@ func (s *System) newWork(opt Options) (*work, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
+	w := s.spare
+	if w != nil {
+		// The work space of the last solve: every buffer is written before
+		// it is read (evaluate, assemble, residualOK, the linear solve), and
+		// every other field starts as in a new one.
+		s.spare = nil
+		*w = work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context,
+			jb: w.jb, evB: w.evB, jd: w.jd, evD: w.evD,
+			rhs: w.rhs, xnew: w.xnew, res: w.res, mag: w.mag,
+			bad: w.bad[:0], limited: w.limited[:0], bjt: w.bjt, dio: w.dio, x0: w.x0, x: w.x}
+	} else {
+		w = &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
+		nb, nd := len(s.bjts), len(s.diodes)
+		w.jb, w.evB = make([][2]float64, nb), make([]device.BJTEval, nb)
+		w.jd, w.evD = make([]float64, nd), make([][2]float64, nd)
+		w.rhs, w.xnew = make([]float64, s.n), make([]float64, s.n)
+		w.res, w.mag = make([]float64, s.n), make([]float64, s.n)
+	}
 	if w.lin == nil {
 		if s.lin == nil {
 			s.lin = NewSparseLU()
@@ -235,25 +340,12 @@ func (s *System) newWork(opt Options) (*work, error) {
 	if r, ok := w.lin.(interface{ Repivot() }); ok {
 		r.Repivot()
 	}
-	if w.bjt, w.dio, err = s.devices(opt, st); err != nil {
+	if w.bjt, w.dio, err = s.devices(opt, st, w.bjt, w.dio); err != nil {
 		return nil, err
 	}
 	if err := w.variants(opt); err != nil {
 		return nil, err
 	}
-	if b := s.spare; b != nil {
-		// The buffers of the last solve: every one is written before it
-		// is read (evaluate, assemble, residualOK, the linear solve).
-		s.spare = nil
-		w.jb, w.evB, w.jd, w.evD = b.jb, b.evB, b.jd, b.evD
-		w.rhs, w.xnew, w.res, w.mag = b.rhs, b.xnew, b.res, b.mag
-		return w, nil
-	}
-	nb, nd := len(s.bjts), len(s.diodes)
-	w.jb, w.evB = make([][2]float64, nb), make([]device.BJTEval, nb)
-	w.jd, w.evD = make([]float64, nd), make([][2]float64, nd)
-	w.rhs, w.xnew = make([]float64, s.n), make([]float64, s.n)
-	w.res, w.mag = make([]float64, s.n), make([]float64, s.n)
 	return w, nil
 }
 
@@ -263,6 +355,27 @@ func (s *System) release(w *work) {
 	if w != nil {
 		s.spare = w
 	}
+}
+
+// PivotOrder returns the symbolic analysis and pivot order of the last
+// factorisation of the System's own linear solver (nil if it has none),
+// to share with the Systems of other goroutines (UsePivotOrder).
+func (s *System) PivotOrder() *PivotOrder {
+	if s.lin == nil {
+		return nil
+	}
+	return s.lin.PivotOrder()
+}
+
+// UsePivotOrder makes every later solve with the System's own linear
+// solver start from o where o's pattern is the System's (see
+// SparseLU.UsePivotOrder); nil stops it. The solutions are the same bits
+// as without it: only the work of pivoting is saved.
+func (s *System) UsePivotOrder(o *PivotOrder) {
+	if s.lin == nil {
+		s.lin = NewSparseLU()
+	}
+	s.lin.UsePivotOrder(o)
 }
 
 // Solve finds the DC operating point: plain Newton first, then GMIN
@@ -281,8 +394,9 @@ func (s *System) solve(opt Options) (*Result, *work, []float64, error) {
 		return nil, nil, nil, err
 	}
 	st := w.st
-	x0, warm := s.guess(opt.Guess)
-	x := append([]float64(nil), x0...)
+	x0, warm := s.guessInto(w.x0, opt.Guess)
+	x := append(w.x[:0], x0...)
+	w.x0, w.x = x0, x
 	var tried []string
 	if w.newton(x, !warm, st.maxIter) {
 		return s.verified(w, x, MethodNewton), w, x, nil
@@ -395,8 +509,12 @@ func (s *System) unknownName(i int) string {
 
 // guess returns the starting vector: zero, or the values of a previous
 // result matched by node and element name.
-func (s *System) guess(g *Result) ([]float64, bool) {
-	x := make([]float64, s.n)
+func (s *System) guess(g *Result) ([]float64, bool) { return s.guessInto(nil, g) }
+
+// guessInto is guess, into buf's storage when it is large enough.
+func (s *System) guessInto(buf []float64, g *Result) ([]float64, bool) {
+	x := slices.Grow(buf[:0], s.n)[:s.n]
+	clear(x)
 	if g == nil {
 		return x, false
 	}
@@ -426,7 +544,8 @@ func (s *System) guess(g *Result) ([]float64, bool) {
 	}
 	for _, v := range x {
 		if !finite(v) {
-			return make([]float64, s.n), false
+			clear(x)
+			return x, false
 		}
 	}
 	return x, true
@@ -531,7 +650,8 @@ func (w *work) assemble(x []float64) error {
 	for i := range w.rhs {
 		w.rhs[i] = 0
 	}
-	m := &matrixSink{lin: w.lin, rhs: w.rhs}
+	m := &w.msink
+	m.lin, m.rhs = w.lin, w.rhs
 	w.stampLinear(m)
 	w.stampDevices(m, x, true)
 	w.stampPoly(m, x, true)
@@ -564,7 +684,8 @@ func (w *work) residualOK(x []float64) bool {
 	for i := range w.res {
 		w.res[i], w.mag[i] = 0, 0
 	}
-	r := &residualSink{x: x, r: w.res, m: w.mag}
+	r := &w.rsink
+	r.x, r.r, r.m = x, w.res, w.mag
 	w.stampLinear(r)
 	w.stampDevices(r, x, false)
 	w.stampPoly(r, x, false)

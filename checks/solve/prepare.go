@@ -71,6 +71,9 @@ type System struct {
 	lin *SparseLU
 	// spare is the work space of the last solve, reused by the next.
 	spare *work
+	// made are the device instances of the last solve, the transistors
+	// then the diodes (see devices).
+	made []madeDevice
 }
 
 // Notes returns the notes Prepare made about the circuit (nodes tied to

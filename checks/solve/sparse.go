@@ -3,6 +3,7 @@ package solve
 import (
 	"fmt"
 	"math"
+	"slices"
 )
 
 // SparseLU is a LinearSolver for large, sparse MNA systems: a sparse LU
@@ -29,6 +30,13 @@ import (
 //     simulation problems", ACM TOMS 37(3), 2010). It is used while a pivot
 //     stays at least refactorTol of its column's largest candidate; a pivot
 //     that turns smaller starts a fresh pivoting.
+//   - a pivot order shared between solvers (PivotOrder, UsePivotOrder):
+//     a solver whose pattern is the order's starts every solve (Repivot)
+//     from the order's ordering, patterns of L and U and pivots instead
+//     of a fresh pivoting, and keeps them only where they are the pivots a
+//     fresh pivoting would choose from the same values (refactorExact), so
+//     its factors, and every solution, are bit for bit those of a fresh
+//     pivoting whichever solver, and whatever solve before, made the order.
 //
 // The pattern is recorded from the Add calls. An assembly that repeats the
 // previous one's sequence of (i, j) costs one comparison per Add; an entry
@@ -51,7 +59,7 @@ type SparseLU struct {
 	val    []float64
 	// seq is the entry of each Add of the current (and previous) assembly;
 	// nadd counts the Adds since Clear.
-	seq   []int32
+	seq   []seqAdd
 	nadd  int
 	grown bool
 
@@ -87,9 +95,54 @@ type SparseLU struct {
 	rowm         []float64
 	inq          []bool    // SolveSparse: step queued
 	ys, ws       []float64 // SolveSparse's work, all zero between calls
+	heap         minHeap   // SolveSparse's queue, kept for its storage
+	touched      []int     // SolveSparse's forward steps, likewise
 	factorsFresh int       // factorisations with fresh pivoting (statistics)
 	refactors    int       // value-only refactorisations (statistics)
+	reused       int       // solves started from the shared order (statistics)
+
+	// ppos[k] is where step k's pivot row stands among the other
+	// candidates of column k (the rows of L's column k, in the order
+	// factor met them): its tie-break, for refactorExact.
+	ppos []int
+	// order is the shared starting order (UsePivotOrder), nil for none;
+	// adopted says that analyse found the pattern equal to the order's and
+	// took its column order and compressed columns; atOrder that the
+	// patterns of L and U and the pivots are the order's (no fresh
+	// pivoting since they were copied); restart that the next Factor
+	// starts a solve (Repivot).
+	order   *PivotOrder
+	adopted bool
+	atOrder bool
+	restart bool
 }
+
+// seqAdd is one Add of an assembly: its entry and the entry's (i, j) as
+// i<<32 | j, so that an Add repeating the previous assembly's is told by
+// one comparison.
+type seqAdd struct {
+	id uint64
+	e  int32
+}
+
+// PivotOrder is the symbolic analysis and pivot order of one SparseLU
+// factorisation: the pattern it belongs to, the column order, the matrix's
+// compressed columns, the patterns of L and U and the pivot rows. It is
+// not changed once made, so solvers on any number of goroutines may share
+// it (UsePivotOrder).
+type PivotOrder struct {
+	n int
+	// keys are the pattern's entries, row<<32 | column, sorted: the
+	// identity a solver's pattern must have to use the order.
+	keys             []uint64
+	q, ap, ai        []int
+	lp, li, up, ui   []int
+	prow, pinv, ppos []int
+}
+
+// Size returns the number of unknowns and of pattern entries of the
+// order's matrix.
+func (o *PivotOrder) Size() (n, entries int) { return o.n, len(o.keys) }
 
 // Threshold partial pivoting: a fresh factorisation takes the diagonal
 // when it is at least pivotTol of the largest candidate in its column; a
@@ -111,7 +164,8 @@ func NewSparseLU() *SparseLU { return &SparseLU{} }
 func (f *SparseLU) Clear(n int) {
 	f.ok = false
 	if n != f.n || f.key == nil {
-		*f = SparseLU{n: n, key: map[uint64]int32{}, factorsFresh: f.factorsFresh, refactors: f.refactors}
+		*f = SparseLU{n: n, key: map[uint64]int32{}, factorsFresh: f.factorsFresh, refactors: f.refactors,
+			reused: f.reused, order: f.order}
 		return
 	}
 	f.seq = f.seq[:f.nadd]
@@ -121,11 +175,48 @@ func (f *SparseLU) Clear(n int) {
 	}
 }
 
-// Repivot makes the next Factor choose its pivots afresh (the ordering of
-// the pattern is kept). System.Solve calls it once per solve, so a
-// solution depends only on that solve's matrices, not on what the solver
-// factored before.
-func (f *SparseLU) Repivot() { f.piv = false }
+// Repivot makes the next Factor start a solve: it chooses its pivots
+// afresh (the ordering of the pattern is kept), or, when the solver uses a
+// shared PivotOrder whose pattern is its own, starts from that order and
+// keeps it only where a fresh pivoting would choose the same pivots.
+// System.Solve calls it once per solve, so a solution depends only on
+// that solve's matrices, not on what the solver factored before.
+func (f *SparseLU) Repivot() { f.piv, f.restart = false, true }
+
+// PivotOrder returns the symbolic analysis and pivot order of the last
+// factorisation, for other solvers of the same pattern (UsePivotOrder), or
+// nil when there is none.
+func (f *SparseLU) PivotOrder() *PivotOrder {
+	if !f.sym || f.grown || !f.piv || f.n == 0 {
+		return nil
+	}
+	c := func(a []int) []int { return append([]int(nil), a...) }
+	return &PivotOrder{n: f.n, keys: f.sortedKeys(), q: c(f.q), ap: c(f.ap), ai: c(f.ai),
+		lp: c(f.lp), li: c(f.li), up: c(f.up), ui: c(f.ui), prow: c(f.prow), pinv: c(f.pinv), ppos: c(f.ppos)}
+}
+
+// UsePivotOrder makes o (nil for none) the order every later solve
+// (Repivot) starts from, when the pattern is o's: same size and the same
+// set of entries, compared exactly at the next analysis. A solver of
+// another pattern ignores it and pivots afresh. The column order and the
+// compressed columns are then o's, so a fresh pivoting (where the order
+// does not hold) also gives the same bits on every solver using o.
+func (f *SparseLU) UsePivotOrder(o *PivotOrder) {
+	if o == f.order {
+		return
+	}
+	f.order, f.sym, f.adopted, f.atOrder, f.piv = o, false, false, false, false
+}
+
+// sortedKeys returns the pattern's entries, row<<32 | column, sorted.
+func (f *SparseLU) sortedKeys() []uint64 {
+	keys := make([]uint64, len(f.ei))
+	for e := range f.ei {
+		keys[e] = uint64(f.ei[e])<<32 | uint64(f.ej[e])
+	}
+	slices.Sort(keys)
+	return keys
+}
 
 // Add implements LinearSolver. Indices out of range are ignored.
 func (f *SparseLU) Add(i, j int, v float64) {
@@ -134,13 +225,13 @@ func (f *SparseLU) Add(i, j int, v float64) {
 	}
 	k := f.nadd
 	f.nadd++
+	id := uint64(i)<<32 | uint64(j)
 	if k < len(f.seq) {
-		if e := f.seq[k]; int(f.ei[e]) == i && int(f.ej[e]) == j {
-			f.val[e] += v
+		if a := f.seq[k]; a.id == id {
+			f.val[a.e] += v
 			return
 		}
 	}
-	id := uint64(i)<<32 | uint64(j)
 	e, ok := f.key[id]
 	if !ok {
 		e = int32(len(f.val))
@@ -150,9 +241,9 @@ func (f *SparseLU) Add(i, j int, v float64) {
 	}
 	f.val[e] += v
 	if k < len(f.seq) {
-		f.seq[k] = e
+		f.seq[k] = seqAdd{id, e}
 	} else {
-		f.seq = append(f.seq, e)
+		f.seq = append(f.seq, seqAdd{id, e})
 	}
 }
 
@@ -176,15 +267,26 @@ func (f *SparseLU) Factor() error {
 	if err := f.equilibrate(); err != nil {
 		return err
 	}
-	done := false
-	if f.piv {
+	done, from := false, 0
+	switch {
+	case f.restart:
+		f.restart, f.piv = false, false
+		if f.adopted {
+			f.loadOrder()
+			from = f.refactorExact()
+			done = from == n
+			if done {
+				f.reused++
+			}
+		}
+	case f.piv:
 		done = f.refactor()
 		if done {
 			f.refactors++
 		}
 	}
 	if !done {
-		if err := f.factor(); err != nil {
+		if err := f.factor(from); err != nil {
 			return err
 		}
 		f.factorsFresh++
@@ -208,30 +310,43 @@ func (f *SparseLU) Factor() error {
 	return nil
 }
 
-// analyse orders the pattern and builds its compressed columns.
+// analyse orders the pattern and builds its compressed columns: the
+// shared order's, when the pattern is the order's, else its own.
 func (f *SparseLU) analyse() {
 	n := f.n
-	f.q = minimumDegree(n, f.ei, f.ej)
-	pos := make([]int, n) // unknown -> column
-	for k, j := range f.q {
-		pos[j] = k
-	}
-	cnt := make([]int, n+1)
-	for _, j := range f.ej {
-		cnt[pos[j]+1]++
-	}
-	for k := 0; k < n; k++ {
-		cnt[k+1] += cnt[k]
-	}
-	f.ap = append([]int(nil), cnt...)
 	nz := len(f.val)
-	f.ai, f.aent, f.ax = make([]int, nz), make([]int32, nz), make([]float64, nz)
-	next := cnt[:n]
-	for e := range f.val {
-		k := pos[f.ej[e]]
-		p := next[k]
-		next[k]++
-		f.ai[p], f.aent[p] = int(f.ei[e]), int32(e)
+	f.adopted, f.atOrder = false, false
+	if o := f.order; o != nil && o.n == n && slices.Equal(o.keys, f.sortedKeys()) {
+		f.q, f.ap, f.ai = append(f.q[:0], o.q...), append(f.ap[:0], o.ap...), append(f.ai[:0], o.ai...)
+		f.aent, f.ax = make([]int32, nz), make([]float64, nz)
+		for k := 0; k < n; k++ {
+			for p := f.ap[k]; p < f.ap[k+1]; p++ {
+				f.aent[p] = f.key[uint64(f.ai[p])<<32|uint64(f.q[k])]
+			}
+		}
+		f.adopted = true
+	} else {
+		f.q = minimumDegree(n, f.ei, f.ej)
+		pos := make([]int, n) // unknown -> column
+		for k, j := range f.q {
+			pos[j] = k
+		}
+		cnt := make([]int, n+1)
+		for _, j := range f.ej {
+			cnt[pos[j]+1]++
+		}
+		for k := 0; k < n; k++ {
+			cnt[k+1] += cnt[k]
+		}
+		f.ap = append([]int(nil), cnt...)
+		f.ai, f.aent, f.ax = make([]int, nz), make([]int32, nz), make([]float64, nz)
+		next := cnt[:n]
+		for e := range f.val {
+			k := pos[f.ej[e]]
+			p := next[k]
+			next[k]++
+			f.ai[p], f.aent[p] = int(f.ei[e]), int32(e)
+		}
 	}
 	f.x, f.w, f.y = make([]float64, n), make([]float64, n), make([]float64, n)
 	f.inq = make([]bool, n)
@@ -239,6 +354,7 @@ func (f *SparseLU) analyse() {
 	f.pinv, f.prow = make([]int, n), make([]int, n)
 	f.rs, f.cs, f.rowm = make([]float64, n), make([]float64, n), make([]float64, n)
 	f.lp, f.up, f.ud = make([]int, n+1), make([]int, n+1), make([]float64, n)
+	f.ppos = make([]int, n)
 	f.stamp = 0
 	f.sym, f.grown, f.piv = true, false, false
 }
@@ -283,15 +399,22 @@ func (f *SparseLU) equilibrate() error {
 }
 
 // factor is the Gilbert-Peierls factorisation with threshold partial
-// pivoting (Davis 2006, cs_lu).
-func (f *SparseLU) factor() error {
+// pivoting (Davis 2006, cs_lu), from step k0 on: the steps before k0 are
+// kept as they are (refactorExact leaves them as factor makes them).
+func (f *SparseLU) factor(k0 int) error {
 	n := f.n
-	f.li, f.lx, f.ui, f.ux = f.li[:0], f.lx[:0], f.ui[:0], f.ux[:0]
-	for i := range f.pinv {
-		f.pinv[i] = -1
+	f.li, f.lx, f.ui, f.ux = f.li[:f.lp[k0]], f.lx[:f.lp[k0]], f.ui[:f.up[k0]], f.ux[:f.up[k0]]
+	if k0 == 0 {
+		for i := range f.pinv {
+			f.pinv[i] = -1
+		}
+	} else {
+		for K := k0; K < n; K++ {
+			f.pinv[f.prow[K]] = -1
+		}
 	}
-	f.piv = false
-	for k := 0; k < n; k++ {
+	f.piv, f.atOrder = false, false
+	for k := k0; k < n; k++ {
 		f.lp[k], f.up[k] = len(f.li), len(f.ui)
 		f.stamp++
 		top := n
@@ -340,6 +463,9 @@ func (f *SparseLU) factor() error {
 		f.pinv[ipiv], f.prow[k] = k, ipiv
 		for px := top; px < n; px++ {
 			i := f.xi[px]
+			if i == ipiv {
+				f.ppos[k] = len(f.li) - f.lp[k]
+			}
 			if f.pinv[i] < 0 {
 				f.li = append(f.li, i)
 				f.lx = append(f.lx, f.x[i]/pivot)
@@ -390,27 +516,36 @@ func (f *SparseLU) dfs(j, top int) int {
 	return top
 }
 
+// eliminate computes column k of the factors with the patterns and pivots
+// they hold: it scatters column k of the matrix into x, applies the
+// columns of L that U's column k names (storing U's values) and returns
+// the pivot. x is left nonzero only at the rows of L's column k.
+func (f *SparseLU) eliminate(k int) float64 {
+	for p := f.ap[k]; p < f.ap[k+1]; p++ {
+		f.x[f.ai[p]] = f.ax[p]
+	}
+	for p := f.up[k]; p < f.up[k+1]; p++ {
+		J := f.ui[p]
+		j := f.prow[J]
+		xj := f.x[j]
+		f.ux[p] = xj
+		f.x[j] = 0
+		for r := f.lp[J]; r < f.lp[J+1]; r++ {
+			f.x[f.li[r]] -= f.lx[r] * xj
+		}
+	}
+	pr := f.prow[k]
+	pivot := f.x[pr]
+	f.x[pr] = 0
+	return pivot
+}
+
 // refactor recomputes the values of L and U with the patterns and pivots
 // of the last factorisation; false when a pivot has become too small.
 func (f *SparseLU) refactor() bool {
 	n := f.n
 	for k := 0; k < n; k++ {
-		for p := f.ap[k]; p < f.ap[k+1]; p++ {
-			f.x[f.ai[p]] = f.ax[p]
-		}
-		for p := f.up[k]; p < f.up[k+1]; p++ {
-			J := f.ui[p]
-			j := f.prow[J]
-			xj := f.x[j]
-			f.ux[p] = xj
-			f.x[j] = 0
-			for r := f.lp[J]; r < f.lp[J+1]; r++ {
-				f.x[f.li[r]] -= f.lx[r] * xj
-			}
-		}
-		pr := f.prow[k]
-		pivot := f.x[pr]
-		f.x[pr] = 0
+		pivot := f.eliminate(k)
 		big := 0.0
 		for r := f.lp[k]; r < f.lp[k+1]; r++ {
 			if a := math.Abs(f.x[f.li[r]]); a > big || a != a {
@@ -432,6 +567,91 @@ func (f *SparseLU) refactor() bool {
 		}
 	}
 	return true
+}
+
+// loadOrder copies the shared order's patterns of L and U and its pivots
+// into the factors (the column order and compressed columns are already
+// the order's: f.adopted), unless they still hold them.
+func (f *SparseLU) loadOrder() {
+	if f.atOrder {
+		return
+	}
+	o := f.order
+	f.lp, f.li, f.up, f.ui = append(f.lp[:0], o.lp...), append(f.li[:0], o.li...), append(f.up[:0], o.up...), append(f.ui[:0], o.ui...)
+	f.prow, f.pinv, f.ppos = append(f.prow[:0], o.prow...), append(f.pinv[:0], o.pinv...), append(f.ppos[:0], o.ppos...)
+	f.lx, f.ux = grow(f.lx, len(f.li)), grow(f.ux, len(f.ui))
+	f.atOrder = true
+}
+
+// grow returns a of length n, reusing its storage.
+func grow(a []float64, n int) []float64 {
+	if cap(a) >= n {
+		return a[:n]
+	}
+	return make([]float64, n)
+}
+
+// refactorExact is refactor for the first factorisation of a solve that
+// starts from the shared order, with factor's own pivot rule in place of
+// the looser refactorTol test: column by column it keeps the order's pivot
+// only if factor, given the same values, would choose that row (the
+// diagonal when it is at least pivotTol of the largest candidate, else the
+// first of the largest in the order factor meets the candidates, ppos).
+// With the same column order, compressed columns and pivots, factor's
+// patterns of L and U and its order of operations are the order's, so the
+// factors are bit for bit those of a fresh pivoting. It returns false at
+// the first column where the pivot differs (or a value is not finite), and
+// factor then pivots afresh from that column on, the columns before it
+// being already what it would make; n when every pivot holds.
+func (f *SparseLU) refactorExact() int {
+	n := f.n
+	for k := 0; k < n; k++ {
+		pivot := f.eliminate(k)
+		a0 := math.Abs(pivot)
+		lo, mid, hi := f.lp[k], f.lp[k]+f.ppos[k], f.lp[k+1]
+		pr, d := f.prow[k], f.q[k]
+		ok := a0 > 0 && !math.IsInf(a0, 0)
+		big, before, after, ad := a0, -1.0, -1.0, -1.0
+		for r := lo; r < hi && ok; r++ {
+			i := f.li[r]
+			a := math.Abs(f.x[i])
+			if a != a || math.IsInf(a, 0) {
+				ok = false
+				break
+			}
+			big = math.Max(big, a)
+			if r < mid {
+				before = math.Max(before, a)
+			} else {
+				after = math.Max(after, a)
+			}
+			if i == d {
+				ad = a
+			}
+		}
+		if ok {
+			if pr == d {
+				ok = a0 >= pivotTol*big
+			} else {
+				ok = a0 > before && a0 >= after && !(ad >= 0 && ad >= pivotTol*a0)
+			}
+		}
+		if !ok {
+			for r := lo; r < hi; r++ {
+				f.x[f.li[r]] = 0
+			}
+			f.piv = false
+			return k
+		}
+		f.ud[k] = pivot
+		for r := lo; r < hi; r++ {
+			i := f.li[r]
+			f.lx[r] = f.x[i] / pivot
+			f.x[i] = 0
+		}
+	}
+	f.piv = true
+	return n
 }
 
 // Solve implements LinearSolver.
@@ -612,7 +832,7 @@ func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
 	y, w := f.ys, f.ws // kept all zero between calls
 	// Forward: steps in increasing order, a step queued when its row
 	// becomes nonzero.
-	var lo minHeap
+	lo := f.heap[:0]
 	for _, i := range rows {
 		if i < 0 || i >= f.n {
 			continue
@@ -624,7 +844,7 @@ func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
 			lo.push(k)
 		}
 	}
-	var touched []int
+	touched := f.touched[:0]
 	for lo.len() > 0 {
 		k := lo.pop()
 		f.inq[k] = false
@@ -646,7 +866,7 @@ func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
 		}
 	}
 	// Backward: steps in decreasing order.
-	var hi minHeap
+	hi := lo[:0]
 	for _, k := range touched {
 		if w[k] != 0 && !f.inq[k] {
 			f.inq[k] = true
@@ -677,6 +897,7 @@ func (f *SparseLU) SolveSparse(x, b []float64, rows []int) ([]int, error) {
 	for _, k := range touched {
 		w[k] = 0
 	}
+	f.heap, f.touched = hi, touched
 	return set, nil
 }
 

@@ -1,8 +1,6 @@
 package solve
 
 import (
-	"io/fs"
-	"path/filepath"
 	"strings"
 
 	"errors"
@@ -241,17 +239,7 @@ func (l *twinLU) Solve(x, b []float64) error {
 // Every Newton step of every netlist in testdata that can be solved gives
 // the same solution with the sparse and the dense LU, to 1e-12 relative.
 func TestSparseAgreesOnTestdata(t *testing.T) {
-	var files []string
-	err := filepath.WalkDir("../../testdata", func(p string, d fs.DirEntry, err error) error {
-		if err == nil && !d.IsDir() && (strings.HasSuffix(p, ".cir") || strings.HasSuffix(p, ".sp")) {
-			files = append(files, p)
-		}
-		return nil
-	})
-	if err != nil {
-		t.Fatal(err)
-	}
-	files = append(files, "../../rulesets/demo/bench-logger.cir")
+	files := testdataNetlists(t)
 	solved := 0
 	for _, f := range files {
 		c, err := netlist.Read(f, nil)
