@@ -142,6 +142,8 @@ type BJT struct {
 	vcritBE, vcritBC float64
 	// onBE, onBC are the on-thresholds of Region at Temp, V.
 	onBE, onBC float64
+	// model is the model's name, for errors (AtTemp).
+	model string
 }
 
 // NewBJT returns the transistor of model m (type npn or pnp) with area
@@ -164,7 +166,32 @@ func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
 	if err != nil {
 		return nil, err
 	}
-	t, tnom, err := checkInstance(m, area, tempC, p.TNOM, opt)
+	return newBJT(m.Name, pol, p, area, tempC, opt)
+}
+
+// AtTemp returns the transistor b at device temperature tempC (°C): what
+// NewBJT of b's model, area and options gives at tempC, bit for bit,
+// without reading the model again (its parameters are b.Params). A solve
+// whose temperatures change while the models do not (the self-heating
+// loop, the temperature step of the loop gains) remakes its transistors
+// this way.
+func (b *BJT) AtTemp(tempC float64) (*BJT, error) {
+	if b == nil {
+		return nil, fmt.Errorf("no transistor")
+	}
+	if sameFloat(tempC, b.Temp) {
+		return b, nil
+	}
+	return newBJT(b.model, b.Polarity, b.Params, b.Area, tempC, Options{TNom: b.Params.TNOM, GMin: b.GMin})
+}
+
+// sameFloat reports whether a and b are the same bits.
+func sameFloat(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }
+
+// newBJT scales the parameters p, as read from model name of polarity
+// pol, to area and tempC (°C); see BJT.Scaled.
+func newBJT(name string, pol Polarity, p BJTParams, area, tempC float64, opt Options) (*BJT, error) {
+	t, tnom, err := checkInstance(name, area, tempC, p.TNOM, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -184,10 +211,10 @@ func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
 	s.RE = p.RE / area
 	s.RC = p.RC / area
 	if !(s.IS > 0) || math.IsInf(s.IS, 0) || math.IsInf(s.ISE, 0) || math.IsInf(s.ISC, 0) {
-		return nil, fmt.Errorf("model %s: saturation currents at %g °C are out of range (IS %s)", m.Name, tempC, rangeText(s.IS))
+		return nil, fmt.Errorf("model %s: saturation currents at %g °C are out of range (IS %s)", name, tempC, rangeText(s.IS))
 	}
 	vt := ThermalVoltage(t)
-	b := &BJT{Polarity: pol, Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin}
+	b := &BJT{Polarity: pol, Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin, model: name}
 	b.vcritBE = Vcrit(s.NF*vt, s.IS)
 	b.vcritBC = Vcrit(s.NR*vt, s.IS)
 	// The current each junction carries at OnVoltage at TNOM.

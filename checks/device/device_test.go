@@ -207,6 +207,38 @@ func TestBJTTemperatureScaling(t *testing.T) {
 	}
 }
 
+// TestBJTAtTemp: AtTemp remakes a transistor at another temperature with
+// the same bits as NewBJT of its model there (the Nagel 1975 scaling of
+// TestBJTTemperatureScaling), for a model with its own TNOM, an area
+// factor and GMIN, and it refuses the temperatures NewBJT refuses.
+func TestBJTAtTemp(t *testing.T) {
+	m := model(netlist.PNP)
+	for k, v := range map[string]float64{"IS": 2e-14, "ISE": 5e-14, "NE": 1.4, "XTB": 1.7, "XTI": 3.5, "EG": 1.12, "BF": 220, "RB": 40, "IRB": 1e-4, "TNOM": 25} {
+		with(m, k, v)
+	}
+	opt := Options{TNom: 27, GMin: 1e-12}
+	b0, err := NewBJT(m, 2.5, 27, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []float64{-55, 0, 27, 27.000001, 85, 150} {
+		want, err := NewBJT(m, 2.5, tc, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := b0.AtTemp(tc)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if *got != *want {
+			t.Errorf("%g °C: AtTemp gives %+v, NewBJT %+v", tc, *got, *want)
+		}
+	}
+	if _, err := b0.AtTemp(-300); err == nil {
+		t.Error("AtTemp(-300 °C) accepted a temperature below absolute zero")
+	}
+}
+
 func TestVBETemperatureCoefficient(t *testing.T) {
 	// Common practice: at fixed collector current VBE falls about 2 mV/K
 	// (between −1.5 and −2.5 mV/K) in a small silicon transistor.

@@ -94,7 +94,7 @@ func NewDiode(m *netlist.Model, area, tempC float64, opt Options) (*Diode, error
 	if err != nil {
 		return nil, err
 	}
-	t, tnom, err := checkInstance(m, area, tempC, p.TNOM, opt)
+	t, tnom, err := checkInstance(m.Name, area, tempC, p.TNOM, opt)
 	if err != nil {
 		return nil, err
 	}

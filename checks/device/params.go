@@ -92,9 +92,9 @@ func (r *reader) fail(format string, args ...any) {
 }
 
 // checkInstance validates the area factor, the device and nominal
-// temperatures (°C) and the GMIN of an instance of model m, and returns
+// temperatures (°C) and the GMIN of an instance of the named model, and returns
 // the temperatures in kelvin.
-func checkInstance(m *netlist.Model, area, tempC, tnomC float64, opt Options) (t, tnom float64, err error) {
+func checkInstance(model string, area, tempC, tnomC float64, opt Options) (t, tnom float64, err error) {
 	if !(area > 0) || math.IsInf(area, 0) {
 		return 0, 0, fmt.Errorf("area factor %g must be a positive finite number", area)
 	}
@@ -106,7 +106,7 @@ func checkInstance(m *netlist.Model, area, tempC, tnomC float64, opt Options) (t
 		return 0, 0, fmt.Errorf("device temperature %g °C is below absolute zero or not finite", tempC)
 	}
 	if !(tnom > 0) || math.IsInf(tnom, 0) {
-		return 0, 0, fmt.Errorf("model %s: nominal temperature TNOM = %g °C is below absolute zero or not finite", m.Name, tnomC)
+		return 0, 0, fmt.Errorf("model %s: nominal temperature TNOM = %g °C is below absolute zero or not finite", model, tnomC)
 	}
 	return t, tnom, nil
 }

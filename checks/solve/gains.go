@@ -3,7 +3,6 @@ package solve
 import (
 	"fmt"
 
-	"github.com/biaslint/biaslint/checks/device"
 	"github.com/biaslint/biaslint/netlist"
 )
 
@@ -45,7 +44,6 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 	if err := w.assemble(x); err != nil {
 		return nil, err
 	}
-	dopt := device.Options{TNom: s.circuit.Options.TNom, GMin: w.st.gmin}
 	gains := make([]float64, len(s.bjts))
 	dx := make([]float64, s.n)
 	b := make([]float64, s.n)
@@ -54,7 +52,7 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 		if w.offB != nil && w.offB[j] {
 			continue
 		}
-		hot, err := device.NewBJT(el.model, el.value, w.bjt[j].Temp+step, dopt)
+		hot, err := w.bjt[j].AtTemp(w.bjt[j].Temp + step)
 		if err != nil {
 			return nil, err
 		}

@@ -226,7 +226,8 @@ func (s *System) devices(opt Options, st settings, bjts []*device.BJT, dios []*d
 	bjts, dios = slices.Grow(bjts[:0], len(s.bjts))[:len(s.bjts)], slices.Grow(dios[:0], len(s.diodes))[:len(s.diodes)]
 	for i, el := range s.bjts {
 		t, m := temp(el), &s.made[i]
-		if m.bjt == nil || !m.same(el, t, dopt) {
+		switch {
+		case m.bjt == nil || !m.sameInputs(el, dopt):
 			b, err := device.NewBJT(el.model, el.value, t, dopt)
 			m.bjt = nil
 			if err != nil {
@@ -234,6 +235,16 @@ func (s *System) devices(opt Options, st settings, bjts []*device.BJT, dios []*d
 			} else {
 				m.bjt = b
 				m.record(el, t, dopt)
+			}
+		case !sameBits(t, m.temp):
+			// Only the temperature moved (the self-heating loop): the
+			// model need not be read again.
+			b, err := m.bjt.AtTemp(t)
+			m.bjt = nil
+			if err != nil {
+				fail(el, err)
+			} else {
+				m.bjt, m.temp = b, t
 			}
 		}
 		bjts[i] = m.bjt
@@ -281,9 +292,15 @@ type modelParam struct {
 // same reports whether el at temperature t with options opt would make
 // the recorded instance: the same inputs, compared bit for bit.
 func (m *madeDevice) same(el *elem, t float64, opt device.Options) bool {
+	return sameBits(t, m.temp) && m.sameInputs(el, opt)
+}
+
+// sameInputs is same but for the temperature: the model, area and
+// options are the recorded ones.
+func (m *madeDevice) sameInputs(el *elem, opt device.Options) bool {
 	md := el.model
 	if md != m.model || md.Type != m.typ || md.Name != m.name || len(md.Params) != len(m.params) ||
-		!sameBits(el.value, m.area) || !sameBits(t, m.temp) || !sameBits(opt.TNom, m.opt.TNom) || !sameBits(opt.GMin, m.opt.GMin) {
+		!sameBits(el.value, m.area) || !sameBits(opt.TNom, m.opt.TNom) || !sameBits(opt.GMin, m.opt.GMin) {
 		return false
 	}
 	for _, p := range m.params {
