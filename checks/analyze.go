@@ -136,8 +136,10 @@ type analyzer struct {
 	// (0 for OperatingPoint, which solves on sys alone), for the memory
 	// estimate (memory.go).
 	workers int
-	// bjtIdx maps netlist.Key of a transistor's name to its index.
+	// bjtIdx maps netlist.Key of a transistor's name to its index, and
+	// bjtKey is that key by index.
 	bjtIdx map[string]int
+	bjtKey []string
 	// nominal holds the nominal value of every R, V and I element by key.
 	nominal map[string]float64
 	// firstPos is the first element line naming each net key.
@@ -350,6 +352,18 @@ func modelList(c *netlist.Circuit) string {
 	return "its transistor models are " + strings.Join(names, ", ")
 }
 
+// bjtAt returns the index of the transistor named name, which a result
+// lists at slot i: i itself when the analysis's transistor i has that
+// name (a result of the whole circuit lists them in the same order), else
+// by the name's key.
+func (a *analyzer) bjtAt(name string, i int) (int, bool) {
+	if i >= 0 && i < len(a.bjts) && a.bjts[i].Name == name {
+		return i, true
+	}
+	j, ok := a.bjtIdx[netlist.Key(name)]
+	return j, ok
+}
+
 // prepare records the nominal values and the nets' first positions.
 func (a *analyzer) prepare() {
 	a.nominal = map[string]float64{}
@@ -367,8 +381,9 @@ func (a *analyzer) prepare() {
 			}
 		case 'Q':
 			if len(el.Nodes) >= 3 {
-				a.bjtIdx[netlist.Key(el.Name)] = len(a.bjts)
-				a.bjts = append(a.bjts, el)
+				k := netlist.Key(el.Name)
+				a.bjtIdx[k] = len(a.bjts)
+				a.bjts, a.bjtKey = append(a.bjts, el), append(a.bjtKey, k)
 			}
 		}
 		for _, n := range el.Nodes {

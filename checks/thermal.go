@@ -45,7 +45,6 @@ import (
 	"math"
 
 	"github.com/biaslint/biaslint/checks/solve"
-	"github.com/biaslint/biaslint/netlist"
 )
 
 const (
@@ -114,21 +113,24 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 		}
 		T[j], relax[j], gainAt[j], out.tj[j] = sp.temp, 1, math.NaN(), math.NaN()
 	}
+	// One map of junction temperatures, rewritten for each solve (a solve
+	// reads it and keeps nothing of it), and one slice of powers.
+	tmap := make(map[string]float64, n)
 	temps := func(T []float64) map[string]float64 {
-		m := make(map[string]float64, n)
-		for j, el := range a.bjts {
-			m[netlist.Key(el.Name)] = T[j]
+		for j := range a.bjts {
+			tmap[a.bjtKey[j]] = T[j]
 		}
-		return m
+		return tmap
 	}
+	pw := make([]float64, n)
 	power := func(res *solve.Result) []float64 {
-		p := make([]float64, n)
-		for _, op := range res.BJTs {
-			if j, ok := a.bjtIdx[netlist.Key(op.Name)]; ok {
-				p[j] = op.Power
+		clear(pw)
+		for i := range res.BJTs {
+			if j, ok := a.bjtAt(res.BJTs[i].Name, i); ok {
+				pw[j] = res.BJTs[i].Power
 			}
 		}
-		return p
+		return pw
 	}
 	var res *solve.Result
 	// capped marks the junctions whose next iterate passed the cap; d
@@ -140,9 +142,13 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 	tAt, d1, t1 := make([]float64, n), make([]float64, n), make([]float64, n)
 	settled, stopped := false, false
 	var prevT []float64
+	// spare is the result of the iteration before last, which the next
+	// solve writes into (solve.Options.Into): the loop holds two results,
+	// not one per step. Only results this loop made go there, never guess.
+	var spare *solve.Result
 	for it := 0; it < thermalMaxIter && !settled && !stopped; it++ {
 		opt := base
-		opt.DeviceTemp = temps(T)
+		opt.DeviceTemp, opt.Into = temps(T), spare
 		if res != nil {
 			opt.Guess = res
 		}
@@ -163,7 +169,7 @@ func (a *analyzer) solveThermal(sys *solve.System, sp *caseSpec, guess *solve.Re
 			T, stopped = prevT, true
 			break
 		}
-		res = r
+		spare, res = res, r
 		p := power(res)
 		next := append([]float64(nil), T...)
 		biggest := 0.0
@@ -255,8 +261,8 @@ func (a *analyzer) loopGains(sys *solve.System, base solve.Options, T []float64,
 		return
 	}
 	// dp is in the order of the result's transistors.
-	for k, op := range r0.BJTs {
-		j, ok := a.bjtIdx[netlist.Key(op.Name)]
+	for k := range r0.BJTs {
+		j, ok := a.bjtAt(r0.BJTs[k].Name, k)
 		if !ok || k >= len(dp) {
 			continue
 		}

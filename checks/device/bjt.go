@@ -166,7 +166,11 @@ func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
 	if err != nil {
 		return nil, err
 	}
-	return newBJT(m.Name, pol, p, area, tempC, opt)
+	b := new(BJT)
+	if err := makeBJT(b, m.Name, pol, p, area, tempC, opt); err != nil {
+		return nil, err
+	}
+	return b, nil
 }
 
 // AtTemp returns the transistor b at device temperature tempC (°C): what
@@ -182,18 +186,35 @@ func (b *BJT) AtTemp(tempC float64) (*BJT, error) {
 	if sameFloat(tempC, b.Temp) {
 		return b, nil
 	}
-	return newBJT(b.model, b.Polarity, b.Params, b.Area, tempC, Options{TNom: b.Params.TNOM, GMin: b.GMin})
+	c := new(BJT)
+	if err := makeBJT(c, b.model, b.Polarity, b.Params, b.Area, tempC, Options{TNom: b.Params.TNOM, GMin: b.GMin}); err != nil {
+		return nil, err
+	}
+	return c, nil
+}
+
+// SetTemp is AtTemp in place: it moves b to device temperature tempC
+// (°C), or leaves it as it was and returns the error AtTemp would.
+func (b *BJT) SetTemp(tempC float64) error {
+	if b == nil {
+		return fmt.Errorf("no transistor")
+	}
+	if sameFloat(tempC, b.Temp) {
+		return nil
+	}
+	return makeBJT(b, b.model, b.Polarity, b.Params, b.Area, tempC, Options{TNom: b.Params.TNOM, GMin: b.GMin})
 }
 
 // sameFloat reports whether a and b are the same bits.
 func sameFloat(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }
 
-// newBJT scales the parameters p, as read from model name of polarity
-// pol, to area and tempC (°C); see BJT.Scaled.
-func newBJT(name string, pol Polarity, p BJTParams, area, tempC float64, opt Options) (*BJT, error) {
+// makeBJT sets *b to the transistor of the parameters p, as read from
+// model name of polarity pol, scaled to area and tempC (°C) (see
+// BJT.Scaled). On an error *b is left as it was.
+func makeBJT(b *BJT, name string, pol Polarity, p BJTParams, area, tempC float64, opt Options) error {
 	t, tnom, err := checkInstance(name, area, tempC, p.TNOM, opt)
 	if err != nil {
-		return nil, err
+		return err
 	}
 	s := p
 	f1 := satFactor(t, tnom, p.EG, p.XTI, 1)
@@ -211,17 +232,18 @@ func newBJT(name string, pol Polarity, p BJTParams, area, tempC float64, opt Opt
 	s.RE = p.RE / area
 	s.RC = p.RC / area
 	if !(s.IS > 0) || math.IsInf(s.IS, 0) || math.IsInf(s.ISE, 0) || math.IsInf(s.ISC, 0) {
-		return nil, fmt.Errorf("model %s: saturation currents at %g °C are out of range (IS %s)", name, tempC, rangeText(s.IS))
+		return fmt.Errorf("model %s: saturation currents at %g °C are out of range (IS %s)", name, tempC, rangeText(s.IS))
 	}
 	vt := ThermalVoltage(t)
-	b := &BJT{Polarity: pol, Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin, model: name}
-	b.vcritBE = Vcrit(s.NF*vt, s.IS)
-	b.vcritBC = Vcrit(s.NR*vt, s.IS)
 	// The current each junction carries at OnVoltage at TNOM.
 	isNom, vtNom := area*p.IS, ThermalVoltage(tnom)
-	b.onBE = onThreshold(s.NF*vt, s.IS, isNom*math.Expm1(OnVoltage/(p.NF*vtNom)))
-	b.onBC = onThreshold(s.NR*vt, s.IS, isNom*math.Expm1(OnVoltage/(p.NR*vtNom)))
-	return b, nil
+	*b = BJT{Polarity: pol, Params: p, Area: area, Temp: tempC, Scaled: s, VT: vt, GMin: opt.GMin, model: name,
+		vcritBE: Vcrit(s.NF*vt, s.IS),
+		vcritBC: Vcrit(s.NR*vt, s.IS),
+		onBE:    onThreshold(s.NF*vt, s.IS, isNom*math.Expm1(OnVoltage/(p.NF*vtNom))),
+		onBC:    onThreshold(s.NR*vt, s.IS, isNom*math.Expm1(OnVoltage/(p.NR*vtNom))),
+	}
+	return nil
 }
 
 // BJTEval is the DC state of a transistor at given junction voltages, in

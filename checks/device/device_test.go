@@ -207,8 +207,8 @@ func TestBJTTemperatureScaling(t *testing.T) {
 	}
 }
 
-// TestBJTAtTemp: AtTemp remakes a transistor at another temperature with
-// the same bits as NewBJT of its model there (the Nagel 1975 scaling of
+// TestBJTAtTemp: AtTemp and SetTemp remake a transistor at another
+// temperature with the same bits as NewBJT of its model there (the Nagel 1975 scaling of
 // TestBJTTemperatureScaling), for a model with its own TNOM, an area
 // factor and GMIN, and it refuses the temperatures NewBJT refuses.
 func TestBJTAtTemp(t *testing.T) {
@@ -233,9 +233,17 @@ func TestBJTAtTemp(t *testing.T) {
 		if *got != *want {
 			t.Errorf("%g °C: AtTemp gives %+v, NewBJT %+v", tc, *got, *want)
 		}
+		moved := *b0
+		if err := moved.SetTemp(tc); err != nil || moved != *want {
+			t.Errorf("%g °C: SetTemp gives %+v (%v), NewBJT %+v", tc, moved, err, *want)
+		}
 	}
 	if _, err := b0.AtTemp(-300); err == nil {
 		t.Error("AtTemp(-300 °C) accepted a temperature below absolute zero")
+	}
+	kept := *b0
+	if err := kept.SetTemp(-300); err == nil || kept != *b0 {
+		t.Errorf("SetTemp(-300 °C): error %v, and the transistor is %+v, want it unchanged", err, kept)
 	}
 }
 

@@ -52,8 +52,8 @@ func (s *System) powerGains(w *work, x []float64, step float64) ([]float64, erro
 		if w.offB != nil && w.offB[j] {
 			continue
 		}
-		hot, err := w.bjt[j].AtTemp(w.bjt[j].Temp + step)
-		if err != nil {
+		hot := *w.bjt[j]
+		if err := hot.SetTemp(hot.Temp + step); err != nil {
 			return nil, err
 		}
 		vbe, vbc := w.jb[j][0], w.jb[j][1]

@@ -93,8 +93,10 @@ type work struct {
 	s   *System
 	st  settings
 	lin LinearSolver
-	bjt []*device.BJT
-	dio []*device.Diode
+	// into is Options.Into: storage for the result.
+	into *Result
+	bjt  []*device.BJT
+	dio  []*device.Diode
 	// Last (limited) junction voltages and the evaluations there.
 	jb  [][2]float64
 	evB []device.BJTEval
@@ -238,13 +240,13 @@ func (s *System) devices(opt Options, st settings, bjts []*device.BJT, dios []*d
 			}
 		case !sameBits(t, m.temp):
 			// Only the temperature moved (the self-heating loop): the
-			// model need not be read again.
-			b, err := m.bjt.AtTemp(t)
-			m.bjt = nil
-			if err != nil {
+			// instance, which only this System holds, moves in place,
+			// without reading the model again.
+			if err := m.bjt.SetTemp(t); err != nil {
+				m.bjt = nil
 				fail(el, err)
 			} else {
-				m.bjt, m.temp = b, t
+				m.temp = t
 			}
 		}
 		bjts[i] = m.bjt
@@ -336,12 +338,12 @@ func (s *System) newWork(opt Options) (*work, error) {
 		// it is read (evaluate, assemble, residualOK, the linear solve), and
 		// every other field starts as in a new one.
 		s.spare = nil
-		*w = work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context,
+		*w = work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context, into: opt.Into,
 			jb: w.jb, evB: w.evB, jd: w.jd, evD: w.evD,
 			rhs: w.rhs, xnew: w.xnew, res: w.res, mag: w.mag,
 			bad: w.bad[:0], limited: w.limited[:0], bjt: w.bjt, dio: w.dio, x0: w.x0, x: w.x}
 	} else {
-		w = &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context}
+		w = &work{s: s, st: st, lin: opt.Linear, lambda: 1, ctx: opt.Context, into: opt.Into}
 		nb, nd := len(s.bjts), len(s.diodes)
 		w.jb, w.evB = make([][2]float64, nb), make([]device.BJTEval, nb)
 		w.jd, w.evD = make([]float64, nd), make([][2]float64, nd)

@@ -48,6 +48,13 @@ type Options struct {
 	// Without it every solve starts from zero with the junctions at their
 	// critical voltages, so the same input always gives the same bits.
 	Guess *Result
+	// Into, if not nil, is a result of the same System that the caller
+	// has no more use for: a successful solve writes its result into it,
+	// reusing its storage, and returns it (it may be Guess, which is read
+	// before anything is written). A failed solve leaves it as it was. An
+	// iteration that solves again and again (the self-heating loop) keeps
+	// two results this way instead of making one per solve.
+	Into *Result
 	// Linear is the linear solver; nil means the System's own SparseLU,
 	// kept from solve to solve so its pattern and ordering are reused
 	// (BenchmarkLinear: faster than DenseLU from 5 unknowns up, since the

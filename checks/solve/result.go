@@ -139,14 +139,20 @@ func (s *System) result(w *work, x []float64, m Method) *Result {
 	if s.index == nil {
 		s.index = s.newIndex()
 	}
-	r := &Result{
-		index:      s.index,
-		Method:     m,
-		Iterations: w.iters,
-		Temp:       w.st.temp,
-		Nodes:      make([]NodeVoltage, 0, len(s.nodeNames)),
-		Branches:   make([]BranchCurrent, 0, nb),
-		BJTs:       make([]BJTOp, 0, len(s.bjts)),
+	r := w.into
+	if r != nil && r.index == s.index {
+		*r = Result{index: s.index, Method: m, Iterations: w.iters, Temp: w.st.temp,
+			Nodes: r.Nodes[:0], Branches: r.Branches[:0], BJTs: r.BJTs[:0], Diodes: r.Diodes[:0], Unphysical: r.Unphysical[:0]}
+	} else {
+		r = &Result{
+			index:      s.index,
+			Method:     m,
+			Iterations: w.iters,
+			Temp:       w.st.temp,
+			Nodes:      make([]NodeVoltage, 0, len(s.nodeNames)),
+			Branches:   make([]BranchCurrent, 0, nb),
+			BJTs:       make([]BJTOp, 0, len(s.bjts)),
+		}
 	}
 	for i, nm := range s.nodeNames {
 		r.Nodes = append(r.Nodes, NodeVoltage{Name: nm, V: x[i]})

@@ -1,12 +1,14 @@
 package solve
 
 import (
+	"context"
 	"errors"
 	"flag"
 	"fmt"
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -612,6 +614,76 @@ func TestReuseAndSetValue(t *testing.T) {
 	}
 	if got := fmt.Sprint(s.Nodes()); got != "[vcc b c e]" {
 		t.Errorf("Nodes = %s", got)
+	}
+}
+
+// TestInto: a solve with Options.Into writes into that result the same
+// bits a solve without it returns, at a changed device temperature; Into
+// of another System is not touched, and neither is Into when the solve
+// fails (here: stopped by its context before the first iteration).
+func TestInto(t *testing.T) {
+	b := newBuilder()
+	npnModel(b, nil)
+	b.V("VCC", "vcc", "0", 12)
+	b.R("R1", "vcc", "b", 100e3)
+	b.R("R2", "b", "0", 22e3)
+	b.R("RC", "vcc", "c", 4.7e3)
+	b.R("RE", "e", "0", 1e3)
+	b.Q("Q1", "c", "b", "e", "qn")
+	s, err := Prepare(b.c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	solve := func(s *System, opt Options) *Result {
+		t.Helper()
+		r, err := s.Solve(opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	r1 := solve(s, Options{})
+	hot := Options{Guess: r1, DeviceTemp: map[string]float64{"q1": 75}}
+	want := solve(s, hot)
+	spare := solve(s, Options{})
+	into := hot
+	into.Into = spare
+	got := solve(s, into)
+	if got != spare {
+		t.Error("the solve did not write into Options.Into")
+	}
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("solved into a result: %+v\nwithout Into: %+v", got, want)
+	}
+	cold := solve(s, Options{}) // the same bits as r1
+	self := hot
+	self.Guess, self.Into = cold, cold
+	if r := solve(s, self); !reflect.DeepEqual(r, want) {
+		t.Errorf("Into = Guess: %+v, want %+v", r, want)
+	}
+
+	s2, err := Prepare(b.c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	other := solve(s2, Options{})
+	keep := *other
+	alien := hot
+	alien.Into = other
+	if r := solve(s, alien); r == other || !reflect.DeepEqual(*other, keep) {
+		t.Error("a result of another System was written into")
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	stopped := hot
+	stopped.Into, stopped.Context = r1, ctx
+	before := *r1
+	before.Nodes = append([]NodeVoltage(nil), r1.Nodes...)
+	if _, err := s.Solve(stopped); err == nil {
+		t.Fatal("a stopped solve returned no error")
+	}
+	if !reflect.DeepEqual(r1.Nodes, before.Nodes) || r1.Temp != before.Temp {
+		t.Error("a failed solve changed Options.Into")
 	}
 }
 
