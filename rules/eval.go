@@ -166,10 +166,19 @@ type subjectRef struct {
 	name  string
 	pos   netlist.Pos
 	chain []netlist.Instance
-	nets  []string
-	env   any
-	rv    reflect.Value
+	// net holds the subject's nets (the first nnet of them), made into a
+	// slice only for a finding (nets).
+	net  [3]string
+	nnet int
+	// env points to the subject's environment, rv is the environment
+	// itself (addressable): eachSubject rewrites one environment per kind
+	// for each subject of a case, so neither lives past the call.
+	env any
+	rv  reflect.Value
 }
+
+// nets returns the subject's nets as a new slice.
+func (s *subjectRef) nets() []string { return append([]string(nil), s.net[:s.nnet]...) }
 
 // outcome of one rule on one subject in one case.
 type outcome struct {
@@ -213,13 +222,20 @@ func Evaluate(set *RuleSet, a *checks.Analysis, opts EvalOptions) ([]Finding, er
 	eachCase(len(a.Cases), func(ci int) {
 		c := &a.Cases[ci]
 		var list []keyed
-		eachSubject(c, params, func(s subjectRef) {
+		eachSubject(c, params, func(s *subjectRef) {
+			device := "" // netlist.Key(s.name), made once it is needed
 			for _, r := range set.Rules {
 				if r.Subject != s.kind || r.c == nil {
 					continue
 				}
 				o, ok, applied := judge(r, s, c, ci)
-				k := key{r.ID, string(s.kind), netlist.Key(s.name)}
+				if !ok && !(applied && opts.Applied != nil) {
+					continue
+				}
+				if device == "" {
+					device = netlist.Key(s.name)
+				}
+				k := key{r.ID, string(s.kind), device}
 				if applied && opts.Applied != nil {
 					list = append(list, keyed{k: k, applied: true})
 				}
@@ -331,8 +347,8 @@ func pickWorst(os []outcome) Finding {
 
 // unphysical reports whether subject s is a transistor whose operating
 // point in its case is not physical (checks.RegionNotPhysical).
-func unphysical(s subjectRef) bool {
-	t, ok := s.env.(transistorEnv)
+func unphysical(s *subjectRef) bool {
+	t, ok := s.env.(*transistorEnv)
 	return ok && t.Region == checks.RegionNotPhysical
 }
 
@@ -360,38 +376,48 @@ func sortFindings(fs []Finding) {
 var noClipping checks.Clipping
 
 // eachSubject calls do with every subject of one case and its
-// environment, one at a time (a board of many devices does not hold a
-// case's environments all at once).
-func eachSubject(c *checks.Case, params map[string]float64, do func(s subjectRef)) {
+// environment, one at a time: one environment per kind is rewritten for
+// each subject, so a board of many devices neither holds a case's
+// environments at once nor makes one per subject. do must not keep s.
+func eachSubject(c *checks.Case, params map[string]float64, do func(s *subjectRef)) {
+	var te transistorEnv
+	s := subjectRef{kind: SubjectTransistor, env: &te, rv: reflect.ValueOf(&te).Elem(), nnet: 3}
 	for i := range c.Transistors {
 		t := &c.Transistors[i]
-		env := transistorEnv{Transistor: *t, Scenario: c.Scenario, Corner: c.Corner, Param: params}
-		if env.Clipping == nil {
-			env.Clipping = &noClipping // facts made by hand
+		te = transistorEnv{Transistor: *t, Scenario: c.Scenario, Corner: c.Corner, Param: params}
+		if te.Clipping == nil {
+			te.Clipping = &noClipping // facts made by hand
 		}
-		do(subjectRef{SubjectTransistor, t.Name, t.Pos, t.Chain,
-			[]string{t.Collector, t.Base, t.Emitter}, env, reflect.ValueOf(env)})
+		s.name, s.pos, s.chain, s.net = t.Name, t.Pos, t.Chain, [3]string{t.Collector, t.Base, t.Emitter}
+		do(&s)
 	}
+	var re resistorEnv
+	s = subjectRef{kind: SubjectResistor, env: &re, rv: reflect.ValueOf(&re).Elem(), nnet: 2}
 	for i := range c.Resistors {
 		r := &c.Resistors[i]
-		env := resistorEnv{Resistor: *r, Scenario: c.Scenario, Corner: c.Corner, Ambient: c.Ambient, Param: params}
-		do(subjectRef{SubjectResistor, r.Name, r.Pos, r.Chain,
-			[]string{r.NodeA, r.NodeB}, env, reflect.ValueOf(env)})
+		re = resistorEnv{Resistor: *r, Scenario: c.Scenario, Corner: c.Corner, Ambient: c.Ambient, Param: params}
+		s.name, s.pos, s.chain, s.net = r.Name, r.Pos, r.Chain, [3]string{r.NodeA, r.NodeB}
+		do(&s)
 	}
+	var ne nodeEnv
+	s = subjectRef{kind: SubjectNode, env: &ne, rv: reflect.ValueOf(&ne).Elem(), nnet: 1}
 	for i := range c.Nodes {
 		n := &c.Nodes[i]
-		env := nodeEnv{Node: *n, Scenario: c.Scenario, Corner: c.Corner, Ambient: c.Ambient, Param: params}
-		do(subjectRef{SubjectNode, n.Name, n.Pos, nil, []string{n.Name}, env, reflect.ValueOf(env)})
+		ne = nodeEnv{Node: *n, Scenario: c.Scenario, Corner: c.Corner, Ambient: c.Ambient, Param: params}
+		s.name, s.pos, s.chain, s.net = n.Name, n.Pos, nil, [3]string{n.Name}
+		do(&s)
 	}
 }
 
 // judge runs one rule on one subject. ok is false when the rule does not
 // apply or passes.
-func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok, applied bool) {
-	base := Finding{Rule: r.ID, Severity: r.Severity, Subject: s.kind, Device: s.name, Pos: s.pos,
-		Chain: s.chain, Scenario: c.Scenario, Corner: c.Corner, Nets: s.nets, Fix: r.Fix}
+func judge(r *Rule, s *subjectRef, c *checks.Case, ci int) (o outcome, ok, applied bool) {
+	base := func() Finding {
+		return Finding{Rule: r.ID, Severity: r.Severity, Subject: s.kind, Device: s.name, Pos: s.pos,
+			Chain: s.chain, Scenario: c.Scenario, Corner: c.Corner, Nets: s.nets(), Fix: r.Fix}
+	}
 	unjudged := func(p *program, err error) (outcome, bool, bool) {
-		f := base
+		f := base()
 		f.Severity = r.Unjudged
 		f.Unjudged = true
 		reason := errorText(err)
@@ -419,10 +445,10 @@ func judge(r *Rule, s subjectRef, c *checks.Case, ci int) (o outcome, ok, applie
 	if b, _ := v.(bool); !b {
 		return outcome{}, false, true
 	}
-	f := base
+	f := base()
 	f.Message, f.Values = render(r.c.message, s.env)
 	if len(r.Related) > 0 {
-		if te, ok := s.env.(transistorEnv); ok {
+		if te, ok := s.env.(*transistorEnv); ok {
 			f.Related = relatedOf(r.Related, &te.Transistor, c)
 		}
 	}
@@ -462,7 +488,7 @@ func runFloat(p *program, env any) (float64, bool) {
 }
 
 // nanFacts lists the facts p refers to that are NaN for the subject.
-func nanFacts(p *program, s subjectRef) []string {
+func nanFacts(p *program, s *subjectRef) []string {
 	if p == nil {
 		return nil
 	}
