@@ -14,6 +14,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime/debug"
 	"strings"
 
 	"github.com/urfave/cli/v2"
@@ -44,7 +45,18 @@ func (e *statusError) Error() string {
 // badInput wraps err as an exit-status-2 error.
 func badInput(err error) error { return &statusError{code: exitBadInput, err: err} }
 
+// gcPercent is the garbage collector's GOGC when the environment sets
+// none: the heap may grow to 1.75 times the data in use before a
+// collection, not twice (Go's default 100). A check holds every case's
+// facts, which for a board of 2,000 transistors is most of its memory;
+// measured there, peak RSS falls from 290-310 MB to 230-260 MB for about
+// 4 % more CPU time. A user's GOGC (or GOGC=off) wins.
+const gcPercent = 75
+
 func main() {
+	if os.Getenv("GOGC") == "" {
+		debug.SetGCPercent(gcPercent)
+	}
 	os.Exit(run(os.Args, os.Stdout, os.Stderr))
 }
 
