@@ -4,6 +4,8 @@ import (
 	"context"
 	"math"
 	"sort"
+	"strconv"
+	"sync"
 
 	"github.com/biaslint/biaslint/checks/solve"
 	"github.com/biaslint/biaslint/netlist"
@@ -183,13 +185,27 @@ func theveninOn(ctx context.Context, sys *solve.System, q *netlist.Element, pol 
 // small (localCircuit: up to the rails), only that part is solved, so
 // the facts of a board of many stages cost in proportion to the board,
 // not to its square.
+//
+// The local parts of a board of repeated stages have one shape: the
+// pivot order of the first is shared with the others of its shape
+// (localOrders), so each skips the ordering and symbolic analysis and
+// gets the same bits as a fresh pivoting (solve.SparseLU.UsePivotOrder).
 func (a *analyzer) theveninAll(nominal *solve.Result) {
 	a.rails().index(nil) // built once, before the workers read it
+	orders := &localOrders{m: map[string]*solve.PivotOrder{}}
 	a.pool.each(len(a.bjts), func(w *worker, j int) {
 		t := &a.tmpl[j]
 		if lc := a.localCircuit(a.bjts[j], nominal); lc != nil {
 			if sys, err := solve.Prepare(lc); err == nil {
+				shape := shapeKey(lc)
+				o := orders.get(shape)
+				if o != nil {
+					sys.UsePivotOrder(o)
+				}
 				t.BaseRth, t.BaseVth = theveninOn(a.opt.Context, sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
+				if o == nil {
+					orders.put(shape, sys.PivotOrder())
+				}
 				return
 			}
 		}
@@ -200,6 +216,71 @@ func (a *analyzer) theveninAll(nominal *solve.Result) {
 		}
 		t.BaseRth, t.BaseVth = theveninOn(a.opt.Context, w.sys, a.bjts[j], t.Polarity, nil, a.temp, nominal)
 	})
+}
+
+// localOrders holds the pivot orders of the local circuits solved so far,
+// by shape (shapeKey), for the workers of theveninAll.
+type localOrders struct {
+	mu sync.Mutex
+	m  map[string]*solve.PivotOrder
+}
+
+// get returns the order of a shape, nil for none (or when sharing pivot
+// orders is off).
+func (l *localOrders) get(shape string) *solve.PivotOrder {
+	if !sharePivotOrder {
+		return nil
+	}
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.m[shape]
+}
+
+// put records the order of a shape, unless one is recorded already.
+func (l *localOrders) put(shape string, o *solve.PivotOrder) {
+	if o == nil || !sharePivotOrder {
+		return
+	}
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	if l.m[shape] == nil {
+		l.m[shape] = o
+	}
+}
+
+// shapeKey describes circuit c's structure: each element's kind, model
+// and nets, the nets numbered in order of first appearance (ground -1).
+// Circuits with equal keys number their unknowns alike and stamp the same
+// matrix pattern, unless their values differ where the pattern depends on
+// them (a zero-ohm resistor, a model's series resistances): the pivot
+// order of one then suits the other, and where it does not, the solver
+// finds out and pivots afresh (solve.SparseLU.UsePivotOrder compares the
+// patterns exactly).
+func shapeKey(c *netlist.Circuit) string {
+	num := make(map[string]int, 2*len(c.Elements))
+	b := make([]byte, 0, 16*len(c.Elements))
+	for _, e := range c.Elements {
+		b = append(b, byte(e.Kind))
+		b = append(b, e.Model...)
+		for _, n := range e.Nodes {
+			k := nodeKey(n)
+			i, ok := num[k]
+			switch {
+			case isGroundKey(k):
+				i = -1
+			case !ok:
+				i = len(num)
+				num[k] = i
+			}
+			b = append(b, ' ')
+			b = strconv.AppendInt(b, int64(i), 10)
+		}
+		if e.Kind == 'R' && e.Value == 0 {
+			b = append(b, '!')
+		}
+		b = append(b, ';')
+	}
+	return string(b)
 }
 
 // findRoot returns the root of x in the union-find forest parent (a net
