@@ -86,11 +86,40 @@ func Flatten(d *Deck) (*Circuit, error) {
 		if len(d.Top.Subckts) > 0 && len(d.Top.Elements) == 0 {
 			what = "no elements at top level (only subcircuit definitions)"
 		}
-		f.errs.Addf(Pos{File: d.File, Line: 1, Col: 1}, "%s", verbatim(what))
+		if looksLikeElement(d.Title) {
+			// A one-line file, or one whose only element is on the first
+			// line: SPICE reads that line as the title.
+			f.errs.Addf(Pos{File: d.File, Line: 1, Col: 1}, "%s: the first line, %q, is the netlist's title (as in SPICE, the first line of a netlist always is); put a title line above it",
+				verbatim(what), d.Title)
+		} else {
+			f.errs.Addf(Pos{File: d.File, Line: 1, Col: 1}, "%s", verbatim(what))
+		}
 	}
 	f.errs.Sort()
 	f.c.Notes = f.errs.Notes()
 	return f.c, f.errs.Err()
+}
+
+// looksLikeElement reports whether a title line reads like an element
+// line: a name of a device letter then letters, digits or underscores,
+// with a digit among them (R1, Q12, x_amp2: words of a title rarely have
+// one), then at least one more field.
+func looksLikeElement(title string) bool {
+	fs := strings.Fields(title)
+	if len(fs) < 2 || !strings.ContainsRune("RCLVIQDXEFGHrclviqdxefgh", rune(fs[0][0])) {
+		return false
+	}
+	digit := false
+	for _, r := range fs[0][1:] {
+		switch {
+		case r >= '0' && r <= '9':
+			digit = true
+		case r == '_' || (r >= 'a' && r <= 'z') || (r >= 'A' && r <= 'Z'):
+		default:
+			return false
+		}
+	}
+	return digit
 }
 
 // flattener holds the state of one Flatten call.

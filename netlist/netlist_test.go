@@ -341,3 +341,27 @@ func TestReadSourceNoFiles(t *testing.T) {
 	_, err = ReadSource("mem.cir", []byte("probe bias\n.include /etc/passwd\nR1 a 0 1k\n"), &LoadOptions{ReadFile: NoFiles})
 	mustMention(t, err, "mem.cir:2:10", `"/etc/passwd" is outside the folders`)
 }
+
+// TestTitleLooksLikeElement: a file whose only element is on its first
+// line has no elements, since SPICE reads the first line as the title
+// (Nagel 1975, the SPICE2 input format); the error says so and quotes the
+// line, shortened. A title that reads as words keeps the plain error.
+func TestTitleLooksLikeElement(t *testing.T) {
+	for _, tc := range []struct {
+		src  string
+		want []string
+		not  string
+	}{
+		{"R1 a\n", []string{"one.cir:1:1", "no elements", `"R1 a"`, "is the netlist's title"}, ""},
+		{"Q1 c b e BC547 with a long trailing comment\n.end\n", []string{"one.cir:1:1", `"Q1 c b e BC547 with a lo..."`}, ""},
+		{"bias probe\n.end\n", []string{"one.cir:1:1", "no elements"}, "title"},
+		{"Empty deck: comments only\n* nothing\n", []string{"one.cir:1:1", "no elements"}, "title"},
+		{"Lab 3 bias\n", []string{"one.cir:1:1", "no elements"}, "title"},
+	} {
+		_, err := ReadSource("one.cir", []byte(tc.src), &LoadOptions{ReadFile: NoFiles})
+		mustMention(t, err, tc.want...)
+		if tc.not != "" && err != nil && strings.Contains(err.Error(), tc.not) {
+			t.Errorf("%q: error %q mentions %q", tc.src, err, tc.not)
+		}
+	}
+}
