@@ -95,9 +95,41 @@ func Flatten(d *Deck) (*Circuit, error) {
 			f.errs.Addf(Pos{File: d.File, Line: 1, Col: 1}, "%s", verbatim(what))
 		}
 	}
+	if len(f.c.Elements) > 0 {
+		f.titleElement()
+	}
 	f.errs.Sort()
 	f.c.Notes = f.errs.Notes()
 	return f.c, f.errs.Err()
+}
+
+// titleElement warns when the title line reads as an element on two nets
+// of the circuit (VCC vcc 0 12, R1 vcc b 47k): a netlist written without
+// a title, whose first element SPICE's convention turns into the title,
+// so the circuit silently lacks it.
+func (f *flattener) titleElement() {
+	title := f.d.Title
+	fs := strings.Fields(title)
+	if len(fs) < 3 || !strings.ContainsRune("RCLVIQDrclviqd", rune(fs[0][0])) {
+		return
+	}
+	nets := map[string]bool{}
+	for _, e := range f.c.Elements {
+		for _, n := range e.Nodes {
+			nets[Key(n)] = true
+		}
+	}
+	on := func(n string) bool { return IsGround(n) || nets[Key(n)] }
+	if !on(fs[1]) || !on(fs[2]) || Key(fs[1]) == Key(fs[2]) {
+		return
+	}
+	for _, e := range f.c.Elements {
+		if Key(e.Name) == Key(fs[0]) {
+			return // an element of that name is in the circuit: a title that names it
+		}
+	}
+	f.errs.Warnf(Pos{File: f.d.File, Line: 1, Col: 1}, "the first line, %q, is read as the netlist's title (as in SPICE, the first line always is), yet it reads as an element on nets %s and %s of this circuit, which then lacks it; if it is one, put a title line above it",
+		title, fs[1], fs[2])
 }
 
 // looksLikeElement reports whether a title line reads like an element

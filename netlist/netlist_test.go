@@ -365,3 +365,37 @@ func TestTitleLooksLikeElement(t *testing.T) {
 		}
 	}
 }
+
+// TestTitleElementWarning: SPICE reads the first line as the title
+// (Nagel 1975), so a netlist typed without one loses its first element;
+// when that line reads as an element on two nets of the circuit the
+// reader warns at 1:1. Titles that only look a little like elements do
+// not warn.
+func TestTitleElementWarning(t *testing.T) {
+	body := "R1 vcc b 47k\nR2 b 0 10k\nQ1 c b 0 qn\nRC vcc c 4.7k\n.model qn npn\n.end\n"
+	for _, tc := range []struct {
+		title string
+		warn  bool
+	}{
+		{"VCC vcc 0 12", true},
+		{"vin b 0 dc 0.7", true},
+		{"Q1 bias test", false},         // no nets of the circuit
+		{"R1 vcc b 47k", false},         // R1 is in the circuit: the title names it
+		{"Common emitter vcc 0", false}, // the second and third words are not both nets
+		{"VCC vcc vcc", false},
+	} {
+		c, err := ReadSource("t.cir", []byte(tc.title+"\n"+body), &LoadOptions{ReadFile: NoFiles})
+		if err != nil {
+			t.Fatalf("%q: %v", tc.title, err)
+		}
+		warned := false
+		for _, n := range c.Notes {
+			if strings.Contains(n.Error(), "t.cir:1:1") && strings.Contains(n.Error(), "is read as the netlist's title") {
+				warned = true
+			}
+		}
+		if warned != tc.warn {
+			t.Errorf("title %q: warned %v, want %v (notes %v)", tc.title, warned, tc.warn, c.Notes)
+		}
+	}
+}
