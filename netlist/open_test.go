@@ -246,6 +246,10 @@ func TestNotNetlist(t *testing.T) {
 			t.Errorf("%s: read as not a netlist: %v", name, err)
 		}
 	}
+	// A top file whose one element line is cut short is a netlist with a
+	// typo: the line gets its own located error.
+	_, err := Read("lab.cir", memFS(map[string]string{"lab.cir": "* bench 4 bias\nR1 a\n"}))
+	mustMention(t, err, "lab.cir:2:1:", "R1 needs two nets and a value")
 }
 
 // TestTotalSize: a file included over and over is counted each time, so

@@ -110,7 +110,10 @@ func capped(s string) verbatim { return verbatim(cutAt(s, 80)) }
 // ';' comment (not counted), a dot statement (.word), a '+' continuation,
 // or an element line: a first word that starts with a letter and holds
 // none of : = " ' ( ) { } ` \ , followed by at least two more fields, the
-// first of them not "=" (that is "key = value", a setting).
+// first of them not "=" (that is "key = value", a setting), or an element
+// line cut short: a name of letters, digits and underscores with a digit
+// (R1, Q12) and one more such field (R1 a, a typo, which then gets its own
+// located error).
 // Lines inside .control blocks and after .end are not counted; skip drops
 // the first line (a top file's title). It returns the counts of foreign
 // and counted lines, and the line number of the first foreign one.
@@ -170,8 +173,41 @@ func netlistLine(t string) bool {
 		return true
 	}
 	f := strings.FieldsFunc(t, func(r rune) bool { return r == ' ' || r == '\t' || r == ',' })
+	if len(f) == 2 {
+		return shortElement(f[0]) && plainWord(f[1])
+	}
 	if len(f) < 3 || !isLetter(f[0][0]) || strings.ContainsAny(f[0], ":=\"'(){}`\\") || f[1] == "=" {
 		return false
+	}
+	return true
+}
+
+// shortElement reports whether w reads as an element name: a letter, then
+// letters, digits and underscores, with a digit among them.
+func shortElement(w string) bool {
+	if !isLetter(w[0]) {
+		return false
+	}
+	digit := false
+	for i := 1; i < len(w); i++ {
+		switch c := w[i]; {
+		case isDigit(c):
+			digit = true
+		case isLetter(c) || c == '_':
+		default:
+			return false
+		}
+	}
+	return digit
+}
+
+// plainWord reports whether w holds only letters, digits, underscores and
+// dots (a net or a value).
+func plainWord(w string) bool {
+	for i := 0; i < len(w); i++ {
+		if c := w[i]; !(isLetter(c) || isDigit(c) || c == '_' || c == '.') {
+			return false
+		}
 	}
 	return true
 }
