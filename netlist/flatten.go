@@ -413,6 +413,27 @@ func (f *flattener) element(s *ElementStmt, def *Subckt, e *env) *Element {
 	return el
 }
 
+// standIn returns the stand-in model of LoadOptions.StandIn for the
+// model name w that the netlist does not define, registered in the circuit
+// under that name and noted at its first use; nil for none.
+func (f *flattener) standIn(w Word) *Model {
+	if f.opts.StandIn == nil {
+		return nil
+	}
+	if m := f.c.Models[Key(w.Text)]; m != nil {
+		return m // made for an earlier line
+	}
+	m, note, ok := f.opts.StandIn(w.Text)
+	if !ok || m == nil || (m.Type != NPN && m.Type != PNP) {
+		return nil
+	}
+	sm := *m
+	sm.Name, sm.Local, sm.Pos = w.Text, w.Text, w.Pos
+	f.c.Models[Key(w.Text)] = &sm
+	f.errs.Alertf(w.Pos, "model %s is not defined in the netlist: %s", w.Text, verbatim(note))
+	return &sm
+}
+
 // useModel checks that m exists and has one of the wanted types.
 func (f *flattener) useModel(el *Element, s *ElementStmt, name Word, m *Model, want ...ModelType) bool {
 	if m == nil {
@@ -475,6 +496,13 @@ func (f *flattener) bjt(el *Element, s *ElementStmt, def *Subckt, e *env) bool {
 				model, rest = w, x[2:]
 				sub, _ := word(0)
 				el.Nodes = append(el.Nodes, f.node(sub, e))
+			}
+		}
+	}
+	if m == nil {
+		if w, ok := word(0); ok && (len(x) == 1 || (len(x) == 2 && looksNumeric(x[1].Text))) {
+			if m = f.standIn(w); m != nil {
+				model, rest = w, x[1:]
 			}
 		}
 	}

@@ -59,6 +59,14 @@ type LoadOptions struct {
 	// resolved, must lie inside its folder or IncludeDirs. For files found
 	// by searching a folder, where a link could lead anywhere.
 	ConfineTop bool
+	// StandIn, if not nil, gives a model for a Q line whose model name
+	// the netlist defines nowhere (a standard type written without its
+	// .model card, as schematic editors with a built-in library export
+	// it): the model, of type NPN or PNP, and a note saying what it is,
+	// which is reported once per name, as an alert (every report shows it),
+	// at the first line that uses it.
+	// ok false leaves the line an undefined-model error.
+	StandIn func(name string) (m *Model, note string, ok bool)
 
 	osFiles bool // ReadFile is the default file-system reader
 }

@@ -226,7 +226,7 @@ func newCheckRun(c *cli.Context) (*checkRun, error) {
 	if err != nil {
 		return nil, err
 	}
-	inputs, err := inputsOf(c)
+	inputs, err := inputsOf(c, parts)
 	if err != nil {
 		return nil, err
 	}

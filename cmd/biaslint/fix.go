@@ -91,7 +91,7 @@ func runFix(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	inputs, err := inputsOf(c)
+	inputs, err := inputsOf(c, parts)
 	if err != nil {
 		return err
 	}

@@ -12,6 +12,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"github.com/biaslint/biaslint/netlist"
+	"github.com/biaslint/biaslint/rulesets"
 	"github.com/biaslint/biaslint/rulesets/demo"
 )
 
@@ -94,8 +95,10 @@ func fileArgs(c *cli.Context) []string {
 }
 
 // inputsOf returns the netlists a command was asked to read: FILE
-// arguments may be files, directories or globs (see expandArgs).
-func inputsOf(c *cli.Context) ([]input, error) {
+// arguments may be files, directories or globs (see expandArgs). A Q line
+// naming a registered type of parts that the netlist does not define gets
+// the library's stand-in model (rulesets.Library.StandIn), with a note.
+func inputsOf(c *cli.Context, parts *rulesets.Library) ([]input, error) {
 	args := fileArgs(c)
 	rev, useDemo, err := demoRevision(c)
 	if err != nil {
@@ -123,7 +126,7 @@ func inputsOf(c *cli.Context) ([]input, error) {
 	}
 	var ins []input
 	for _, f := range found {
-		o := &netlist.LoadOptions{IncludeDirs: dirs, IncludeHint: includeHint, ConfineTop: f.searched}
+		o := &netlist.LoadOptions{IncludeDirs: dirs, IncludeHint: includeHint, ConfineTop: f.searched, StandIn: parts.StandIn}
 		if err := sizeBudget(c, o); err != nil {
 			return nil, err
 		}

@@ -14,6 +14,7 @@ import (
 	"github.com/biaslint/biaslint/netlist"
 	"github.com/biaslint/biaslint/netlist/units"
 	"github.com/biaslint/biaslint/rules/report"
+	"github.com/biaslint/biaslint/rulesets"
 )
 
 func opCommand() *cli.Command {
@@ -60,6 +61,10 @@ type opFile struct {
 	// the first) and what they are.
 	StableStates int    `json:"stable_states,omitempty"`
 	States       string `json:"states,omitempty"`
+	// Notes are the alerts and warnings of reading the netlist (a value
+	// read other than it may look, a stand-in model for a part type
+	// written without its .model card), located, as check shows them.
+	Notes []string `json:"notes,omitempty"`
 
 	nodeOrder []string
 }
@@ -89,7 +94,11 @@ func runOp(c *cli.Context) error {
 	if format != "text" && format != "json" {
 		return badInput(fmt.Errorf("biaslint: --format must be text or json, not %q", format))
 	}
-	inputs, err := inputsOf(c)
+	parts, err := loadParts(c)
+	if err != nil {
+		return err
+	}
+	inputs, err := inputsOf(c, parts)
 	if err != nil {
 		return err
 	}
@@ -120,7 +129,7 @@ func runOp(c *cli.Context) error {
 		var r opFile
 		err, over := withBudget(in.name, timeout, func(ctx context.Context) error {
 			var err error
-			r, err = solveOp(ctx, c, circ)
+			r, err = solveOp(ctx, c, circ, parts)
 			return err
 		})
 		if why := overMemory(err); over || why != "" {
@@ -170,7 +179,7 @@ func runOp(c *cli.Context) error {
 }
 
 // solveOp solves one circuit and converts the result to the report shape.
-func solveOp(ctx context.Context, c *cli.Context, circ *netlist.Circuit) (opFile, error) {
+func solveOp(ctx context.Context, c *cli.Context, circ *netlist.Circuit, parts *rulesets.Library) (opFile, error) {
 	t, err := tempOf(c, "temp")
 	if err != nil {
 		return opFile{}, err
@@ -184,7 +193,7 @@ func solveOp(ctx context.Context, c *cli.Context, circ *netlist.Circuit) (opFile
 	// Only the nominal solution and the junction temperatures: op prints
 	// no roles, topology or other cases, so it computes none.
 	limit, _ := fileMemory(c) // checked by runOp
-	op, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal"), Context: ctx, MemoryLimit: limit})
+	op, err := checks.OperatingPoint(circ, checks.Options{Temp: t, Ambient: amb, Thermal: c.Bool("thermal"), Context: ctx, MemoryLimit: limit, Parts: parts})
 	if err != nil {
 		return opFile{}, err
 	}
@@ -201,6 +210,11 @@ func solveOp(ctx context.Context, c *cli.Context, circ *netlist.Circuit) (opFile
 		Sources:         map[string]float64{},
 		BJTs:            []opBJT{},
 		Physical:        res.Physical(),
+	}
+	for _, n := range circ.Notes {
+		if n.Alert || n.Severity == netlist.SevWarning {
+			f.Notes = append(f.Notes, n.Error())
+		}
 	}
 	for _, u := range res.Unphysical {
 		f.NotPhysical = append(f.NotPhysical, u.Why)
@@ -255,6 +269,9 @@ func writeOpText(w *bytes.Buffer, results []opFile, p palette) {
 		at := units.Format(r.Temperature, "C")
 		if from := tempFromText[r.TemperatureFrom]; from != "" {
 			at += " (" + from + ")"
+		}
+		for _, n := range r.Notes {
+			fmt.Fprintf(w, "  %s\n", report.Printable(n))
 		}
 		if r.Physical {
 			fmt.Fprintf(w, "  solved at %s by %s in %d iterations\n", at, r.Method, r.Iterations)
