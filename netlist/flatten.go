@@ -500,9 +500,18 @@ func (f *flattener) bjt(el *Element, s *ElementStmt, def *Subckt, e *env) bool {
 		}
 	}
 	if m == nil {
+		// A registered type without its .model card: "type [area]", or
+		// "substrate type [area]".
 		if w, ok := word(0); ok && (len(x) == 1 || (len(x) == 2 && looksNumeric(x[1].Text))) {
 			if m = f.standIn(w); m != nil {
 				model, rest = w, x[1:]
+			}
+		}
+		if w, ok := word(1); m == nil && ok && (len(x) == 2 || (len(x) == 3 && looksNumeric(x[2].Text))) {
+			if m = f.standIn(w); m != nil {
+				model, rest = w, x[2:]
+				sub, _ := word(0)
+				el.Nodes = append(el.Nodes, f.node(sub, e))
 			}
 		}
 	}

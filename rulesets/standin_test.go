@@ -76,7 +76,7 @@ func TestStandInNetlist(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	src := []byte("bench\nV1 vcc 0 9\nR1 vcc b 100k\nRC vcc c 2.2k\nQ1 c b 0 BC547B\nQ2 c b 0 BC547B 2\n.end\n")
+	src := []byte("bench\nV1 vcc 0 9\nR1 vcc b 100k\nRC vcc c 2.2k\nQ1 c b 0 BC547B\nQ2 c b 0 BC547B 2\nQ3 c b 0 0 2N3906\n.end\n")
 	c, err := netlist.ReadSource("s.cir", src, &netlist.LoadOptions{ReadFile: netlist.NoFiles, StandIn: lib.StandIn})
 	if err != nil {
 		t.Fatal(err)
@@ -89,6 +89,10 @@ func TestStandInNetlist(t *testing.T) {
 	}
 	if alerts != 1 || c.Elements[4].Area != 2 || c.Models[c.Elements[3].Model] == nil {
 		t.Errorf("alerts %d, Q2 area %g, notes %v", alerts, c.Elements[4].Area, c.Notes)
+	}
+	// Q3 has a substrate node before the type.
+	if q3 := c.Elements[5]; len(q3.Nodes) != 4 || c.Models[q3.Model] == nil || c.Models[q3.Model].Type != netlist.PNP {
+		t.Errorf("Q3: nodes %v, model %q", q3.Nodes, q3.Model)
 	}
 	_, err = netlist.ReadSource("s.cir", src, &netlist.LoadOptions{ReadFile: netlist.NoFiles})
 	if err == nil || !strings.Contains(err.Error(), "s.cir:5:10") || !strings.Contains(err.Error(), "undefined model BC547B") {
