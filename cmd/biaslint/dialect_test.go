@@ -9,8 +9,11 @@ import (
 
 // Netlists of our own in the dialects real files come in (testdata/dialect):
 // a schematic editor's export, a SPICE2-style deck with a POLY source and
-// two .TEMP values, a hand-typed lab file with the 1M slip, and a base
-// tied straight to a controller pin. Each report is a golden; the checks
+// two .TEMP values, a hand-typed lab file with the 1M slip, a base tied
+// straight to a controller pin, a class board naming standard types
+// without .model cards (Q2's 1.41 mA checks by hand: divider 1.364 V less
+// 70 mV across its 8.5 kOhm source, VBE 0.625 V from the stand-in's IS,
+// over 470 Ohm), and a netlist typed without a title line. Each report is a golden; the checks
 // below name what each must show.
 func TestDialects(t *testing.T) {
 	for _, tc := range []struct {
@@ -30,6 +33,13 @@ func TestDialects(t *testing.T) {
 			[]string{`Rser=0.1 is ignored`, `"alert": true`, `signal from VIN`}},
 		{"led", []string{"check", "testdata/dialect/led.cir"},
 			[]string{"DLED: the junction is held at 5.00 V", "Q1          common-emitter  nominal  active"}},
+		{"classparts", []string{"check", "testdata/dialect/classparts.cir"},
+			[]string{"classparts.cir:9:12: note: model BC547B is not defined in the netlist", "BF 300, the middle of hFE 200-450",
+				"model 2N3904 is not defined", "nominal  active      1.41 mA", "[floating-base]"}},
+		{"classparts-op", []string{"op", "testdata/dialect/classparts.cir"},
+			[]string{"model BC547B is not defined in the netlist", "BC547B npn"}},
+		{"notitle", []string{"check", "testdata/dialect/notitle.cir"},
+			[]string{`notitle.cir:1:1: warning: the first line, "VCC vcc 0 12", is read as the netlist's title`}},
 		{"stiff-op", []string{"op", "testdata/dialect/stiff.cir"},
 			[]string{"not physical at 25.0 C", "the base-emitter junction is held at 3.30 V"}},
 	} {
