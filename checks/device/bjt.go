@@ -173,24 +173,20 @@ func NewBJT(m *netlist.Model, area, tempC float64, opt Options) (*BJT, error) {
 	return b, nil
 }
 
-// AtTemp returns the transistor b at device temperature tempC (°C): what
-// NewBJT of b's model, area and options gives at tempC, bit for bit,
-// without reading the model again (its parameters are b.Params). A solve
-// whose temperatures change while the models do not (the self-heating
-// loop, the temperature step of the loop gains) remakes its transistors
-// this way.
+// AtTemp returns a copy of transistor b at device temperature tempC (°C):
+// what NewBJT of b's model, area and options gives at tempC, bit for bit,
+// without reading the model again (its parameters are b.Params). SetTemp
+// moves b itself, as a solve whose temperatures change while the models
+// do not (the self-heating loop) does.
 func (b *BJT) AtTemp(tempC float64) (*BJT, error) {
 	if b == nil {
 		return nil, fmt.Errorf("no transistor")
 	}
-	if sameFloat(tempC, b.Temp) {
-		return b, nil
-	}
-	c := new(BJT)
-	if err := makeBJT(c, b.model, b.Polarity, b.Params, b.Area, tempC, Options{TNom: b.Params.TNOM, GMin: b.GMin}); err != nil {
+	c := *b
+	if err := c.SetTemp(tempC); err != nil {
 		return nil, err
 	}
-	return c, nil
+	return &c, nil
 }
 
 // SetTemp is AtTemp in place: it moves b to device temperature tempC

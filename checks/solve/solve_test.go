@@ -572,7 +572,9 @@ func TestConvergenceFailureIsReported(t *testing.T) {
 	}
 }
 
-func TestReuseAndSetValue(t *testing.T) {
+// dividerStage builds a divider-biased common-emitter stage on 12 V (R1
+// 100k, R2 22k, RC 4.7k, RE 1k, Q1 of model qn); RE is element 4.
+func dividerStage() *builder {
 	b := newBuilder()
 	npnModel(b, nil)
 	b.V("VCC", "vcc", "0", 12)
@@ -581,6 +583,11 @@ func TestReuseAndSetValue(t *testing.T) {
 	b.R("RC", "vcc", "c", 4.7e3)
 	b.R("RE", "e", "0", 1e3)
 	b.Q("Q1", "c", "b", "e", "qn")
+	return b
+}
+
+func TestReuseAndSetValue(t *testing.T) {
+	b := dividerStage()
 	s, err := Prepare(b.c)
 	if err != nil {
 		t.Fatal(err)
@@ -622,14 +629,7 @@ func TestReuseAndSetValue(t *testing.T) {
 // of another System is not touched, and neither is Into when the solve
 // fails (here: stopped by its context before the first iteration).
 func TestInto(t *testing.T) {
-	b := newBuilder()
-	npnModel(b, nil)
-	b.V("VCC", "vcc", "0", 12)
-	b.R("R1", "vcc", "b", 100e3)
-	b.R("R2", "b", "0", 22e3)
-	b.R("RC", "vcc", "c", 4.7e3)
-	b.R("RE", "e", "0", 1e3)
-	b.Q("Q1", "c", "b", "e", "qn")
+	b := dividerStage()
 	s, err := Prepare(b.c)
 	if err != nil {
 		t.Fatal(err)
