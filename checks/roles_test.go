@@ -201,6 +201,12 @@ func TestPinNet(t *testing.T) {
 		{"also feeds a diode", "VCC vcc 0 5\nVP p 0 3.3\nRB p b 1k\nD1 p x DD\nRX x 0 1k\n.model DD D\n" + tail, false},
 		{"a supply with a divider and an emitter resistor", "VCC vcc 0 5\nVP p 0 3.3\nR1 p b 10k\nR2 b 0 10k\nRE e p 1k\nRC vcc c 1k\nQ1 c b e N\n.model N NPN\n", false},
 		{"not on ground", "VCC vcc 0 5\nVP p vcc 3.3\nRB p b 1k\n" + tail, false},
+		// A PNP high-side switch: its pull-up goes to the supply its
+		// emitter sits on, which the pin's walk stops at as at ground.
+		{"PNP with a pull-up to its emitter supply", "VBAT vbat 0 12\nVP p 0 0\nRB p b 4.4k\nRPU vbat b 10k\nQ1 c b vbat P\nRL c 0 220\n.model P PNP\n", true},
+		// A resistor chain from the pin to a supply that feeds no
+		// transistor's collector or emitter is not stopped there.
+		{"resistor to another source's net", "VCC vcc 0 5\nVX x 0 2\nVP p 0 3.3\nRB p b 1k\nRX p x 1k\n" + tail, false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			c := circuit(t, "pin test\n"+tc.src)

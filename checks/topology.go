@@ -75,9 +75,10 @@ func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
 		}
 	}
 	isPin := map[*netlist.Element]bool{}
+	supply := g.supplyNets(b)
 	for _, e := range c.Elements {
 		if e.Kind == 'V' && !isDriveSource(e, b) && len(e.Nodes) >= 2 {
-			if k, ok := g.pinNet(e, bases); ok && g.pin[k] == nil {
+			if k, ok := g.pinNet(e, bases, supply); ok && g.pin[k] == nil {
 				g.pin[k], isPin[e] = e, true
 			}
 		}
@@ -118,14 +119,15 @@ func newGraph(c *netlist.Circuit, b *board.Settings) *graph {
 // pinNet reports whether the DC voltage source e stands for a controller
 // pin (a logic output written as a plain DC source) rather than a supply,
 // and which net it holds. One terminal is on ground, and the region the
-// other net reaches through resistors and capacitors (stopping at ground)
-// holds at least one transistor base and nothing else but resistors and
-// capacitors: no collector or emitter, no other source, diode, inductor or
-// controlled element. A supply feeds collectors and loads; a pin feeds
-// base resistors, with pull-downs and RC filters on the way. The walk
-// stops at the first thing a pin cannot feed, and is bounded by the
-// circuit's size.
-func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool) {
+// other net reaches through resistors and capacitors (stopping at ground
+// and at supply nets, see supplyNets) holds at least one transistor base
+// and nothing else but resistors and capacitors: no collector or emitter,
+// no other source, diode, inductor or controlled element. A supply feeds
+// collectors and loads; a pin feeds base resistors, with pull-downs (and,
+// for a PNP whose emitter is on a supply, pull-ups to that supply) and RC
+// filters on the way. The walk stops at the first thing a pin cannot
+// feed, and is bounded by the circuit's size.
+func (g *graph) pinNet(e *netlist.Element, bases, supply map[string]bool) (string, bool) {
 	a, b := nodeKey(e.Nodes[0]), nodeKey(e.Nodes[1])
 	var k string
 	switch {
@@ -154,7 +156,7 @@ func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool)
 				}
 				toBase = true
 			case (x.Kind == 'R' || x.Kind == 'C') && len(x.Nodes) == 2:
-				if f := other(x, n); f != netlist.Ground && !seen[f] {
+				if f := other(x, n); f != netlist.Ground && !supply[f] && !seen[f] {
 					seen[f] = true
 					queue = append(queue, f)
 				}
@@ -164,6 +166,30 @@ func (g *graph) pinNet(e *netlist.Element, bases map[string]bool) (string, bool)
 		}
 	}
 	return k, toBase
+}
+
+// supplyNets returns the nets a plain DC source holds against ground that
+// also carry a transistor's collector or emitter: supplies, which no pin
+// can be, so a pin's walk stops there as at ground.
+func (g *graph) supplyNets(b *board.Settings) map[string]bool {
+	out := map[string]bool{}
+	for _, e := range g.c.Elements {
+		if e.Kind != 'V' || isDriveSource(e, b) || len(e.Nodes) < 2 {
+			continue
+		}
+		for i, n := range e.Nodes[:2] {
+			k, o := nodeKey(n), nodeKey(e.Nodes[1-i])
+			if o != netlist.Ground || k == netlist.Ground {
+				continue
+			}
+			for _, x := range g.at[k] {
+				if x.Kind == 'Q' && len(x.Nodes) >= 3 && (nodeKey(x.Nodes[0]) == k || nodeKey(x.Nodes[2]) == k) {
+					out[k] = true
+				}
+			}
+		}
+	}
+	return out
 }
 
 // components joins the nets that resistors, inductors and capacitors
